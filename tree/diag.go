@@ -1,0 +1,188 @@
+package tree
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+	"sort"
+	"strings"
+)
+
+// Pos is a position in a source file: 1-based line and column (in
+// characters). The zero Pos means "no position", as for a model built in Go.
+type Pos struct {
+	Line, Col int
+}
+
+// IsValid reports whether the position points into a source.
+func (p Pos) IsValid() bool { return p.Line > 0 }
+
+// String formats the position as line:col, or "-" when it is not valid.
+func (p Pos) String() string {
+	if !p.IsValid() {
+		return "-"
+	}
+	return fmt.Sprintf("%d:%d", p.Line, p.Col)
+}
+
+// Before reports whether p comes before q in the source.
+func (p Pos) Before(q Pos) bool {
+	if p.Line != q.Line {
+		return p.Line < q.Line
+	}
+	return p.Col < q.Col
+}
+
+// Severity says whether a diagnostic stops the model from being solved.
+type Severity uint8
+
+const (
+	// Error: the model cannot be solved until it is fixed.
+	Error Severity = iota
+	// Warning: the model solves, but something in it is probably not meant.
+	Warning
+)
+
+func (s Severity) String() string {
+	if s == Warning {
+		return "warning"
+	}
+	return "error"
+}
+
+// Diagnostic is one problem found in a model: where it is, what it is and,
+// where one helps, what to do about it.
+type Diagnostic struct {
+	Severity Severity
+	Pos      Pos    // where the problem starts
+	Len      int    // how many characters it spans on that line (0: just Pos)
+	Summary  string // what is wrong, one line, no trailing period
+	Hint     string // what to do about it; may be empty
+}
+
+// Error formats the diagnostic as "line:col: message" (warnings say so).
+func (d Diagnostic) Error() string {
+	var b strings.Builder
+	if d.Pos.IsValid() {
+		b.WriteString(d.Pos.String())
+		b.WriteString(": ")
+	}
+	if d.Severity == Warning {
+		b.WriteString("warning: ")
+	}
+	b.WriteString(d.Summary)
+	return b.String()
+}
+
+// Diagnostics is a list of problems. Like go/scanner's ErrorList it sorts
+// by position and can stand as an error.
+type Diagnostics []Diagnostic
+
+// Add appends an error at pos.
+func (ds *Diagnostics) Add(pos Pos, hint, format string, args ...any) {
+	*ds = append(*ds, Diagnostic{Severity: Error, Pos: pos, Summary: fmt.Sprintf(format, args...), Hint: hint})
+}
+
+// Warn appends a warning at pos.
+func (ds *Diagnostics) Warn(pos Pos, hint, format string, args ...any) {
+	*ds = append(*ds, Diagnostic{Severity: Warning, Pos: pos, Summary: fmt.Sprintf(format, args...), Hint: hint})
+}
+
+// Sort orders the list by position, errors before warnings at one place,
+// and drops exact repeats.
+func (ds Diagnostics) Sort() Diagnostics {
+	sort.SliceStable(ds, func(i, j int) bool {
+		a, b := ds[i], ds[j]
+		if a.Pos != b.Pos {
+			return a.Pos.Before(b.Pos)
+		}
+		return a.Severity < b.Severity
+	})
+	out := ds[:0]
+	for i, d := range ds {
+		if i > 0 && d == ds[i-1] {
+			continue
+		}
+		out = append(out, d)
+	}
+	return out
+}
+
+// Errors returns only the errors.
+func (ds Diagnostics) Errors() Diagnostics {
+	var out Diagnostics
+	for _, d := range ds {
+		if d.Severity == Error {
+			out = append(out, d)
+		}
+	}
+	return out
+}
+
+// Warnings returns only the warnings.
+func (ds Diagnostics) Warnings() Diagnostics {
+	var out Diagnostics
+	for _, d := range ds {
+		if d.Severity == Warning {
+			out = append(out, d)
+		}
+	}
+	return out
+}
+
+// HasErrors reports whether any diagnostic is an error.
+func (ds Diagnostics) HasErrors() bool {
+	for _, d := range ds {
+		if d.Severity == Error {
+			return true
+		}
+	}
+	return false
+}
+
+// Err returns the errors as an error value, or nil when there are none.
+func (ds Diagnostics) Err() error {
+	if e := ds.Errors(); len(e) > 0 {
+		return e
+	}
+	return nil
+}
+
+// Error prints the first error and how many more there are.
+func (ds Diagnostics) Error() string {
+	switch len(ds) {
+	case 0:
+		return "no problems"
+	case 1:
+		return ds[0].Error()
+	}
+	return fmt.Sprintf("%s (and %d more)", ds[0].Error(), len(ds)-1)
+}
+
+// Print writes every diagnostic as "file:line:col: message", followed by
+// the source line, a caret under the column and the hint, when src holds the
+// model's text. src may be nil (a model read from JSON or built in Go).
+func (ds Diagnostics) Print(w io.Writer, file string, src []byte) {
+	var lines [][]byte
+	if src != nil {
+		lines = bytes.Split(src, []byte("\n"))
+	}
+	for _, d := range ds {
+		if file != "" {
+			fmt.Fprintf(w, "%s:", file)
+		}
+		fmt.Fprintln(w, d.Error())
+		if d.Pos.IsValid() && d.Pos.Line <= len(lines) {
+			line := strings.TrimRight(string(lines[d.Pos.Line-1]), "\r")
+			fmt.Fprintf(w, "    %s\n", strings.ReplaceAll(line, "\t", " "))
+			n := d.Len
+			if n < 1 {
+				n = 1
+			}
+			fmt.Fprintf(w, "    %s%s\n", strings.Repeat(" ", max(d.Pos.Col-1, 0)), strings.Repeat("^", n))
+		}
+		if d.Hint != "" {
+			fmt.Fprintf(w, "    hint: %s\n", d.Hint)
+		}
+	}
+}

@@ -1,0 +1,627 @@
+package tree
+
+import (
+	"bufio"
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+	"strings"
+	"unicode/utf8"
+
+	"github.com/shopspring/decimal"
+)
+
+// The JSON interchange format (see DESIGN.md):
+//
+//	Model  = {"title": str?, "currency": str?, "objective": "max"|"min", "root": Node,
+//	          "uncertainties": [Uncertainty]?, "tests": [Test]?}
+//	Node   = {"type": "decision"|"chance"|"end", "label": str?, "branches": [Branch],
+//	          "value": num? (end only), "uncertainty": str?, "test": str?}
+//	Branch = {"label": str, "probability": num?, "cash": num?, "node": Node?}
+//	Uncertainty = {"name": str, "label": str?, "states": [{"label": str, "probability": num}]}
+//	Test   = {"name": str, "label": str?, "on": str, "cost": num?,
+//	          "readings": [{"label": str, "likelihoods": [{"state": str, "probability": num}]}]}
+//
+// Numbers are JSON numbers or decimal strings, read exactly (never through
+// float64). "uncertainties", "tests", and the node fields "uncertainty" and
+// "test" are forkcast's extension for named events and imperfect tests.
+
+// jv is a JSON value with the position it starts at.
+type jv struct {
+	pos  Pos
+	kind byte // '{' '[' '"' 'n' (number) 'b' (bool) '0' (null)
+	str  string
+	keys []string
+	vals []*jv
+}
+
+type jsonReader struct {
+	src   []byte
+	dec   *json.Decoder
+	lines []int // byte offset of each line start
+	ds    Diagnostics
+	nodes int
+	limit int
+}
+
+func (r *jsonReader) posAt(off int64) Pos {
+	o := int(off)
+	// Skip to the start of the next token.
+	for o < len(r.src) && strings.IndexByte(" \t\r\n,:", r.src[o]) >= 0 {
+		o++
+	}
+	lo, hi := 0, len(r.lines)-1
+	for lo < hi {
+		mid := (lo + hi + 1) / 2
+		if r.lines[mid] <= o {
+			lo = mid
+		} else {
+			hi = mid - 1
+		}
+	}
+	col := utf8.RuneCount(r.src[r.lines[lo]:min(o, len(r.src))]) + 1
+	return Pos{Line: lo + 1, Col: col}
+}
+
+// value reads one JSON value with positions, iteratively enough: objects
+// and arrays recurse, which is bounded by the decoder's own nesting limit.
+func (r *jsonReader) value() (*jv, error) {
+	pos := r.posAt(r.dec.InputOffset())
+	tok, err := r.dec.Token()
+	if err != nil {
+		return nil, err
+	}
+	v := &jv{pos: pos}
+	switch t := tok.(type) {
+	case json.Delim:
+		switch t {
+		case '{':
+			v.kind = '{'
+			for r.dec.More() {
+				kpos := r.posAt(r.dec.InputOffset())
+				kt, err := r.dec.Token()
+				if err != nil {
+					return nil, err
+				}
+				k, _ := kt.(string)
+				for _, prev := range v.keys {
+					if prev == k {
+						r.ds.Add(kpos, "", "key %q appears twice in one object", k)
+					}
+				}
+				c, err := r.value()
+				if err != nil {
+					return nil, err
+				}
+				v.keys = append(v.keys, k)
+				v.vals = append(v.vals, c)
+			}
+		case '[':
+			v.kind = '['
+			for r.dec.More() {
+				c, err := r.value()
+				if err != nil {
+					return nil, err
+				}
+				v.vals = append(v.vals, c)
+			}
+		}
+		if _, err := r.dec.Token(); err != nil { // closing delimiter
+			return nil, err
+		}
+	case string:
+		v.kind, v.str = '"', t
+	case json.Number:
+		v.kind, v.str = 'n', string(t)
+	case bool:
+		v.kind = 'b'
+	case nil:
+		v.kind = '0'
+	}
+	return v, nil
+}
+
+func (v *jv) get(k string) *jv {
+	for i, kk := range v.keys {
+		if kk == k {
+			return v.vals[i]
+		}
+	}
+	return nil
+}
+
+func kindName(k byte) string {
+	switch k {
+	case '{':
+		return "an object"
+	case '[':
+		return "an array"
+	case '"':
+		return "a string"
+	case 'n':
+		return "a number"
+	case 'b':
+		return "true or false"
+	}
+	return "null"
+}
+
+// fields checks that an object has only the allowed keys.
+func (r *jsonReader) fields(v *jv, what string, allowed ...string) bool {
+	if v.kind != '{' {
+		r.ds.Add(v.pos, "", "%s must be an object, not %s", what, kindName(v.kind))
+		return false
+	}
+	for i, k := range v.keys {
+		ok := false
+		for _, a := range allowed {
+			ok = ok || a == k
+		}
+		if !ok {
+			r.ds.Add(v.vals[i].pos, "the keys allowed here are "+quoteList(allowed), "unknown key %q in %s", k, what)
+		}
+	}
+	return true
+}
+
+func (r *jsonReader) str(v *jv, key, what string, required bool) string {
+	c := v.get(key)
+	if c == nil {
+		if required {
+			r.ds.Add(v.pos, "", "%s has no %q", what, key)
+		}
+		return ""
+	}
+	if c.kind != '"' {
+		r.ds.Add(c.pos, "", "%q of %s must be a string, not %s", key, what, kindName(c.kind))
+		return ""
+	}
+	return c.str
+}
+
+// num reads a number exactly: a JSON number or a decimal string.
+func (r *jsonReader) num(v *jv, key, what string) Expr {
+	c := v.get(key)
+	if c == nil {
+		return nil
+	}
+	if c.kind != 'n' && c.kind != '"' {
+		r.ds.Add(c.pos, "write a number such as 0.25 or a decimal string such as \"0.25\"", "%q of %s must be a number, not %s", key, what, kindName(c.kind))
+		return nil
+	}
+	d, err := decimal.NewFromString(strings.TrimSpace(c.str))
+	if err != nil || strings.ContainsAny(c.str, "eE") && c.kind == '"' {
+		r.ds.Add(c.pos, "write a plain decimal such as \"1234.5\"", "%q of %s is not a decimal number: %q", key, what, c.str)
+		return nil
+	}
+	return &Number{At: c.pos, Value: d, Text: c.str}
+}
+
+func (r *jsonReader) array(v *jv, key, what string) []*jv {
+	c := v.get(key)
+	if c == nil {
+		return nil
+	}
+	if c.kind != '[' {
+		r.ds.Add(c.pos, "", "%q of %s must be an array, not %s", key, what, kindName(c.kind))
+		return nil
+	}
+	return c.vals
+}
+
+// ReadJSON reads a model in the JSON interchange format. limit caps the
+// number of nodes (0: DefaultNodeLimit). The model is not resolved; call
+// Resolve next. Diagnostics carry line and column in the JSON text.
+func ReadJSON(src []byte, limit int) (*Model, Diagnostics) {
+	if limit <= 0 {
+		limit = DefaultNodeLimit
+	}
+	r := &jsonReader{src: src, limit: limit, lines: []int{0}}
+	for i, c := range src {
+		if c == '\n' {
+			r.lines = append(r.lines, i+1)
+		}
+	}
+	if len(bytes.TrimSpace(src)) == 0 {
+		r.ds.Add(Pos{Line: 1, Col: 1}, "a model is an object such as {\"root\": {\"type\": \"decision\", ...}}", "the JSON input is empty")
+		return nil, r.ds
+	}
+	r.dec = json.NewDecoder(bytes.NewReader(src))
+	r.dec.UseNumber()
+	top, err := r.value()
+	if err == nil {
+		if _, extra := r.dec.Token(); extra != io.EOF {
+			err = fmt.Errorf("unexpected data after the model object")
+		}
+	}
+	if err != nil {
+		off := r.dec.InputOffset()
+		if se, ok := err.(*json.SyntaxError); ok {
+			off = se.Offset - 1
+			if off < 0 {
+				off = 0
+			}
+		}
+		msg := err.Error()
+		if err == io.ErrUnexpectedEOF || err == io.EOF {
+			msg = "the JSON ends too early"
+		}
+		r.ds.Add(r.posAt(off), "", "JSON syntax: %s", strings.TrimPrefix(msg, "json: "))
+		return nil, r.ds.Sort()
+	}
+	m := &Model{}
+	if !r.fields(top, "the model", "title", "currency", "objective", "root", "uncertainties", "tests") {
+		return nil, r.ds
+	}
+	m.Title = r.str(top, "title", "the model", false)
+	m.Currency = r.str(top, "currency", "the model", false)
+	if o := top.get("objective"); o != nil {
+		obj, ok := ParseObjective(r.str(top, "objective", "the model", false))
+		if !ok {
+			r.ds.Add(o.pos, "use \"max\" or \"min\"", "unknown objective %q", o.str)
+		}
+		m.Objective = obj
+	}
+	for _, uv := range r.array(top, "uncertainties", "the model") {
+		if !r.fields(uv, "an uncertainty", "name", "label", "states") {
+			continue
+		}
+		u := &Uncertainty{Name: r.str(uv, "name", "an uncertainty", true), Label: r.str(uv, "label", "an uncertainty", false), Pos: uv.pos}
+		for _, sv := range r.array(uv, "states", "uncertainty "+u.Name) {
+			if !r.fields(sv, "a state", "label", "probability") {
+				continue
+			}
+			s := &State{Label: r.str(sv, "label", "a state", true), Pos: sv.pos, Prob: r.num(sv, "probability", "a state")}
+			if s.Prob == nil {
+				r.ds.Add(sv.pos, "", "state %q has no probability", s.Label)
+			}
+			u.States = append(u.States, s)
+		}
+		m.Uncertainties = append(m.Uncertainties, u)
+	}
+	for _, tv := range r.array(top, "tests", "the model") {
+		if !r.fields(tv, "a test", "name", "label", "on", "cost", "readings") {
+			continue
+		}
+		t := &Test{Name: r.str(tv, "name", "a test", true), Label: r.str(tv, "label", "a test", false),
+			On: r.str(tv, "on", "a test", true), Cost: r.num(tv, "cost", "a test"), Pos: tv.pos}
+		for _, rv := range r.array(tv, "readings", "test "+t.Name) {
+			if !r.fields(rv, "a reading", "label", "likelihoods") {
+				continue
+			}
+			rd := &Reading{Label: r.str(rv, "label", "a reading", true), Pos: rv.pos}
+			for _, lv := range r.array(rv, "likelihoods", "reading "+rd.Label) {
+				if !r.fields(lv, "a likelihood", "state", "probability") {
+					continue
+				}
+				l := &Likelihood{State: r.str(lv, "state", "a likelihood", true), Prob: r.num(lv, "probability", "a likelihood"), Pos: lv.pos}
+				if l.Prob == nil {
+					r.ds.Add(lv.pos, "", "the likelihood for %q has no probability", l.State)
+					continue
+				}
+				rd.Given = append(rd.Given, l)
+			}
+			t.Readings = append(t.Readings, rd)
+		}
+		m.Tests = append(m.Tests, t)
+	}
+	rv := top.get("root")
+	if rv == nil {
+		r.ds.Add(top.pos, "add \"root\": {\"type\": \"decision\", \"branches\": [...]}", "the model has no \"root\"")
+		return m, r.ds.Sort()
+	}
+	m.Root = r.node(rv)
+	return m, r.ds.Sort()
+}
+
+func (r *jsonReader) node(root *jv) *Node {
+	type item struct {
+		v   *jv
+		dst **Node
+	}
+	var out *Node
+	stack := []item{{root, &out}}
+	for len(stack) > 0 {
+		it := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		v := it.v
+		r.nodes++
+		if r.nodes > r.limit {
+			r.ds.Add(v.pos, fmt.Sprintf("raise the limit (--max-nodes) if the model really is this large"), "the tree has more than %d nodes", r.limit)
+			return out
+		}
+		if !r.fields(v, "a node", "type", "label", "branches", "value", "uncertainty", "test") {
+			continue
+		}
+		n := &Node{Pos: v.pos, Label: r.str(v, "label", "a node", false),
+			Uncertainty: r.str(v, "uncertainty", "a node", false), Test: r.str(v, "test", "a node", false)}
+		*it.dst = n
+		switch t := r.str(v, "type", "a node", true); t {
+		case "decision":
+			n.Kind = KindDecision
+		case "chance":
+			n.Kind = KindChance
+		case "end":
+			n.Kind = KindEnd
+		case "":
+		default:
+			r.ds.Add(v.get("type").pos, "use \"decision\", \"chance\" or \"end\"", "unknown node type %q", t)
+		}
+		if n.Kind != KindChance && (n.Uncertainty != "" || n.Test != "") {
+			r.ds.Add(v.pos, "only a chance node can name an uncertainty or a test", "%s node has \"uncertainty\" or \"test\"", n.Kind)
+		}
+		if n.Uncertainty != "" && n.Test != "" {
+			r.ds.Add(v.pos, "a node either samples an uncertainty or runs a test", "node has both \"uncertainty\" and \"test\"")
+		}
+		if vv := v.get("value"); vv != nil {
+			if n.Kind != KindEnd {
+				r.ds.Add(vv.pos, "put money on the branches as \"cash\"", "only an end node has a \"value\"")
+			}
+			n.Payoff = r.num(v, "value", "an end node")
+		}
+		what := fmt.Sprintf("node %q", n.Display())
+		for _, bv := range r.array(v, "branches", what) {
+			if !r.fields(bv, "a branch", "label", "probability", "cash", "node") {
+				continue
+			}
+			b := &Branch{Pos: bv.pos, Label: r.str(bv, "label", "a branch", true),
+				Prob: r.num(bv, "probability", "a branch"), Cash: r.num(bv, "cash", "a branch")}
+			n.Branches = append(n.Branches, b)
+			if nv := bv.get("node"); nv != nil {
+				stack = append(stack, item{nv, &b.Node})
+			}
+		}
+		// Restore model order for the stack: children were pushed in order,
+		// so they pop in reverse; order of processing does not matter here
+		// because each writes only its own slot.
+	}
+	return out
+}
+
+// JSONOptions control WriteJSON.
+type JSONOptions struct {
+	// Value, when set, annotates every node with its solved value and the
+	// top level with the root's.
+	Value func(*Node) decimal.Decimal
+	// Best, when set, gives a decision node's optimal branch labels.
+	Best func(*Node) []string
+	// Probabilities writes the resolved probability on every chance branch,
+	// including those under uncertainty and test nodes (solved output).
+	Probabilities bool
+}
+
+// WriteJSON writes a resolved model in the interchange format, numbers
+// exact. With opts.Value set it writes the solved tree as `solve --json`
+// does: "value" on every node (an exact decimal string) and "best" on
+// every decision.
+func WriteJSON(w io.Writer, m *Model, opts JSONOptions) error {
+	bw := bufio.NewWriter(w)
+	jw := &jsonWriter{w: bw, opts: opts, m: m}
+	jw.model()
+	if err := bw.Flush(); err != nil {
+		return err
+	}
+	return jw.err
+}
+
+type jsonWriter struct {
+	w      *bufio.Writer
+	opts   JSONOptions
+	m      *Model
+	err    error
+	indent int
+}
+
+func (j *jsonWriter) nl() {
+	j.w.WriteByte('\n')
+	for i := 0; i < j.indent; i++ {
+		j.w.WriteString("  ")
+	}
+}
+
+func (j *jsonWriter) key(first *bool, k string) {
+	if !*first {
+		j.w.WriteByte(',')
+	}
+	*first = false
+	j.nl()
+	j.quote(k)
+	j.w.WriteString(": ")
+}
+
+func (j *jsonWriter) quote(s string) {
+	b, err := json.Marshal(s)
+	if err != nil && j.err == nil {
+		j.err = err
+	}
+	j.w.Write(b)
+}
+
+func (j *jsonWriter) open(c byte) { j.w.WriteByte(c); j.indent++ }
+func (j *jsonWriter) close(c byte, empty bool) {
+	j.indent--
+	if !empty {
+		j.nl()
+	}
+	j.w.WriteByte(c)
+}
+
+func (j *jsonWriter) model() {
+	m := j.m
+	first := true
+	j.open('{')
+	if m.Title != "" {
+		j.key(&first, "title")
+		j.quote(m.Title)
+	}
+	if m.Currency != "" {
+		j.key(&first, "currency")
+		j.quote(m.Currency)
+	}
+	j.key(&first, "objective")
+	j.quote(m.Objective.String())
+	if j.opts.Value != nil && m.Root != nil {
+		j.key(&first, "value")
+		j.quote(j.opts.Value(m.Root).String())
+	}
+	if len(m.Uncertainties) > 0 {
+		j.key(&first, "uncertainties")
+		j.open('[')
+		for i, u := range m.Uncertainties {
+			if i > 0 {
+				j.w.WriteByte(',')
+			}
+			j.nl()
+			f := true
+			j.open('{')
+			j.key(&f, "name")
+			j.quote(u.Name)
+			if u.Label != "" {
+				j.key(&f, "label")
+				j.quote(u.Label)
+			}
+			j.key(&f, "states")
+			j.open('[')
+			for k, s := range u.States {
+				if k > 0 {
+					j.w.WriteByte(',')
+				}
+				j.nl()
+				j.w.WriteString(`{"label": `)
+				j.quote(s.Label)
+				j.w.WriteString(`, "probability": ` + s.P.String() + `}`)
+			}
+			j.close(']', len(u.States) == 0)
+			j.close('}', false)
+		}
+		j.close(']', false)
+	}
+	if len(m.Tests) > 0 {
+		j.key(&first, "tests")
+		j.open('[')
+		for i, t := range m.Tests {
+			if i > 0 {
+				j.w.WriteByte(',')
+			}
+			j.nl()
+			f := true
+			j.open('{')
+			j.key(&f, "name")
+			j.quote(t.Name)
+			if t.Label != "" {
+				j.key(&f, "label")
+				j.quote(t.Label)
+			}
+			j.key(&f, "on")
+			j.quote(t.On)
+			j.key(&f, "cost")
+			j.w.WriteString(t.CostValue.String())
+			j.key(&f, "readings")
+			j.open('[')
+			u := m.Uncertainty(t.On)
+			for k, rd := range t.Readings {
+				if k > 0 {
+					j.w.WriteByte(',')
+				}
+				j.nl()
+				j.w.WriteString(`{"label": `)
+				j.quote(rd.Label)
+				j.w.WriteString(`, "likelihoods": [`)
+				for si, l := range rd.L {
+					if si > 0 {
+						j.w.WriteString(", ")
+					}
+					j.w.WriteString(`{"state": `)
+					if u != nil && si < len(u.States) {
+						j.quote(u.States[si].Label)
+					}
+					j.w.WriteString(`, "probability": ` + l.String() + `}`)
+				}
+				j.w.WriteString(`]}`)
+			}
+			j.close(']', len(t.Readings) == 0)
+			j.close('}', false)
+		}
+		j.close(']', false)
+	}
+	if m.Root != nil {
+		j.key(&first, "root")
+		j.node(m.Root)
+	}
+	j.close('}', false)
+	j.w.WriteByte('\n')
+}
+
+func (j *jsonWriter) node(n *Node) {
+	first := true
+	j.open('{')
+	j.key(&first, "type")
+	j.quote(n.Kind.String())
+	if n.Label != "" {
+		j.key(&first, "label")
+		j.quote(n.Label)
+	}
+	if n.Uncertainty != "" {
+		j.key(&first, "uncertainty")
+		j.quote(n.Uncertainty)
+	}
+	if n.Test != "" {
+		j.key(&first, "test")
+		j.quote(n.Test)
+	}
+	if j.opts.Value != nil {
+		j.key(&first, "value")
+		j.quote(j.opts.Value(n).String())
+	} else if n.Kind == KindEnd && !n.Value.IsZero() {
+		j.key(&first, "value")
+		j.w.WriteString(n.Value.String())
+	}
+	if j.opts.Best != nil && n.Kind == KindDecision {
+		j.key(&first, "best")
+		j.w.WriteByte('[')
+		for i, l := range j.opts.Best(n) {
+			if i > 0 {
+				j.w.WriteString(", ")
+			}
+			j.quote(l)
+		}
+		j.w.WriteByte(']')
+	}
+	if len(n.Branches) > 0 {
+		j.key(&first, "branches")
+		j.open('[')
+		named := n.Uncertainty != "" || n.Test != ""
+		for i, b := range n.Branches {
+			if i > 0 {
+				j.w.WriteByte(',')
+			}
+			j.nl()
+			f := true
+			j.open('{')
+			j.key(&f, "label")
+			j.quote(b.Label)
+			if n.Kind == KindChance && (!named || j.opts.Probabilities) {
+				j.key(&f, "probability")
+				j.w.WriteString(b.P.String())
+			}
+			if !b.C.IsZero() {
+				j.key(&f, "cash")
+				j.w.WriteString(b.C.String())
+			}
+			if b.Node != nil && (j.opts.Value != nil || !isPlainEnd(b.Node)) {
+				j.key(&f, "node")
+				j.node(b.Node)
+			}
+			j.close('}', false)
+		}
+		j.close(']', false)
+	}
+	j.close('}', false)
+}
+
+// isPlainEnd is an end node with nothing to say: the writer leaves it out,
+// as the reader puts it back.
+func isPlainEnd(n *Node) bool {
+	return n.Kind == KindEnd && n.Label == "" && n.Value.IsZero()
+}
