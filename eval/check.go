@@ -20,11 +20,14 @@ func (sol *Solution) Ranges() []Range {
 			continue
 		}
 		set := false
-		for j, b := range s.Node.Branches {
+		next := i + 1 // the first child; each next one follows its sibling's subtree
+		for _, b := range s.Node.Branches {
+			kid := next
+			next += int(sol.nodes[kid].size)
 			if s.Node.Kind == tree.KindChance && b.P.IsZero() {
 				continue // never happens
 			}
-			k := out[s.Kids[j].index]
+			k := out[kid]
 			lo, hi := k.Lo.Add(b.C), k.Hi.Add(b.C)
 			if !set || lo.LessThan(out[i].Lo) {
 				out[i].Lo = lo
@@ -34,7 +37,7 @@ func (sol *Solution) Ranges() []Range {
 			}
 			set = true
 		}
-		out[i].Lo = out[i].Lo.Add(s.Node.TestCost)
+		out[i].Lo = out[i].Lo.Add(s.Node.TestCost) // a test's cost is paid on every path
 		out[i].Hi = out[i].Hi.Add(s.Node.TestCost)
 	}
 	return out
@@ -53,14 +56,15 @@ func Dominated(sol *Solution) tree.Diagnostics {
 		if s.Node.Kind != tree.KindDecision {
 			continue
 		}
+		kids := s.Kids()
 		br := func(j int) Range {
-			r := rs[s.Kids[j].index]
+			r := rs[kids[j].self]
 			c := s.Node.Branches[j].C
 			return Range{r.Lo.Add(c), r.Hi.Add(c)}
 		}
-		for a := range s.Kids {
+		for a := range kids {
 			ra := br(a)
-			for b := range s.Kids {
+			for b := range kids {
 				if a == b {
 					continue
 				}

@@ -20,28 +20,23 @@ type Solution struct {
 	Model *tree.Model
 	Root  *Solved
 	nodes []Solved // every node in pre-order; Root is &nodes[0]
+	arena          // the values that outgrew int64
 }
 
-// Solved is one node of a solved tree.
+// Solved is one node of a solved tree. Its figures are methods: they are
+// kept in a compact exact form and made into decimals when asked for, so a
+// tree of millions of nodes solves without millions of allocations.
 type Solved struct {
 	Node *tree.Node
-	// Value is the expected remaining payoff from this node on, in the
-	// objective's terms; the cash on the branch into the node is not
-	// included.
-	Value decimal.Decimal
-	// Kids are the solved children, aligned with Node.Branches.
-	Kids []*Solved
-	// Best holds, for a decision node, the indices of its optimal branches
-	// in model order; more than one means a tie, and the first is the one
-	// the policy takes.
-	Best []int
-	// Parent is the node above (nil at the root) and Via the index of the
-	// branch of Parent that leads here.
-	Parent *Solved
-	Via    int
-	Depth  int
-	index  int            // position in pre-order
-	obj    tree.Objective // the model's objective, for Margin
+	sol  *Solution
+	v    fix
+	// p and c are the probability and cash of the branch into this node,
+	// copied out of the model once so the sweep reads one array.
+	p, c fix
+	// parent and via: the node above (-1 at the root) and the index of its
+	// branch that leads here; size counts the nodes in this subtree; best is
+	// the first optimal branch of a decision and nbest how many tie with it.
+	self, parent, via, depth, size, best, nbest int32
 }
 
 // ErrNotResolved is returned by Solve for a model with no tree.
@@ -49,8 +44,9 @@ var ErrNotResolved = errors.New("eval: the model has no tree (was it resolved?)"
 
 // Solve rolls the tree back: an end node is worth its payoff, a chance node
 // the probability-weighted sum over its branches of cash plus the value
-// beneath, a decision node the best such sum (max or min by the model's
-// objective). m must have been resolved without errors (tree.Model.Resolve).
+// beneath (plus a test's cost), a decision node the best such sum (max or
+// min by the model's objective; ties go to the first in model order). m
+// must have been resolved without errors (tree.Model.Resolve).
 //
 // The arithmetic is exact: only additions and multiplications of decimals.
 // Solve works without recursion, so a tree of any depth solves.
@@ -60,123 +56,201 @@ func Solve(m *tree.Model) (*Solution, error) {
 	}
 	sol := &Solution{Model: m}
 	sol.flatten()
-	obj := m.Objective
-	// Children come after their parent in pre-order, so one backward sweep
-	// sees every child before its parent.
-	for i := len(sol.nodes) - 1; i >= 0; i-- {
-		s := &sol.nodes[i]
-		n := s.Node
-		switch n.Kind {
-		case tree.KindEnd:
-			s.Value = n.Value
-		case tree.KindChance:
-			v := n.TestCost
-			for j, b := range n.Branches {
-				v = v.Add(b.P.Mul(b.C.Add(s.Kids[j].Value)))
-			}
-			s.Value = v
-		case tree.KindDecision:
-			best := -1
-			var bv decimal.Decimal
-			for j, b := range n.Branches {
-				v := b.C.Add(s.Kids[j].Value)
-				switch {
-				case best < 0 || obj.Better(v, bv):
-					best, bv = j, v
-					s.Best = append(s.Best[:0], j)
-				case v.Equal(bv):
-					s.Best = append(s.Best, j)
-				}
-			}
-			s.Value = bv
-		}
-	}
+	sol.rollback()
 	sol.Root = &sol.nodes[0]
 	return sol, nil
 }
 
-// flatten lays the tree out in pre-order in one slice, with each node's
-// children in one shared backing array.
+// flatten lays the tree out in pre-order in one slice.
 func (sol *Solution) flatten() {
-	count, edges := 0, 0
-	tree.Walk(sol.Model.Root, func(n *tree.Node, _ int) bool {
-		count++
-		edges += len(n.Branches)
-		return true
-	})
-	sol.nodes = make([]Solved, 0, count)
-	kids := make([]*Solved, edges)
+	sol.nodes = make([]Solved, 0, sol.Model.Size())
 	type item struct {
-		n      *tree.Node
-		parent *Solved
-		via    int
-		depth  int
+		b                *tree.Branch
+		parent, via, dep int32
 	}
-	stack := []item{{sol.Model.Root, nil, -1, 0}}
+	root := Solved{Node: sol.Model.Root, sol: sol, parent: -1, via: -1, best: -1}
+	sol.nodes = append(sol.nodes, root)
+	var stack []item
+	push := func(n *tree.Node, self, dep int32) {
+		bs := n.Branches
+		for j := len(bs) - 1; j >= 0; j-- {
+			stack = append(stack, item{bs[j], self, int32(j), dep})
+		}
+	}
+	push(root.Node, 0, 1)
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
-		sol.nodes = append(sol.nodes, Solved{Node: it.n, Parent: it.parent, Via: it.via, Depth: it.depth, index: len(sol.nodes), obj: sol.Model.Objective})
-		s := &sol.nodes[len(sol.nodes)-1]
-		if it.parent != nil {
-			it.parent.Kids[it.via] = s
-		}
-		nb := len(it.n.Branches)
-		s.Kids, kids = kids[:nb:nb], kids[nb:]
-		for j := nb - 1; j >= 0; j-- {
-			stack = append(stack, item{it.n.Branches[j].Node, s, j, it.depth + 1})
-		}
+		self := int32(len(sol.nodes))
+		b := it.b
+		sol.nodes = append(sol.nodes, Solved{Node: b.Node, sol: sol, self: self, parent: it.parent, via: it.via, depth: it.dep, best: -1,
+			p: sol.fixOf(b.P), c: sol.fixOf(b.C)})
+		push(b.Node, self, it.dep+1)
 	}
 }
 
-// Nodes returns every solved node in pre-order (the root first).
+// rollback sweeps backwards: in pre-order every child comes after its
+// parent, so each node's children are done when it is reached. The first
+// child of node i is i+1 and each next one follows its elder sibling's
+// subtree.
+func (sol *Solution) rollback() {
+	max := sol.Model.Objective == tree.Max
+	nodes := sol.nodes
+	for i := len(nodes) - 1; i >= 0; i-- {
+		s := &nodes[i]
+		n := s.Node
+		k := int32(i + 1)
+		switch n.Kind {
+		case tree.KindEnd:
+			s.v = sol.fixOf(n.Value)
+		case tree.KindChance:
+			v := sol.fixOf(n.TestCost)
+			for range n.Branches {
+				kid := &nodes[k]
+				v = sol.add(v, sol.mul(kid.p, sol.add(kid.c, kid.v)))
+				k += kid.size
+			}
+			s.v = v
+		case tree.KindDecision:
+			var bv fix
+			for j := range n.Branches {
+				kid := &nodes[k]
+				v := sol.add(kid.c, kid.v)
+				k += kid.size
+				c := 0
+				if s.best >= 0 {
+					c = sol.cmp(v, bv)
+					if !max {
+						c = -c
+					}
+				}
+				switch {
+				case s.best < 0 || c > 0:
+					s.best, s.nbest, bv = int32(j), 1, v
+				case c == 0:
+					s.nbest++
+				}
+			}
+			s.v = bv
+		}
+		s.size = k - int32(i)
+	}
+}
+
+// Nodes returns every solved node in pre-order (the root first, then each
+// subtree in model order).
 func (sol *Solution) Nodes() []Solved { return sol.nodes }
 
 // Value is the expected value of the whole tree.
-func (sol *Solution) Value() decimal.Decimal { return sol.Root.Value }
+func (sol *Solution) Value() decimal.Decimal { return sol.Root.Value() }
 
-// Chosen is the index of the branch the policy takes at a decision node,
-// or -1 at any other node.
-func (s *Solved) Chosen() int {
-	if len(s.Best) == 0 {
-		return -1
+// Value is the expected remaining payoff from this node on, in the
+// objective's terms; the cash on the branch into the node is not included.
+func (s *Solved) Value() decimal.Decimal { return s.sol.dec(s.v) }
+
+// Index is the node's position in Solution.Nodes.
+func (s *Solved) Index() int { return int(s.self) }
+
+// Kid returns the solved node under branch j.
+func (s *Solved) Kid(j int) *Solved {
+	i := s.Index() + 1
+	for ; j > 0; j-- {
+		i += int(s.sol.nodes[i].size)
 	}
-	return s.Best[0]
+	return &s.sol.nodes[i]
 }
 
+// Kids returns the solved children, aligned with Node.Branches.
+func (s *Solved) Kids() []*Solved {
+	out := make([]*Solved, len(s.Node.Branches))
+	i := s.Index() + 1
+	for j := range out {
+		out[j] = &s.sol.nodes[i]
+		i += int(s.sol.nodes[i].size)
+	}
+	return out
+}
+
+// Parent is the node above, nil at the root.
+func (s *Solved) Parent() *Solved {
+	if s.parent < 0 {
+		return nil
+	}
+	return &s.sol.nodes[s.parent]
+}
+
+// Via is the index of the parent's branch that leads here (-1 at the root).
+func (s *Solved) Via() int { return int(s.via) }
+
+// Depth is the number of branches from the root to this node.
+func (s *Solved) Depth() int { return int(s.depth) }
+
+// Size is the number of nodes in this subtree, the node included.
+func (s *Solved) Size() int { return int(s.size) }
+
+// Chosen is the index of the branch the policy takes at a decision node
+// (the first optimal one in model order), or -1 at any other node.
+func (s *Solved) Chosen() int { return int(s.best) }
+
 // Tied reports whether a decision has more than one optimal branch.
-func (s *Solved) Tied() bool { return len(s.Best) > 1 }
+func (s *Solved) Tied() bool { return s.nbest > 1 }
+
+// Best returns, for a decision node, the indices of its optimal branches in
+// model order; more than one means a tie. It is nil at other nodes.
+func (s *Solved) Best() []int {
+	if s.best < 0 {
+		return nil
+	}
+	if s.nbest == 1 {
+		return []int{int(s.best)}
+	}
+	bv := s.BranchValue(int(s.best))
+	out := make([]int, 0, s.nbest)
+	for j := int(s.best); j < len(s.Node.Branches); j++ {
+		if s.BranchValue(j).Equal(bv) {
+			out = append(out, j)
+		}
+	}
+	return out
+}
+
+// IsBest reports whether branch j of a decision is one of its optimal ones.
+func (s *Solved) IsBest(j int) bool {
+	for _, b := range s.Best() {
+		if b == j {
+			return true
+		}
+	}
+	return false
+}
 
 // BranchValue is the value of taking branch i: its cash plus the value of
 // the node it leads to.
 func (s *Solved) BranchValue(i int) decimal.Decimal {
-	return s.Node.Branches[i].C.Add(s.Kids[i].Value)
+	return s.Node.Branches[i].C.Add(s.Kid(i).Value())
 }
 
 // Margin is how much better the chosen branch of a decision is than the
-// best of the others (zero for a tie), always as a non-negative amount; ok
-// is false when the node is not a decision with at least two branches.
+// best of the others (zero for a tie), always as a non-negative amount, and
+// which branch that runner-up is; ok is false when the node is not a
+// decision with at least two branches.
 func (s *Solved) Margin() (margin decimal.Decimal, runnerUp int, ok bool) {
-	if s.Node.Kind != tree.KindDecision || len(s.Kids) < 2 {
+	if s.Node.Kind != tree.KindDecision || len(s.Node.Branches) < 2 {
 		return decimal.Zero, -1, false
 	}
 	c := s.Chosen()
 	if s.Tied() {
-		return decimal.Zero, s.Best[1], true
+		return decimal.Zero, s.Best()[1], true
 	}
+	min := s.sol.Model.Objective == tree.Min
 	runnerUp = -1
 	var rv decimal.Decimal
-	better := func(a, b decimal.Decimal) bool { return a.GreaterThan(b) }
-	min := s.obj == tree.Min
-	if min {
-		better = func(a, b decimal.Decimal) bool { return a.LessThan(b) }
-	}
-	for j := range s.Kids {
+	for j := range s.Node.Branches {
 		if j == c {
 			continue
 		}
 		v := s.BranchValue(j)
-		if runnerUp < 0 || better(v, rv) {
+		if runnerUp < 0 || (!min && v.GreaterThan(rv)) || (min && v.LessThan(rv)) {
 			runnerUp, rv = j, v
 		}
 	}
@@ -190,8 +264,8 @@ func (s *Solved) Margin() (margin decimal.Decimal, runnerUp int, ok bool) {
 // OnPolicy reports whether the optimal policy can reach this node: every
 // decision above it takes the branch that leads here.
 func (s *Solved) OnPolicy() bool {
-	for c := s; c.Parent != nil; c = c.Parent {
-		if c.Parent.Node.Kind == tree.KindDecision && c.Parent.Chosen() != c.Via {
+	for c := s; c.parent >= 0; c = c.Parent() {
+		if p := c.Parent(); p.Node.Kind == tree.KindDecision && p.best != c.via {
 			return false
 		}
 	}
@@ -201,8 +275,8 @@ func (s *Solved) OnPolicy() bool {
 // Path returns the branches from the root to this node.
 func (s *Solved) Path() []*tree.Branch {
 	var rev []*tree.Branch
-	for c := s; c.Parent != nil; c = c.Parent {
-		rev = append(rev, c.Parent.Node.Branches[c.Via])
+	for c := s; c.parent >= 0; c = c.Parent() {
+		rev = append(rev, c.Parent().Node.Branches[c.via])
 	}
 	for i, j := 0, len(rev)-1; i < j; i, j = i+1, j-1 {
 		rev[i], rev[j] = rev[j], rev[i]
@@ -227,26 +301,28 @@ type EndPoint struct {
 // Ends returns every end node in model order with its path probability and
 // cumulative payoff, computed in one forward sweep.
 func (sol *Solution) Ends() []EndPoint {
-	prob := make([]decimal.Decimal, len(sol.nodes))
-	pay := make([]decimal.Decimal, len(sol.nodes))
+	var a arena // Ends may run alongside other readers: its own arena
+	prob := make([]fix, len(sol.nodes))
+	pay := make([]fix, len(sol.nodes))
 	on := make([]bool, len(sol.nodes))
 	var out []EndPoint
 	for i := range sol.nodes {
 		s := &sol.nodes[i]
-		if s.Parent == nil {
-			prob[i], pay[i], on[i] = decimal.NewFromInt(1), decimal.Zero, true
+		if s.parent < 0 {
+			prob[i], pay[i], on[i] = fix{c: 1}, fix{}, true
 		} else {
-			p := s.Parent.index
-			b := s.Parent.Node.Branches[s.Via]
+			p := s.parent
+			pn := sol.nodes[p].Node
+			b := pn.Branches[s.via]
 			prob[i] = prob[p]
-			if s.Parent.Node.Kind == tree.KindChance {
-				prob[i] = prob[p].Mul(b.P)
+			if pn.Kind == tree.KindChance {
+				prob[i] = a.mul(prob[p], a.fixOf(b.P))
 			}
-			pay[i] = pay[p].Add(b.C).Add(s.Parent.Node.TestCost)
-			on[i] = on[p] && (s.Parent.Node.Kind != tree.KindDecision || s.Parent.Chosen() == s.Via)
+			pay[i] = a.add(a.add(pay[p], a.fixOf(b.C)), a.fixOf(pn.TestCost))
+			on[i] = on[p] && (pn.Kind != tree.KindDecision || sol.nodes[p].best == s.via)
 		}
 		if s.Node.Kind == tree.KindEnd {
-			out = append(out, EndPoint{Solved: s, Prob: prob[i], Payoff: pay[i].Add(s.Node.Value), OnPolicy: on[i]})
+			out = append(out, EndPoint{Solved: s, Prob: a.dec(prob[i]), Payoff: a.dec(a.add(pay[i], a.fixOf(s.Node.Value))), OnPolicy: on[i]})
 		}
 	}
 	return out

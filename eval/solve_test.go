@@ -137,7 +137,7 @@ func TestPublishedExamples(t *testing.T) {
 		if !sol.Value().Equal(d("15.9347")) {
 			t.Errorf("value = %s, want 15.9347 (the book's 15.93)", sol.Value())
 		}
-		fav, unf := sol.Root.Kids[0], sol.Root.Kids[1]
+		fav, unf := sol.Root.Kid(0), sol.Root.Kid(1)
 		if fav.Node.Branches[fav.Chosen()].Label != "Large" || unf.Node.Branches[unf.Chosen()].Label != "Medium" {
 			t.Errorf("policy: favourable → %s, unfavourable → %s; want Large, Medium",
 				fav.Node.Branches[fav.Chosen()].Label, unf.Node.Branches[unf.Chosen()].Label)
@@ -159,8 +159,8 @@ func TestMinObjectiveAndTies(t *testing.T) {
 		t.Fatalf("value = %s, want 250", sol.Value())
 	}
 	r := sol.Root
-	if len(r.Best) != 3 || r.Chosen() != 0 {
-		t.Fatalf("best = %v, want all three tied with the first taken", r.Best)
+	if len(r.Best()) != 3 || r.Chosen() != 0 {
+		t.Fatalf("best = %v, want all three tied with the first taken", r.Best())
 	}
 	if mg, _, _ := r.Margin(); !mg.IsZero() {
 		t.Errorf("margin of a tie = %s, want 0", mg)
@@ -327,7 +327,7 @@ func TestRollbackMatchesBigRat(t *testing.T) {
 		// Every node's value, not just the root's.
 		for j := range sol.Nodes() {
 			s := &sol.Nodes()[j]
-			if got := rat(s.Value); got.Cmp(ratRollback(m, s.Node)) != 0 {
+			if got := rat(s.Value()); got.Cmp(ratRollback(m, s.Node)) != 0 {
 				t.Fatalf("tree %d node %d: %s vs %s", i, j, got.RatString(), ratRollback(m, s.Node).RatString())
 			}
 		}

@@ -79,6 +79,17 @@ type Model struct {
 	// Tests are imperfect tests on an uncertainty.
 	Tests []*Test
 	Root  *Node
+
+	size int // nodes counted by the last Resolve
+}
+
+// Size is the number of nodes in the tree, as counted by the last Resolve
+// (or counted now if the model was never resolved).
+func (m *Model) Size() int {
+	if m.size > 0 {
+		return m.size
+	}
+	return Count(m.Root)
 }
 
 // Param is a named input: `let name = expr in low .. high`.

@@ -2,6 +2,7 @@ package tree
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 
 	"github.com/shopspring/decimal"
@@ -341,7 +342,35 @@ func Posterior(u *Uncertainty, obs *Observation) (post []decimal.Decimal, margin
 	return post, marginal
 }
 
-func (r *resolver) posterior(u *Uncertainty, obs *Observation) []decimal.Decimal {
+// knownState records that a chance node on an uncertainty was passed on the
+// way down through one of its states: below it the state is known.
+type knownState struct {
+	u    string
+	s    int
+	prev *knownState
+}
+
+func (k *knownState) state(u string) int {
+	for ; k != nil; k = k.prev {
+		if k.u == u {
+			return k.s
+		}
+	}
+	return -1
+}
+
+// posterior is P(state | what is known at the node): certainty when a chance
+// node on u was passed above it (one uncertainty is one event, however often
+// it occurs), otherwise Bayes' rule on the readings seen.
+func (r *resolver) posterior(u *Uncertainty, obs *Observation, known *knownState) []decimal.Decimal {
+	if s := known.state(u.Name); s >= 0 {
+		p := make([]decimal.Decimal, len(u.States))
+		for i := range p {
+			p[i] = decimal.Zero
+		}
+		p[s] = one
+		return p
+	}
 	if obs == nil {
 		p := make([]decimal.Decimal, len(u.States))
 		for i, s := range u.States {
@@ -363,18 +392,22 @@ func (r *resolver) posterior(u *Uncertainty, obs *Observation) []decimal.Decimal
 // tree walks the tree iteratively (deep trees must not overflow the stack).
 func (r *resolver) tree() {
 	type item struct {
-		n   *Node
-		obs *Observation
+		n     *Node
+		obs   *Observation
+		known *knownState
 	}
-	stack := []item{{r.m.Root, nil}}
+	stack := []item{{r.m.Root, nil, nil}}
 	zeroWarned := map[*Test]bool{}
+	r.m.size = 0
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
 		n := it.n
-		what := fmt.Sprintf("%q", n.Display())
+		r.m.size++
+		what := strconv.Quote(n.Display())
 		n.TestCost = decimal.Zero
-		var childObs []*Observation // per branch, when a test is read here
+		var childObs []*Observation  // per branch, when a test is read here
+		var childKnown []*knownState // per branch, when an uncertainty is sampled here
 		switch n.Kind {
 		case KindEnd:
 			n.Value = decimal.Zero
@@ -404,8 +437,16 @@ func (r *resolver) tree() {
 					r.ds.Add(n.Pos, "declare it with `uncertainty "+n.Uncertainty+"` above the tree", "unknown uncertainty %q", n.Uncertainty)
 					break
 				}
-				post := r.posterior(u, it.obs)
-				r.matchLabels(n, fmt.Sprintf("uncertainty %q", u.Name), stateLabels(u), func(b *Branch, i int) { b.P = post[i] })
+				post := r.posterior(u, it.obs, it.known)
+				childKnown = make([]*knownState, len(n.Branches))
+				r.matchLabels(n, fmt.Sprintf("uncertainty %q", u.Name), stateLabels(u), func(b *Branch, i int) {
+					b.P = post[i]
+					for bi := range n.Branches {
+						if n.Branches[bi] == b {
+							childKnown[bi] = &knownState{u: u.Name, s: i, prev: it.known}
+						}
+					}
+				})
 			case n.Test != "":
 				t := r.test[n.Test]
 				if t == nil {
@@ -421,7 +462,7 @@ func (r *resolver) tree() {
 				} else {
 					n.TestCost = t.CostValue.Neg()
 				}
-				post := r.posterior(u, it.obs)
+				post := r.posterior(u, it.obs, it.known)
 				childObs = make([]*Observation, len(n.Branches))
 				r.matchLabels(n, fmt.Sprintf("test %q", t.Name), readingLabels(t), func(b *Branch, ri int) {
 					p := decimal.Zero
@@ -474,7 +515,11 @@ func (r *resolver) tree() {
 			if childObs != nil && childObs[i] != nil {
 				obs = childObs[i]
 			}
-			stack = append(stack, item{b.Node, obs})
+			known := it.known
+			if childKnown != nil && childKnown[i] != nil {
+				known = childKnown[i]
+			}
+			stack = append(stack, item{b.Node, obs, known})
 		}
 	}
 }
