@@ -25,7 +25,10 @@ import (
 //
 // Numbers are JSON numbers or decimal strings, read exactly (never through
 // float64). "uncertainties", "tests", and the node fields "uncertainty" and
-// "test" are forkcast's extension for named events and imperfect tests.
+// "test" are forkcast's extension for named events and imperfect tests. The
+// annotations `solve --json` adds ("value" at the top and on inner nodes,
+// "best" on decisions) are accepted and recomputed, so solved output reads
+// back as a model.
 
 // jv is a JSON value with the position it starts at.
 type jv struct {
@@ -251,7 +254,7 @@ func ReadJSON(src []byte, limit int) (*Model, Diagnostics) {
 		return nil, r.ds.Sort()
 	}
 	m := &Model{}
-	if !r.fields(top, "the model", "title", "currency", "objective", "root", "uncertainties", "tests") {
+	if !r.fields(top, "the model", "title", "currency", "objective", "value", "root", "uncertainties", "tests") {
 		return nil, r.ds
 	}
 	m.Title = r.str(top, "title", "the model", false)
@@ -331,7 +334,7 @@ func (r *jsonReader) node(root *jv) *Node {
 			r.ds.Add(v.pos, fmt.Sprintf("raise the limit (--max-nodes) if the model really is this large"), "the tree has more than %d nodes", r.limit)
 			return out
 		}
-		if !r.fields(v, "a node", "type", "label", "branches", "value", "uncertainty", "test") {
+		if !r.fields(v, "a node", "type", "label", "branches", "value", "best", "uncertainty", "test") {
 			continue
 		}
 		n := &Node{Pos: v.pos, Label: r.str(v, "label", "a node", false),
@@ -354,11 +357,12 @@ func (r *jsonReader) node(root *jv) *Node {
 		if n.Uncertainty != "" && n.Test != "" {
 			r.ds.Add(v.pos, "a node either samples an uncertainty or runs a test", "node has both \"uncertainty\" and \"test\"")
 		}
-		if vv := v.get("value"); vv != nil {
-			if n.Kind != KindEnd {
-				r.ds.Add(vv.pos, "put money on the branches as \"cash\"", "only an end node has a \"value\"")
-			}
+		// "value" on an inner node and "best" are what `solve --json`
+		// writes: accepted so solved output reads back, and recomputed.
+		if n.Kind == KindEnd {
 			n.Payoff = r.num(v, "value", "an end node")
+		} else if vv := v.get("value"); vv != nil {
+			r.num(v, "value", "a node")
 		}
 		what := fmt.Sprintf("node %q", n.Display())
 		for _, bv := range r.array(v, "branches", what) {
@@ -387,7 +391,10 @@ type JSONOptions struct {
 	// Best, when set, gives a decision node's optimal branch labels.
 	Best func(*Node) []string
 	// Probabilities writes the resolved probability on every chance branch,
-	// including those under uncertainty and test nodes (solved output).
+	// including those under uncertainty and test nodes (revised by Bayes'
+	// rule where a test was read). Such output is for reading by people and
+	// programs; ReadJSON refuses it, as those probabilities come from the
+	// declarations.
 	Probabilities bool
 }
 
