@@ -30,9 +30,6 @@ type Solved struct {
 	Node *tree.Node
 	sol  *Solution
 	v    fix
-	// p and c are the probability and cash of the branch into this node,
-	// copied out of the model once so the sweep reads one array.
-	p, c fix
 	// parent and via: the node above (-1 at the root) and the index of its
 	// branch that leads here; size counts the nodes in this subtree; best is
 	// the first optimal branch of a decision and nbest how many tie with it.
@@ -83,8 +80,7 @@ func (sol *Solution) flatten() {
 		stack = stack[:len(stack)-1]
 		self := int32(len(sol.nodes))
 		b := it.b
-		sol.nodes = append(sol.nodes, Solved{Node: b.Node, sol: sol, self: self, parent: it.parent, via: it.via, depth: it.dep, best: -1,
-			p: sol.fixOf(b.P), c: sol.fixOf(b.C)})
+		sol.nodes = append(sol.nodes, Solved{Node: b.Node, sol: sol, self: self, parent: it.parent, via: it.via, depth: it.dep, best: -1})
 		push(b.Node, self, it.dep+1)
 	}
 }
@@ -105,17 +101,17 @@ func (sol *Solution) rollback() {
 			s.v = sol.fixOf(n.Value)
 		case tree.KindChance:
 			v := sol.fixOf(n.TestCost)
-			for range n.Branches {
+			for _, b := range n.Branches {
 				kid := &nodes[k]
-				v = sol.add(v, sol.mul(kid.p, sol.add(kid.c, kid.v)))
+				v = sol.add(v, sol.mul(sol.fixOf(b.P), sol.add(sol.fixOf(b.C), kid.v)))
 				k += kid.size
 			}
 			s.v = v
 		case tree.KindDecision:
 			var bv fix
-			for j := range n.Branches {
+			for j, b := range n.Branches {
 				kid := &nodes[k]
-				v := sol.add(kid.c, kid.v)
+				v := sol.add(sol.fixOf(b.C), kid.v)
 				k += kid.size
 				c := 0
 				if s.best >= 0 {
