@@ -1,0 +1,938 @@
+package lang
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"github.com/alecthomas/participle/v2/lexer"
+	"github.com/forkcast/forkcast/tree"
+	"github.com/shopspring/decimal"
+)
+
+// frameKind says what an open line takes under it.
+type frameKind uint8
+
+const (
+	fLeaf     frameKind = iota // takes nothing
+	fUnc                       // an uncertainty: its states
+	fTestDecl                  // a test declaration: its readings
+	fSubtree                   // a subtree: one node
+	fNode                      // a decision, chance or test node: its branches
+	fBranch                    // a branch: one node
+	fBroken                    // a line that could not be read: lines under it are read but not placed
+)
+
+// frame is a line that lines below it may be indented under.
+type frame struct {
+	kind        frameKind
+	indent      int
+	childIndent int // -1 until the first line under it is seen
+	line        int
+	what        string // how messages name it: `let x`; empty: see desc
+	noun, name  string
+	label       string
+	hasLabel    bool
+	lastChild   *frame
+	lastLine    int
+	node        *tree.Node
+	branch      *tree.Branch
+	sub         *subtreeDef
+	unc         *tree.Uncertainty
+	test        *tree.Test
+	hasNode     bool // a branch or subtree that already has its node
+	nodeLine    int
+	owner       *subtreeDef // the subtree the line is in; nil for the main tree
+	detached    bool        // not part of the model (placed wrongly, reported)
+	silent      bool        // under a line that could not be read: no structure checks
+}
+
+func brokenFrame(owner *subtreeDef) *frame {
+	return &frame{kind: fBroken, silent: true, what: "this line", owner: owner}
+}
+
+// desc is how messages name the line: its what, or noun, name and quoted
+// label (built only when a message needs it).
+func (f *frame) desc() string {
+	if f.what != "" {
+		return f.what
+	}
+	s := f.noun
+	if f.name != "" {
+		s += " " + f.name
+	}
+	if f.hasLabel {
+		s += " " + strconv.Quote(f.label)
+	}
+	return s
+}
+
+// subtreeDef is a `subtree NAME` definition.
+type subtreeDef struct {
+	name   string
+	pos    tree.Pos
+	line   int
+	root   *tree.Node // may hold use placeholders
+	deps   []*useRef  // the uses inside it
+	used   bool
+	broken bool // in a cycle, or empty: uses of it expand to nothing
+	size   int  // nodes after expansion, saturated at the limit + 1
+}
+
+// useRef is one `use NAME` line.
+type useRef struct {
+	name     string
+	pos      tree.Pos
+	width    int
+	owner    *subtreeDef
+	detached bool
+	target   *subtreeDef
+}
+
+// kindUse marks a placeholder node standing for `use NAME` until the
+// subtree is expanded; Label holds the name. None is left in a returned
+// model.
+const kindUse tree.Kind = 0xff
+
+// nodeRef is a node that names an uncertainty or a test.
+type nodeRef struct {
+	n     *tree.Node
+	pos   tree.Pos // of the name
+	width int
+}
+
+// pendingCash is a branch's gain and cost, combined into Branch.Cash once
+// the objective is known (the objective line may come last).
+type pendingCash struct {
+	b          *tree.Branch
+	gain, cost tree.Expr
+	gainFirst  bool
+}
+
+type builder struct {
+	limit      int
+	m          *tree.Model
+	ds         tree.Diagnostics
+	stack      []*frame
+	headers    map[lineKind]int
+	subs       map[string]*subtreeDef
+	subOrder   []*subtreeDef
+	uses       []*useRef
+	useAt      map[*tree.Node]*useRef // placeholder → its use line
+	refs       []nodeRef              // chance NAME and test NAME nodes, checked in finish
+	cash       []pendingCash
+	rootLine   int
+	sawNodeTop bool
+	firstLine  int
+}
+
+func (b *builder) errAt(p tree.Pos, n int, hint, format string, args ...any) {
+	b.ds = append(b.ds, tree.Diagnostic{Severity: tree.Error, Pos: p, Len: n, Summary: fmt.Sprintf(format, args...), Hint: hint})
+}
+
+func tokPos(t lexer.Token) tree.Pos { return tree.Pos{Line: t.Pos.Line, Col: t.Pos.Column} }
+
+// tokWidth is the width of a token in characters, found from the line.
+func tokWidth(lx lexed, t lexer.Token) int {
+	if i := tokenIndex(lx, t); i >= 0 {
+		return lx.width[i]
+	}
+	return len([]rune(t.Value))
+}
+
+// unquote returns a label's text from its token ("..." with \" and \\).
+func unquote(v string) string {
+	v = strings.TrimPrefix(v, `"`)
+	if !strings.Contains(v, `\`) {
+		return strings.TrimSuffix(v, `"`)
+	}
+	var b strings.Builder
+	for i := 0; i < len(v); i++ {
+		c := v[i]
+		if c == '\\' && i+1 < len(v) {
+			b.WriteByte(v[i+1])
+			i++
+			continue
+		}
+		if c == '"' {
+			break
+		}
+		b.WriteByte(c)
+	}
+	return b.String()
+}
+
+// add places one logical line.
+func (b *builder) add(l *srcLine) {
+	b.ds = append(b.ds, l.diags...)
+	if len(l.lx.toks) == 0 {
+		return
+	}
+	if b.firstLine == 0 {
+		b.firstLine = l.num
+	}
+	w := l.indent
+	for len(b.stack) > 0 && b.stack[len(b.stack)-1].indent >= w {
+		b.stack = b.stack[:len(b.stack)-1]
+	}
+	var parent *frame
+	if len(b.stack) > 0 {
+		parent = b.stack[len(b.stack)-1]
+		switch {
+		case parent.childIndent < 0:
+			parent.childIndent = w
+		case parent.childIndent != w && !l.tab && !parent.silent:
+			hint := fmt.Sprintf("line it up with %s on line %d (%s) or with %s on line %d (%s)",
+				parent.lastChild.desc(), parent.lastLine, spaces(parent.childIndent), parent.desc(), parent.line, spaces(parent.indent))
+			b.errAt(l.pos(), l.firstWidth(), hint, "the indentation (%s) does not line up with any line above", spaces(w))
+		}
+	} else if w > 0 && !l.tab {
+		b.errAt(l.pos(), l.firstWidth(), "start top-level lines at the left edge; indent a line only to put it under the line above",
+			"this line is indented, but there is no line above it to belong to")
+	}
+	f := b.place(l, parent)
+	f.indent, f.childIndent, f.line = w, -1, l.num
+	if parent != nil {
+		parent.lastChild, parent.lastLine = f, l.num
+		if parent.silent {
+			f.silent = true
+		}
+		if parent.detached {
+			f.detached = true
+		}
+	}
+	b.stack = append(b.stack, f)
+}
+
+func spaces(n int) string {
+	if n == 0 {
+		return "at the left edge"
+	}
+	if n == 1 {
+		return "1 space"
+	}
+	return fmt.Sprintf("%d spaces", n)
+}
+
+// place reads a line in its context and returns its frame.
+func (b *builder) place(l *srcLine, parent *frame) *frame {
+	silent := parent != nil && parent.silent
+	var owner *subtreeDef
+	if parent != nil {
+		owner = parent.owner
+	}
+	role := roleBranch
+	if parent != nil {
+		switch parent.kind {
+		case fUnc:
+			role = roleState
+		case fTestDecl:
+			role = roleReading
+		}
+	}
+	if l.kind == kUnknown && !silent && parent != nil && (parent.kind == fNode || parent.kind == fUnc || parent.kind == fTestDecl) &&
+		!(len(l.lx.toks) > 1 && l.lx.toks[1].Type == tokString) {
+		b.bareLabel(l, role)
+	}
+	if l.err != nil && !l.lx.lexErr {
+		b.ds = append(b.ds, syntaxError(l.err, l.kind, role, l.lx))
+	}
+	if parent == nil && (l.kind == kDecision || l.kind == kChance || l.kind == kUse || l.kind == kTest && !isTestDecl(l)) {
+		b.sawNodeTop = true
+	}
+	first := l.first()
+	switch l.kind {
+	case kUnknown:
+		if !silent && !l.lx.lexErr {
+			b.unknownKeyword(l, parent)
+		}
+		return brokenFrame(owner)
+	case kStray:
+		if !silent && !l.lx.lexErr {
+			hint := "a line starts with a keyword (" + strings.Join(topKeywords, ", ") + ") or with a quoted label"
+			if first.Value == "gain" || first.Value == "cost" {
+				hint = "gain and cost go on the branch's own line, after its label: \"Label\" gain 100"
+			}
+			b.errAt(l.pos(), l.firstWidth(), hint, "a line cannot start with %s", the(describe(first)))
+		}
+		return brokenFrame(owner)
+	case kRisk:
+		if !silent {
+			b.errAt(l.pos(), l.firstWidth(), "remove this line: for now models are solved by expected value (risk neutral)",
+				"risk attitude is not supported yet")
+		}
+		return &frame{kind: fLeaf, what: "the risk line", owner: owner}
+	}
+	if l.ast == nil {
+		if parent != nil && parent.kind == fBranch && isNodeKind(l.kind) {
+			parent.hasNode = true
+		}
+		return brokenFrame(owner)
+	}
+	if silent {
+		// Read for its own mistakes, placed nowhere.
+		b.lower(l, parent, role, true)
+		return brokenFrame(owner)
+	}
+	return b.lower(l, parent, role, false)
+}
+
+func isNodeKind(k lineKind) bool {
+	return k == kDecision || k == kChance || k == kUse || k == kTest
+}
+
+func isTestDecl(l *srcLine) bool {
+	if t, ok := l.ast.(*gTest); ok {
+		return t.On != nil
+	}
+	for _, t := range l.lx.toks {
+		if t.Type == tokKeyword && t.Value == "on" {
+			return true
+		}
+	}
+	return false
+}
+
+// bareLabel handles a line under a node (or uncertainty, or test) that
+// starts with unquoted words: most likely a label without its quotes. It is
+// reported and the line is read as if the words were quoted.
+func (b *builder) bareLabel(l *srcLine, role itemRole) {
+	toks := l.lx.toks
+	n := 0
+	for n < len(toks) {
+		t := toks[n]
+		if t.Type == tokIdent || t.Type == tokKeyword && (t.Value == "on" || t.Value == "in" || t.Value == "if") {
+			n++
+			continue
+		}
+		break
+	}
+	last := n - 1
+	end := toks[last].Pos.Column + l.lx.width[last]
+	words := make([]string, n)
+	for i := range n {
+		words[i] = toks[i].Value
+	}
+	text := strings.Join(words, " ")
+	b.errAt(l.pos(), end-toks[0].Pos.Column, fmt.Sprintf("write it as %q", text), "the label must be in double quotes")
+	// Read the rest of the line with the label quoted.
+	nt := append([]lexer.Token{{Type: tokString, Value: `"` + text + `"`, Pos: toks[0].Pos}}, toks[n:]...)
+	nw := append([]int{end - toks[0].Pos.Column}, l.lx.width[n:]...)
+	lx := lexed{toks: nt, width: nw, endCol: l.lx.endCol, lexErr: true}
+	l.lx, l.kind = lx, kItem
+	l.ast, l.err = nil, nil
+	if !lx.noParse {
+		g, err := parseWith(getParsers().item, nt, lexer.Position{Line: l.num, Column: lx.endCol})
+		if err != nil {
+			d := syntaxError(err, kItem, role, lx)
+			b.ds = append(b.ds, d)
+		} else {
+			l.ast = g
+		}
+	}
+}
+
+func (b *builder) unknownKeyword(l *srcLine, parent *frame) {
+	first := l.first()
+	list := topKeywords
+	hint := "a line starts with one of: " + strings.Join(topKeywords, ", ") + "; or with a quoted label"
+	if parent != nil && parent.kind == fBranch || parent != nil && parent.kind == fSubtree {
+		list = nodeKeywords
+		hint = "under " + parent.desc() + " goes a node: " + strings.Join(nodeKeywords, ", ")
+	}
+	msg := fmt.Sprintf("unknown keyword %q", first.Value)
+	if s := suggest(strings.ToLower(first.Value), list); s != "" {
+		msg += fmt.Sprintf(" (did you mean `%s`?)", s)
+	} else if lk, ok := lineKinds[strings.ToLower(first.Value)]; ok && lk != kRisk {
+		msg += fmt.Sprintf(" (keywords are lower case: `%s`)", strings.ToLower(first.Value))
+	}
+	b.errAt(l.pos(), l.firstWidth(), hint, "%s", msg)
+}
+
+// topOnly reports a declaration that is indented; it returns false then.
+func (b *builder) topOnly(l *srcLine, parent *frame, what string) bool {
+	if parent == nil {
+		return true
+	}
+	b.errAt(l.pos(), l.firstWidth(), "remove the indentation: "+what+" stands at the left edge, outside the tree",
+		"%s goes at the top level, not indented under %s", what, parent.desc())
+	return false
+}
+
+// lower turns a parsed line into model parts and returns its frame. When
+// quiet is set the line is checked but nothing is attached and no
+// structure errors are reported.
+func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *frame {
+	var owner *subtreeDef
+	if parent != nil {
+		owner = parent.owner
+	}
+	if quiet {
+		parent = nil
+	}
+	switch g := l.ast.(type) {
+	case *gTitle:
+		return b.header(l, parent, quiet, "the title line", func() {
+			if g.Label == nil {
+				b.errAt(tokPos(g.Kw), tokWidth(l.lx, g.Kw), `write the title in double quotes: title "Which supplier"`, "the title line has no title")
+				return
+			}
+			b.m.Title = b.label(l, g.Label, "the title")
+		})
+	case *gCurrency:
+		return b.header(l, parent, quiet, "the currency line", func() {
+			if g.Code == nil {
+				b.errAt(tokPos(g.Kw), tokWidth(l.lx, g.Kw), "write the currency's code after it, such as currency EUR", "the currency line has no currency")
+				return
+			}
+			code := g.Code.Value
+			if g.Code.Type == tokString {
+				code = unquote(code)
+			}
+			b.m.Currency = code
+		})
+	case *gObjective:
+		return b.header(l, parent, quiet, "the objective line", func() {
+			hint := "`objective max` maximises net value (gains minus costs); `objective min` minimises net cost (costs minus gains)"
+			if g.Word == nil {
+				b.errAt(tokPos(g.Kw), tokWidth(l.lx, g.Kw), hint, "the objective line does not say max or min")
+				return
+			}
+			o, ok := tree.ParseObjective(g.Word.Value)
+			if !ok || g.Word.Value == "" {
+				b.errAt(tokPos(*g.Word), tokWidth(l.lx, *g.Word), hint, "the objective is max or min, not %s", g.Word.Value)
+				return
+			}
+			b.m.Objective = o
+		})
+	case *gLet:
+		if !quiet && !b.topOnly(l, parent, "a let") {
+			return brokenFrame(owner)
+		}
+		p := &tree.Param{Name: g.Name.Value, Pos: tokPos(g.Name)}
+		p.Expr = b.expr(g.Value, ctxLet, l.lx)
+		if g.In != nil {
+			p.Low = b.expr(g.Low, ctxLet, l.lx)
+			p.High = b.expr(g.High, ctxLet, l.lx)
+		}
+		if !quiet {
+			b.m.Params = append(b.m.Params, p)
+		}
+		return &frame{kind: fLeaf, what: "let " + p.Name}
+	case *gUncertainty:
+		if !quiet && !b.topOnly(l, parent, "an uncertainty") {
+			return brokenFrame(owner)
+		}
+		u := &tree.Uncertainty{Name: g.Name.Value, Pos: tokPos(g.Name)}
+		if g.Label != nil {
+			u.Label = b.labelTok(l, *g.Label)
+		}
+		if quiet {
+			return brokenFrame(owner)
+		}
+		b.m.Uncertainties = append(b.m.Uncertainties, u)
+		return &frame{kind: fUnc, what: "uncertainty " + u.Name, unc: u}
+	case *gTest:
+		if g.On != nil {
+			if !quiet && parent != nil {
+				b.errAt(l.pos(), l.firstWidth(), "declare the test at the top level; in the tree, run it with `test "+g.Name.Value+"`",
+					"a test is declared at the top level, not under %s", parent.desc())
+				return brokenFrame(owner)
+			}
+			t := &tree.Test{Name: g.Name.Value, Pos: tokPos(g.Name), On: g.Unc.Value}
+			if g.Label != nil {
+				t.Label = b.labelTok(l, *g.Label)
+			}
+			if g.Cost != nil {
+				t.Cost = b.expr(g.Cost, ctxCash, l.lx)
+			}
+			if quiet {
+				return brokenFrame(owner)
+			}
+			b.m.Tests = append(b.m.Tests, t)
+			return &frame{kind: fTestDecl, what: "test " + t.Name, test: t}
+		}
+		n := &tree.Node{Kind: tree.KindChance, Test: g.Name.Value, Pos: tokPos(g.Kw)}
+		b.refs = append(b.refs, nodeRef{n, tokPos(g.Name), tokWidth(l.lx, g.Name)})
+		if g.Label != nil {
+			n.Label = b.labelTok(l, *g.Label)
+		}
+		return b.placeNode(l, parent, n, "test", g.Name.Value, g.Label != nil, quiet)
+	case *gSubtree:
+		if !quiet && !b.topOnly(l, parent, "a subtree") {
+			return brokenFrame(owner)
+		}
+		if quiet {
+			return brokenFrame(owner)
+		}
+		d := &subtreeDef{name: g.Name.Value, pos: tokPos(g.Name), line: l.num}
+		if prev := b.subs[d.name]; prev != nil {
+			b.errAt(d.pos, tokWidth(l.lx, g.Name), fmt.Sprintf("it was first defined on line %d; give this one another name", prev.line),
+				"subtree %q is defined twice", d.name)
+		} else {
+			b.subs[d.name] = d
+		}
+		b.subOrder = append(b.subOrder, d)
+		return &frame{kind: fSubtree, what: "subtree " + d.name, sub: d, owner: d}
+	case *gDecision:
+		n := &tree.Node{Kind: tree.KindDecision, Pos: tokPos(g.Kw)}
+		if g.Label == nil {
+			b.errAt(tokPos(g.Kw), tokWidth(l.lx, g.Kw), `write its label in double quotes after it: decision "Which supplier"`, "the decision has no label")
+		} else {
+			n.Label = b.label(l, g.Label, "the label")
+		}
+		return b.placeNode(l, parent, n, "decision", "", true, quiet)
+	case *gChance:
+		n := &tree.Node{Kind: tree.KindChance, Pos: tokPos(g.Kw)}
+		if g.Name != nil {
+			n.Uncertainty = g.Name.Value
+			b.refs = append(b.refs, nodeRef{n, tokPos(*g.Name), tokWidth(l.lx, *g.Name)})
+		}
+		if g.Label != nil {
+			n.Label = b.labelTok(l, *g.Label)
+		}
+		if g.Name == nil && g.Label == nil {
+			b.errAt(tokPos(g.Kw), tokWidth(l.lx, g.Kw),
+				`write chance "Label" for a chance node with its own probabilities, or chance NAME for a declared uncertainty`,
+				"the chance node has no label")
+		}
+		return b.placeNode(l, parent, n, "chance", n.Uncertainty, g.Label != nil, quiet)
+	case *gUse:
+		n := &tree.Node{Kind: kindUse, Label: g.Name.Value, Pos: tokPos(g.Kw)}
+		f := b.placeNode(l, parent, n, "use", g.Name.Value, false, quiet)
+		if f.kind != fBroken {
+			f.kind = fLeaf
+		}
+		u := &useRef{name: g.Name.Value, pos: tokPos(g.Name), width: tokWidth(l.lx, g.Name), owner: f.owner, detached: f.detached || quiet}
+		b.uses = append(b.uses, u)
+		b.useAt[n] = u
+		return f
+	case *gItem:
+		return b.placeItem(l, g, parent, role, quiet)
+	}
+	return brokenFrame(owner)
+}
+
+// header sets a header once, checking it is at the top level.
+func (b *builder) header(l *srcLine, parent *frame, quiet bool, what string, set func()) *frame {
+	f := &frame{kind: fLeaf, what: what}
+	if quiet {
+		return f
+	}
+	if !b.topOnly(l, parent, what) {
+		return &frame{kind: fBroken, silent: true, what: what}
+	}
+	if prev := b.headers[l.kind]; prev != 0 {
+		b.errAt(l.pos(), l.firstWidth(), fmt.Sprintf("it was first given on line %d; keep one", prev), "the %s is given twice", strings.TrimSuffix(strings.TrimPrefix(what, "the "), " line"))
+		return f
+	}
+	b.headers[l.kind] = l.num
+	set()
+	return f
+}
+
+// label reads a title or decision label, reporting one that is not quoted.
+func (b *builder) label(l *srcLine, g *gLabel, what string) string {
+	if g.Str != nil {
+		return b.labelTok(l, *g.Str)
+	}
+	words := make([]string, len(g.Bare))
+	for i, w := range g.Bare {
+		words[i] = w.Tok.Value
+	}
+	text := strings.Join(words, " ")
+	first, last := g.Bare[0].Tok, g.Bare[len(g.Bare)-1].Tok
+	n := last.Pos.Column + tokWidth(l.lx, last) - first.Pos.Column
+	b.errAt(tokPos(first), n, fmt.Sprintf("write it as %q", text), "%s must be in double quotes", what)
+	return text
+}
+
+// labelTok reads a quoted label, reporting one that is empty.
+func (b *builder) labelTok(l *srcLine, t lexer.Token) string {
+	s := unquote(t.Value)
+	if strings.TrimSpace(s) == "" && !l.lx.lexErr {
+		b.errAt(tokPos(t), tokWidth(l.lx, t), "write what it stands for between the quotes", "the label is empty")
+	}
+	return s
+}
+
+// placeNode attaches a node where its line stands.
+func (b *builder) placeNode(l *srcLine, parent *frame, n *tree.Node, noun, name string, hasLabel, quiet bool) *frame {
+	f := &frame{kind: fNode, node: n, noun: noun, name: name, label: n.Label, hasLabel: hasLabel}
+	if parent != nil {
+		f.owner = parent.owner
+	}
+	if quiet {
+		f.detached = true
+		return f
+	}
+	detach := func(hint, format string, args ...any) *frame {
+		b.errAt(l.pos(), l.firstWidth(), hint, format, args...)
+		f.detached = true
+		return f
+	}
+	if parent == nil {
+		if b.m.Root == nil && b.rootLine == 0 {
+			b.m.Root, b.rootLine = n, l.num
+			return f
+		}
+		return detach("a model has one tree, with a single node at the top; make the alternatives branches of one decision",
+			"a second root node: the tree already starts on line %d", b.rootLine)
+	}
+	switch parent.kind {
+	case fSubtree:
+		if parent.hasNode {
+			return detach("a subtree holds exactly one node; put several under one decision as its branches, or define more subtrees",
+				"%s already has its node (line %d)", parent.desc(), parent.nodeLine)
+		}
+		parent.sub.root, parent.hasNode, parent.nodeLine = n, true, l.num
+	case fBranch:
+		if parent.hasNode {
+			return detach("a branch leads to one node; give each node its own branch",
+				"%s already leads to a node (line %d)", parent.desc(), parent.nodeLine)
+		}
+		parent.branch.Node, parent.hasNode, parent.nodeLine = n, true, l.num
+	case fNode:
+		return detach(fmt.Sprintf("the lines under %s are its branches, each starting with a quoted label; put a branch such as \"Go ahead\" above this line and indent the node under it", parent.desc()),
+			"a node where a branch is expected")
+	case fUnc:
+		return detach("under an uncertainty go its states: a quoted label and a probability each, such as \"On time\" 55%",
+			"a node cannot go under %s", parent.desc())
+	case fTestDecl:
+		return detach("under a test declaration go its readings, such as \"Alarm\" 90% if \"Defective\", 8% if \"Sound\"",
+			"a node cannot go under %s", parent.desc())
+	default:
+		return detach(b.leafHint(parent), "%s takes no lines under it", parent.desc())
+	}
+	return f
+}
+
+func (b *builder) leafHint(f *frame) string {
+	if strings.HasPrefix(f.desc(), "use ") {
+		return "a use line stands for the whole subtree; to change what is under it, change the subtree"
+	}
+	return fmt.Sprintf("remove the indentation, or move the line to where it belongs (the line above is %s, on line %d)", f.desc(), f.line)
+}
+
+// placeItem reads a quoted-label line as a branch, a state or a reading,
+// by what it is under.
+func (b *builder) placeItem(l *srcLine, g *gItem, parent *frame, role itemRole, quiet bool) *frame {
+	owner := (*subtreeDef)(nil)
+	if parent != nil {
+		owner = parent.owner
+	}
+	label := b.labelTok(l, g.Label)
+	lp, lw := tokPos(g.Label), tokWidth(l.lx, g.Label)
+	if quiet {
+		b.itemExprs(l, g)
+		return brokenFrame(owner)
+	}
+	if parent == nil {
+		b.errAt(lp, lw, "indent it under the decision or chance node it belongs to (or under its uncertainty or test)",
+			"a branch line with no node above it")
+		return brokenFrame(owner)
+	}
+	switch parent.kind {
+	case fNode:
+		br := b.branch(l, g, label)
+		parent.node.Branches = append(parent.node.Branches, br)
+		return &frame{kind: fBranch, noun: "branch", label: label, hasLabel: true, branch: br, owner: owner}
+	case fUnc:
+		b.state(l, g, label, parent)
+		return &frame{kind: fLeaf, noun: "state", label: label, hasLabel: true}
+	case fTestDecl:
+		b.reading(l, g, label, parent)
+		return &frame{kind: fLeaf, noun: "reading", label: label, hasLabel: true}
+	case fBranch:
+		b.errAt(lp, lw, fmt.Sprintf("a branch leads to a node; put a decision or chance line under %s and indent the branches under it", parent.desc()),
+			"a branch where a node is expected")
+	case fSubtree:
+		b.errAt(lp, lw, "a subtree holds one node: put a decision or chance line under the subtree line, and the branches under that",
+			"a branch where a node is expected")
+	default:
+		b.errAt(lp, lw, b.leafHint(parent), "%s takes no lines under it", parent.desc())
+	}
+	return brokenFrame(owner)
+}
+
+// itemExprs checks the expressions of a line that is placed nowhere.
+func (b *builder) itemExprs(l *srcLine, g *gItem) {
+	if a := g.tail().Amount; a != nil {
+		for _, x := range append([]*gGiven{a.First}, a.More...) {
+			if x.Prob != nil {
+				b.primary(x.Prob, ctxProb, l.lx)
+			}
+		}
+	}
+	for _, c := range g.tail().Cash {
+		b.expr(c.Amount, ctxCash, l.lx)
+	}
+}
+
+func (b *builder) branch(l *srcLine, g *gItem, label string) *tree.Branch {
+	br := &tree.Branch{Label: label, Pos: tokPos(g.Label)}
+	if a := g.tail().Amount; a != nil {
+		if a.First.If != nil || len(a.More) > 0 {
+			at := a.First.If
+			if at == nil {
+				at = firstTok(a.More[0])
+			}
+			b.errAt(tokPos(*at), tokWidth(l.lx, *at),
+				"a branch's probability is a number, a percent, a name, a calculation in parentheses, or rest",
+				"likelihoods (`if`) belong to the readings of a test declaration")
+		}
+		if a.First.Rest != nil {
+			br.Rest = true
+		} else {
+			br.Prob = b.primary(a.First.Prob, ctxProb, l.lx)
+		}
+	}
+	var p pendingCash
+	p.b = br
+	for _, c := range g.tail().Cash {
+		e := b.expr(c.Amount, ctxCash, l.lx)
+		slot := &p.gain
+		if c.Kind.Value == "cost" {
+			slot = &p.cost
+		}
+		if *slot != nil {
+			b.errAt(tokPos(c.Kind), tokWidth(l.lx, c.Kind), fmt.Sprintf("add the amounts in one: %s A + B", c.Kind.Value),
+				"a second `%s` on this branch", c.Kind.Value)
+			continue
+		}
+		*slot = e
+		if p.gain != nil && p.cost == nil {
+			p.gainFirst = true
+		}
+	}
+	if p.gain != nil || p.cost != nil {
+		b.cash = append(b.cash, p)
+	}
+	return br
+}
+
+func firstTok(g *gGiven) *lexer.Token {
+	if g.Rest != nil {
+		return g.Rest
+	}
+	return firstPrimaryTok(g.Prob)
+}
+
+// firstPrimaryTok is the first token of a primary.
+func firstPrimaryTok(p primaryValue) *lexer.Token {
+	switch p := p.(type) {
+	case *eNum:
+		return &p.Tok
+	case *eRest:
+		return &p.Tok
+	case *eName:
+		return &p.Tok
+	case *eCall:
+		return &p.Name
+	case *eParen:
+		return &p.Open
+	case *eNeg:
+		return &p.Tok
+	case *eBin:
+		return firstPrimaryTok(p.X)
+	}
+	return &lexer.Token{}
+}
+
+func (b *builder) state(l *srcLine, g *gItem, label string, parent *frame) {
+	s := &tree.State{Label: label, Pos: tokPos(g.Label)}
+	u := parent.unc
+	a := g.tail().Amount
+	switch {
+	case a == nil:
+		b.errAt(s.Pos, tokWidth(l.lx, g.Label), "write its probability after the label, such as 55% or 0.55, or rest for what the other states leave",
+			"state %q has no probability", label)
+	case a.First.If != nil || len(a.More) > 0:
+		at := a.First.If
+		if at == nil {
+			at = firstTok(a.More[0])
+		}
+		b.errAt(tokPos(*at), tokWidth(l.lx, *at), "a state has one probability; likelihoods go in a test declaration's readings",
+			"likelihoods (`if`) belong to the readings of a test declaration")
+	case a.First.Rest != nil:
+	default:
+		s.Prob = b.primary(a.First.Prob, ctxProb, l.lx)
+	}
+	if len(g.tail().Cash) > 0 {
+		k := g.tail().Cash[0].Kind
+		b.errAt(tokPos(k), tokWidth(l.lx, k), "put gain and cost on the branches of the tree", "a state of an uncertainty carries no money")
+	}
+	u.States = append(u.States, s)
+}
+
+func (b *builder) reading(l *srcLine, g *gItem, label string, parent *frame) {
+	rd := &tree.Reading{Label: label, Pos: tokPos(g.Label)}
+	t := parent.test
+	a := g.tail().Amount
+	if a == nil {
+		b.errAt(rd.Pos, tokWidth(l.lx, g.Label), `give P(reading | state) for the states, as in "Alarm" 90% if "Defective", 8% if "Sound", or write rest`,
+			"reading %q gives no likelihoods", label)
+	} else {
+		for _, x := range append([]*gGiven{a.First}, a.More...) {
+			if x.Rest != nil {
+				if x.If != nil {
+					b.errAt(tokPos(*x.If), tokWidth(l.lx, *x.If), "write just rest: it gives every state not listed what its other readings leave",
+						"`rest` stands alone in a reading")
+				}
+				if rd.Rest {
+					b.errAt(tokPos(*x.Rest), tokWidth(l.lx, *x.Rest), "write rest once", "`rest` twice in one reading")
+				}
+				rd.Rest = true
+				continue
+			}
+			e := b.primary(x.Prob, ctxProb, l.lx)
+			if x.If == nil {
+				ft := firstPrimaryTok(x.Prob)
+				b.errAt(tokPos(*ft), tokWidth(l.lx, *ft), `write the state it is for after it, as in 90% if "Defective"`,
+					"the likelihood %s does not say which state it is for", e)
+				continue
+			}
+			rd.Given = append(rd.Given, &tree.Likelihood{State: unquote(x.State.Value), Prob: e, Pos: tokPos(*x.State)})
+		}
+	}
+	if len(g.tail().Cash) > 0 {
+		k := g.tail().Cash[0].Kind
+		b.errAt(tokPos(k), tokWidth(l.lx, k), "the test's cost goes on its declaration: test NAME on UNCERTAINTY cost AMOUNT",
+			"a reading of a test carries no money")
+	}
+	t.Readings = append(t.Readings, rd)
+}
+
+// exprCtx says where an expression stands, for the message about a
+// misplaced `rest`.
+type exprCtx uint8
+
+const (
+	ctxLet exprCtx = iota
+	ctxProb
+	ctxCash
+)
+
+func (b *builder) expr(e exprValue, c exprCtx, lx lexed) tree.Expr {
+	x, _ := b.lowerExpr(e, c, lx)
+	return x
+}
+
+func (b *builder) primary(p primaryValue, c exprCtx, lx lexed) tree.Expr {
+	x, _ := b.lowerExpr(p, c, lx)
+	return x
+}
+
+// lowerExpr turns a parsed expression into a tree.Expr; it also returns
+// where the expression starts (for a parenthesised one, at the parenthesis).
+// It recurses along the expression, whose nesting the lexer bounds.
+func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed) (tree.Expr, tree.Pos) {
+	switch e := e.(type) {
+	case *eNum:
+		at := tokPos(e.Tok)
+		v, msg, hint := parseNumber(e.Tok.Value)
+		if msg != "" {
+			b.errAt(at, tokWidth(lx, e.Tok), hint, "%s", msg)
+		}
+		return &tree.Number{At: at, Value: v, Text: e.Tok.Value}, at
+	case *eRest:
+		at := tokPos(e.Tok)
+		switch c {
+		case ctxLet:
+			b.errAt(at, 4, "rest stands only for the probability that a chance node's other branches leave; give a number or a calculation here",
+				"`rest` cannot be used in a let")
+		case ctxProb:
+			b.errAt(at, 4, "write rest on its own, as the whole probability of the branch that takes what the others leave",
+				"`rest` cannot be part of a calculation")
+		default:
+			b.errAt(at, 4, "rest stands only for a probability (what the other branches leave); write an amount here",
+				"`rest` is not an amount")
+		}
+		return &tree.Number{At: at, Value: decimal.Zero, Text: "rest"}, at
+	case *eName:
+		at := tokPos(e.Tok)
+		return &tree.Name{At: at, Name: e.Tok.Value}, at
+	case *eCall:
+		at := tokPos(e.Name)
+		args := make([]tree.Expr, len(e.Args))
+		for i, a := range e.Args {
+			args[i], _ = b.lowerExpr(a, c, lx)
+		}
+		return &tree.Call{At: at, Func: e.Name.Value, Args: args}, at
+	case *eParen:
+		at := tokPos(e.Open)
+		x, _ := b.lowerExpr(e.X, c, lx)
+		if bin, ok := x.(*tree.Binary); ok {
+			bin.At = at
+		}
+		return x, at
+	case *eNeg:
+		at := tokPos(e.Tok)
+		x, _ := b.lowerExpr(e.X, c, lx)
+		return &tree.Unary{At: at, Op: '-', X: x}, at
+	case *eBin:
+		x, at := b.lowerExpr(e.X, c, lx)
+		y, _ := b.lowerExpr(e.Y, c, lx)
+		return &tree.Binary{At: at, Op: e.Op.Value[0], X: x, Y: y}, at
+	}
+	return &tree.Number{Value: decimal.Zero}, tree.Pos{}
+}
+
+// finish runs the checks that need the whole file.
+func (b *builder) finish() {
+	switch {
+	case b.firstLine == 0 && len(b.ds) == 0:
+		b.errAt(tree.Pos{Line: 1, Col: 1}, 1, "a model needs at least a tree: a `decision` line with its options indented beneath it",
+			"the model is empty: it has no lines other than comments and blank lines")
+	case b.m.Root == nil && !b.sawNodeTop && b.firstLine > 0 && !b.ds.HasErrors():
+		b.errAt(tree.Pos{Line: b.firstLine, Col: 1}, 1, "add the tree at the left edge: a `decision` line, with its options indented beneath it",
+			"the model has no tree: no decision, chance or test line at the top level")
+	}
+	for _, p := range b.cash {
+		p.b.Cash = combineCash(b.m.Objective, p.gain, p.cost, p.gainFirst)
+	}
+	b.checkRefs()
+	for _, d := range b.subOrder {
+		if d.root == nil && b.subs[d.name] == d {
+			d.broken = true
+			b.errAt(d.pos, len([]rune(d.name)), "indent one node (a decision, chance or test line) beneath it",
+				"subtree %q has no node under it", d.name)
+		}
+	}
+	b.expand()
+}
+
+// checkRefs catches a test run with `chance` and an uncertainty run with
+// `test`: names Resolve would only call unknown.
+func (b *builder) checkRefs() {
+	for _, r := range b.refs {
+		switch n := r.n; {
+		case n.Uncertainty != "" && b.m.Uncertainty(n.Uncertainty) == nil && b.m.TestNamed(n.Uncertainty) != nil:
+			b.errAt(r.pos, r.width, "a node that runs a test is written `test "+n.Uncertainty+"`; its branches are the test's readings",
+				"%q is a test, not an uncertainty", n.Uncertainty)
+		case n.Test != "" && b.m.TestNamed(n.Test) == nil && b.m.Uncertainty(n.Test) != nil:
+			b.errAt(r.pos, r.width, "a chance node on an uncertainty is written `chance "+n.Test+"`; its branches are the uncertainty's states",
+				"%q is an uncertainty, not a test", n.Test)
+		}
+	}
+}
+
+// combineCash turns gain and cost into one amount in the objective's terms:
+// gain − cost under max, cost − gain under min.
+func combineCash(o tree.Objective, gain, cost tree.Expr, gainFirst bool) tree.Expr {
+	plus, minus := gain, cost
+	if o == tree.Min {
+		plus, minus = cost, gain
+	}
+	switch {
+	case minus == nil:
+		return plus
+	case plus == nil:
+		return &tree.Unary{At: minus.Pos(), Op: '-', X: minus}
+	}
+	at := plus.Pos()
+	if gainFirst != (o == tree.Max) {
+		at = minus.Pos()
+	}
+	return &tree.Binary{At: at, Op: '-', X: plus, Y: minus}
+}

@@ -1,0 +1,161 @@
+package lang
+
+import (
+	"sync"
+
+	"github.com/alecthomas/participle/v2/lexer"
+	"github.com/forkcast/forkcast/tree"
+)
+
+// Options control reading. The zero value gives the defaults.
+type Options struct {
+	// NodeLimit is the largest tree, in nodes, that reading may build;
+	// subtree expansion stops with an error past it. 0 means
+	// tree.DefaultNodeLimit.
+	NodeLimit int
+}
+
+// maxLimit keeps saturating arithmetic on sizes far from overflow.
+const maxLimit = 1 << 50
+
+// getParsers returns the line parsers, built on first use. They are only
+// read after that.
+var getParsers = sync.OnceValue(newParsers)
+
+// Parse reads a model's text. It returns the model, lowered to package tree
+// with every `use` expanded (possibly partial when there are errors), and
+// every syntax and structure problem found in the file, sorted by position.
+// It does not evaluate expressions or check probabilities: that is
+// [tree.Model.Resolve], which [Load] runs.
+func Parse(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
+	b := &builder{
+		limit:   opts.NodeLimit,
+		m:       &tree.Model{},
+		headers: map[lineKind]int{},
+		subs:    map[string]*subtreeDef{},
+		useAt:   map[*tree.Node]*useRef{},
+	}
+	if b.limit <= 0 {
+		b.limit = tree.DefaultNodeLimit
+	}
+	b.limit = min(b.limit, maxLimit)
+	lines := scan(src)
+	parseLines(lines)
+	for _, l := range lines {
+		b.add(l)
+	}
+	b.finish()
+	fillLen(src, b.ds)
+	return b.m, b.ds.Sort()
+}
+
+// Load reads a model's text like [Parse] and, when that finds no errors,
+// resolves it ([tree.Model.Resolve] with no overrides): expressions are
+// evaluated, probabilities checked, Bayes' rule applied. It returns every
+// diagnostic, errors and warnings from both steps, sorted by position.
+func Load(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
+	m, ds := Parse(src, opts)
+	if ds.HasErrors() {
+		return m, ds
+	}
+	rs := m.Resolve(nil)
+	fillLen(src, rs)
+	return m, append(ds, rs...).Sort()
+}
+
+// parseLines reads every line's content with the parser for its kind.
+// Lines are independent of each other, so large files are read in parallel.
+func parseLines(lines []*srcLine) {
+	ps := getParsers()
+	const chunk = 4096
+	if len(lines) < 2*chunk {
+		for _, l := range lines {
+			ps.parseLine(l)
+		}
+		return
+	}
+	var wg sync.WaitGroup
+	for i := 0; i < len(lines); i += chunk {
+		part := lines[i:min(i+chunk, len(lines))]
+		wg.Go(func() {
+			for _, l := range part {
+				ps.parseLine(l)
+			}
+		})
+	}
+	wg.Wait()
+}
+
+// parseLine sets the line's kind and parses it.
+func (ps *parsers) parseLine(l *srcLine) {
+	if len(l.lx.toks) == 0 {
+		return
+	}
+	first := l.first()
+	switch first.Type {
+	case tokString:
+		l.kind = kItem
+	case tokIdent:
+		k, ok := lineKinds[first.Value]
+		if !ok {
+			l.kind = kUnknown
+			return
+		}
+		l.kind = k
+	default:
+		l.kind = kStray
+		return
+	}
+	if l.lx.noParse || l.kind == kRisk {
+		return
+	}
+	if ast := fastParse(l.kind, l.lx.toks); ast != nil {
+		l.ast = ast
+		return
+	}
+	ps.slowParse(l)
+}
+
+// slowParse parses a line of known kind with participle.
+func (ps *parsers) slowParse(l *srcLine) {
+	if l.kind == kNone {
+		first := l.first()
+		l.kind = lineKinds[first.Value]
+		if first.Type == tokString {
+			l.kind = kItem
+		}
+	}
+	toks := l.lx.toks
+	eof := lexer.Position{Line: l.num, Column: l.lx.endCol}
+	var ast any
+	var err error
+	switch l.kind {
+	case kTitle:
+		ast, err = parseWith(ps.title, toks, eof)
+	case kCurrency:
+		ast, err = parseWith(ps.currency, toks, eof)
+	case kObjective:
+		ast, err = parseWith(ps.objective, toks, eof)
+	case kLet:
+		ast, err = parseWith(ps.let, toks, eof)
+	case kUncertainty:
+		ast, err = parseWith(ps.uncertainty, toks, eof)
+	case kTest:
+		ast, err = parseWith(ps.test, toks, eof)
+	case kSubtree:
+		ast, err = parseWith(ps.subtree, toks, eof)
+	case kDecision:
+		ast, err = parseWith(ps.decision, toks, eof)
+	case kChance:
+		ast, err = parseWith(ps.chance, toks, eof)
+	case kUse:
+		ast, err = parseWith(ps.use, toks, eof)
+	case kItem:
+		ast, err = parseWith(ps.item, toks, eof)
+	}
+	if err != nil {
+		l.err = err
+		return
+	}
+	l.ast = ast
+}

@@ -1,0 +1,572 @@
+package lang
+
+import (
+	"fmt"
+	"reflect"
+	"strings"
+	"testing"
+
+	"github.com/forkcast/forkcast/tree"
+	"github.com/shopspring/decimal"
+)
+
+// load reads src with Load and fails the test on any error.
+func load(t *testing.T, src string) *tree.Model {
+	t.Helper()
+	m, ds := Load([]byte(src), Options{})
+	if ds.HasErrors() {
+		var b strings.Builder
+		ds.Print(&b, "test.fork", []byte(src))
+		t.Fatalf("unexpected errors:\n%s", b.String())
+	}
+	return m
+}
+
+// parse reads src with Parse and fails the test on any error.
+func parse(t *testing.T, src string) *tree.Model {
+	t.Helper()
+	m, ds := Parse([]byte(src), Options{})
+	if ds.HasErrors() {
+		var b strings.Builder
+		ds.Print(&b, "test.fork", []byte(src))
+		t.Fatalf("unexpected errors:\n%s", b.String())
+	}
+	return m
+}
+
+func dec(s string) decimal.Decimal { return decimal.RequireFromString(s) }
+
+func TestHeaders(t *testing.T) {
+	tests := []struct {
+		src       string
+		title     string
+		currency  string
+		objective tree.Objective
+	}{
+		{"decision \"D\"\n  \"a\"\n", "", "", tree.Max},
+		{"title \"Fare gates\"\ncurrency EUR\nobjective max\ndecision \"D\"\n  \"a\"\n", "Fare gates", "EUR", tree.Max},
+		{"objective min\ncurrency \"NZ$\"\ndecision \"D\"\n  \"a\"\n", "", "NZ$", tree.Min},
+		{"decision \"D\"\n  \"a\"\ntitle \"At the end \\\"quoted\\\"\" # comment\n", `At the end "quoted"`, "", tree.Max},
+	}
+	for _, tt := range tests {
+		m := load(t, tt.src)
+		if m.Title != tt.title || m.Currency != tt.currency || m.Objective != tt.objective {
+			t.Errorf("%q: got %q %q %v, want %q %q %v", tt.src, m.Title, m.Currency, m.Objective, tt.title, tt.currency, tt.objective)
+		}
+	}
+}
+
+func TestParams(t *testing.T) {
+	src := `let licence = 240_000   in 200_000 .. 300_000
+let p_slip  = 30%       in 15% .. 45%
+let lease   = 12 * 61_000
+decision "D"
+  "a"  cost licence + lease
+    chance "C"
+      "x"  p_slip
+      "y"  rest
+`
+	m := load(t, src)
+	if len(m.Params) != 3 {
+		t.Fatalf("got %d params", len(m.Params))
+	}
+	want := []struct {
+		name, expr, value, low, high string
+		pos                          tree.Pos
+	}{
+		{"licence", "240_000", "240000", "200000", "300000", tree.Pos{Line: 1, Col: 5}},
+		{"p_slip", "30%", "0.3", "0.15", "0.45", tree.Pos{Line: 2, Col: 5}},
+		{"lease", "(12 * 61_000)", "732000", "", "", tree.Pos{Line: 3, Col: 5}},
+	}
+	for i, w := range want {
+		p := m.Params[i]
+		if p.Name != w.name || p.Expr.String() != w.expr || !p.Value.Equal(dec(w.value)) || p.Pos != w.pos {
+			t.Errorf("param %d: got %s = %s (%s) at %v", i, p.Name, p.Expr, p.Value, p.Pos)
+		}
+		if w.low == "" {
+			if p.HasRange() {
+				t.Errorf("%s: unexpected range", p.Name)
+			}
+			continue
+		}
+		if !p.HasRange() || !p.LowValue.Equal(dec(w.low)) || !p.HighValue.Equal(dec(w.high)) {
+			t.Errorf("%s: range %s .. %s", p.Name, p.LowValue, p.HighValue)
+		}
+	}
+}
+
+// TestExpressions checks precedence, associativity and exact arithmetic.
+func TestExpressions(t *testing.T) {
+	tests := []struct {
+		expr, str, value string
+	}{
+		{"1 + 2 * 3", "(1 + (2 * 3))", "7"},
+		{"(1 + 2) * 3", "((1 + 2) * 3)", "9"},
+		{"2 - 3 - 4", "((2 - 3) - 4)", "-5"},
+		{"12 / 4 / 3", "((12 / 4) / 3)", "1"},
+		{"-2 * 3", "(-2 * 3)", "-6"},
+		{"10 - -2", "(10 - -2)", "12"},
+		{"- (1 + 2)", "-(1 + 2)", "-3"},
+		{"50% * 200", "(50% * 200)", "100"},
+		{"0.1 + 0.2", "(0.1 + 0.2)", "0.3"},
+		{"1_000_000.50", "1_000_000.50", "1000000.5"},
+		{"12.5%", "12.5%", "0.125"},
+		{"123456789012345678901234567890.123456789", "123456789012345678901234567890.123456789", "123456789012345678901234567890.123456789"},
+		{"1 + 2 + 3 * 4 - 5 / 5", "(((1 + 2) + (3 * 4)) - (5 / 5))", "14"},
+		{"((((7))))", "7", "7"},
+		{"base * (1 + 10%)", "(base * (1 + 10%))", "110"},
+	}
+	for _, tt := range tests {
+		src := fmt.Sprintf("let base = 100\nlet x = %s\ndecision \"D\"\n  \"a\"  gain x + base\n", tt.expr)
+		m := load(t, src)
+		p := m.Param("x")
+		if p.Expr.String() != tt.str {
+			t.Errorf("%s: parsed as %s, want %s", tt.expr, p.Expr, tt.str)
+		}
+		if !p.Value.Equal(dec(tt.value)) {
+			t.Errorf("%s = %s, want %s", tt.expr, p.Value, tt.value)
+		}
+	}
+}
+
+func TestExactNumbers(t *testing.T) {
+	m := parse(t, "let a = 0.1\nlet b = 55%\nlet c = 1_150_000\nlet d = 0.000000000000000000000000000001\ndecision \"D\"\n  \"a\"\n")
+	for _, c := range []struct{ name, value, text string }{
+		{"a", "0.1", "0.1"}, {"b", "0.55", "55%"}, {"c", "1150000", "1_150_000"}, {"d", "1e-30", "0.000000000000000000000000000001"},
+	} {
+		n, ok := m.Param(c.name).Expr.(*tree.Number)
+		if !ok {
+			t.Fatalf("%s: %T", c.name, m.Param(c.name).Expr)
+		}
+		if !n.Value.Equal(dec(c.value)) || n.Text != c.text {
+			t.Errorf("%s: %s %q", c.name, n.Value, n.Text)
+		}
+	}
+	// 0.1 + 0.2 is exactly 0.3, not 0.30000000000000004.
+	m = load(t, "let x = 0.1 + 0.2\ndecision \"D\"\n  \"a\"  gain x\n")
+	if m.Param("x").Value.String() != "0.3" {
+		t.Errorf("0.1 + 0.2 = %s", m.Param("x").Value)
+	}
+}
+
+func TestCashSigns(t *testing.T) {
+	tests := []struct {
+		objective, cash, expr, value string
+	}{
+		{"max", "gain 100", "100", "100"},
+		{"max", "cost 30", "-30", "-30"},
+		{"max", "gain 100 cost 20", "(100 - 20)", "80"},
+		{"max", "cost 20 gain 100", "(100 - 20)", "80"},
+		{"max", "gain 5 * 20", "(5 * 20)", "100"},
+		{"min", "gain 100", "-100", "-100"},
+		{"min", "cost 30", "30", "30"},
+		{"min", "gain 100 cost 20", "(20 - 100)", "-80"},
+		{"min", "cost 20 gain 100", "(20 - 100)", "-80"},
+		{"max", "", "", "0"},
+	}
+	for _, tt := range tests {
+		src := fmt.Sprintf("objective %s\ndecision \"D\"\n  \"a\"  %s\n  \"b\"\n", tt.objective, tt.cash)
+		m := load(t, src)
+		b := m.Root.Branches[0]
+		got := ""
+		if b.Cash != nil {
+			got = b.Cash.String()
+		}
+		if got != tt.expr || !b.C.Equal(dec(tt.value)) {
+			t.Errorf("%s %q: cash %q = %s, want %q = %s", tt.objective, tt.cash, got, b.C, tt.expr, tt.value)
+		}
+	}
+	// The objective may come after the tree.
+	m := load(t, "decision \"D\"\n  \"a\"  cost 7\n  \"b\"\nobjective min\n")
+	if !m.Root.Branches[0].C.Equal(dec("7")) {
+		t.Errorf("objective at the end: cost 7 = %s", m.Root.Branches[0].C)
+	}
+}
+
+const fullExample = `# comment to end of line (also allowed after content on a line)
+title     "Fare-gate controller sourcing"
+currency  EUR
+objective max            # or min; default max
+
+let licence = 240_000   in 200_000 .. 300_000
+let p_slip  = 30%       in 15% .. 45%
+let dev     = 380_000
+let lease   = 12 * 61_000
+
+uncertainty schedule "Build schedule"
+  "On time"    55%
+  "Slips"      p_slip
+  "Abandoned"  rest
+
+uncertainty defect
+  "Defective"  10%
+  "Sound"      rest
+
+test soak "Soak test" on defect cost 4_000
+  "Alarm"   90% if "Defective", 8% if "Sound"
+  "Clear"   rest
+
+subtree after_alarm
+  decision "After an alarm"
+    "Fix first"  cost 30_000
+    "Ship anyway"
+      chance defect
+        "Defective"  cost 250_000
+        "Sound"
+
+decision "Sourcing route"
+  "Build in house"  cost dev
+    chance schedule
+      "On time"    gain 1_150_000
+      "Slips"      gain   900_000
+      "Abandoned"
+  "Buy a licence"  cost licence
+    chance "Integration"
+      "Clean"   80%   gain 1_000_000
+      "Rework"  rest  gain   780_000
+  "Lease per depot"  gain lease
+  "Run the soak test"
+    test soak "Soak result"
+      "Alarm"
+        use after_alarm
+      "Clear"
+`
+
+func TestLowering(t *testing.T) {
+	m := parse(t, fullExample)
+	if m.Title != "Fare-gate controller sourcing" || m.Currency != "EUR" || m.Objective != tree.Max {
+		t.Errorf("headers: %q %q %v", m.Title, m.Currency, m.Objective)
+	}
+	// Uncertainties and states.
+	if len(m.Uncertainties) != 2 {
+		t.Fatalf("%d uncertainties", len(m.Uncertainties))
+	}
+	u := m.Uncertainties[0]
+	if u.Name != "schedule" || u.Label != "Build schedule" || u.Pos != (tree.Pos{Line: 11, Col: 13}) || len(u.States) != 3 {
+		t.Fatalf("uncertainty: %+v", u)
+	}
+	if s := u.States[0]; s.Label != "On time" || s.Prob.String() != "55%" || s.Pos != (tree.Pos{Line: 12, Col: 3}) {
+		t.Errorf("state 0: %+v", s)
+	}
+	if s := u.States[1]; s.Prob.(*tree.Name).Name != "p_slip" {
+		t.Errorf("state 1: %+v", s)
+	}
+	if s := u.States[2]; s.Prob != nil {
+		t.Errorf("rest state has Prob %v", s.Prob)
+	}
+	// The test.
+	ts := m.TestNamed("soak")
+	if ts == nil || ts.Label != "Soak test" || ts.On != "defect" || ts.Cost.String() != "4_000" || len(ts.Readings) != 2 {
+		t.Fatalf("test: %+v", ts)
+	}
+	alarm := ts.Readings[0]
+	if alarm.Label != "Alarm" || alarm.Rest || len(alarm.Given) != 2 {
+		t.Fatalf("reading: %+v", alarm)
+	}
+	if g := alarm.Given[1]; g.State != "Sound" || g.Prob.String() != "8%" || g.Pos != (tree.Pos{Line: 21, Col: 39}) {
+		t.Errorf("likelihood: %+v", g)
+	}
+	if !ts.Readings[1].Rest || len(ts.Readings[1].Given) != 0 {
+		t.Errorf("rest reading: %+v", ts.Readings[1])
+	}
+	// The tree.
+	root := m.Root
+	if root.Kind != tree.KindDecision || root.Label != "Sourcing route" || root.Pos != (tree.Pos{Line: 32, Col: 1}) || len(root.Branches) != 4 {
+		t.Fatalf("root: %v at %v", root, root.Pos)
+	}
+	build := root.Branches[0]
+	if build.Label != "Build in house" || build.Cash.String() != "-dev" || build.Prob != nil || build.Pos != (tree.Pos{Line: 33, Col: 3}) {
+		t.Errorf("branch 0: %+v", build)
+	}
+	if n := build.Node; n.Kind != tree.KindChance || n.Uncertainty != "schedule" || n.Label != "" || n.Pos != (tree.Pos{Line: 34, Col: 5}) {
+		t.Errorf("chance on uncertainty: %+v", n)
+	}
+	if b := build.Node.Branches[2]; b.Label != "Abandoned" || b.Node != nil || b.Cash != nil || b.Prob != nil || b.Rest {
+		t.Errorf("empty branch: %+v", b)
+	}
+	plain := root.Branches[1].Node
+	if plain.Label != "Integration" || plain.Uncertainty != "" || plain.Branches[0].Prob.String() != "80%" || !plain.Branches[1].Rest {
+		t.Errorf("plain chance: %+v", plain)
+	}
+	if c := plain.Branches[0].Cash.(*tree.Number); c.At != (tree.Pos{Line: 40, Col: 28}) {
+		t.Errorf("cash position %v", c.At)
+	}
+	if lease := root.Branches[2]; lease.Cash.String() != "lease" || lease.Node != nil {
+		t.Errorf("lease: %+v", lease)
+	}
+	tn := root.Branches[3].Node
+	if tn.Kind != tree.KindChance || tn.Test != "soak" || tn.Label != "Soak result" || len(tn.Branches) != 2 {
+		t.Fatalf("test node: %+v", tn)
+	}
+	sub := tn.Branches[0].Node
+	if sub == nil || sub.Kind != tree.KindDecision || sub.Label != "After an alarm" || sub.Pos != (tree.Pos{Line: 25, Col: 3}) {
+		t.Fatalf("expanded subtree: %+v", sub)
+	}
+	if d := sub.Branches[1].Node; d.Uncertainty != "defect" || d.Branches[0].Cash.String() != "-250_000" {
+		t.Errorf("inside the subtree: %+v", d)
+	}
+	// Load resolves it: the model solves (Bayes included).
+	m, ds := Load([]byte(fullExample), Options{})
+	if len(ds) != 0 {
+		t.Fatalf("diagnostics: %v", ds)
+	}
+	if got := tree.Count(m.Root); got != 16 {
+		t.Errorf("%d nodes after Load, want 16", got)
+	}
+	if p := m.Root.Branches[3].Node.Branches[0].P; !p.Equal(dec("0.162")) {
+		t.Errorf("P(Alarm) = %s, want 0.162", p)
+	}
+}
+
+func TestSubtrees(t *testing.T) {
+	src := `subtree leaf
+  chance "Coin"
+    "Heads"  50%  gain 1
+    "Tails"  rest
+subtree pair
+  decision "Pair"
+    "Left"
+      use leaf
+    "Right"
+      use leaf
+subtree alias
+  use pair
+decision "Top"
+  "One"
+    use alias
+  "Two"
+    use pair
+`
+	m := load(t, src)
+	// Top + 2 × (Pair + 2 × (Coin + 2 ends)) = 1 + 2×7 = 15 nodes, + nothing else.
+	if got := tree.Count(m.Root); got != 15 {
+		t.Errorf("%d nodes, want 15", got)
+	}
+	a, b := m.Root.Branches[0].Node, m.Root.Branches[1].Node
+	if a == b || a.Branches[0].Node == a.Branches[1].Node || a.Branches[0] == b.Branches[0] {
+		t.Error("uses share nodes; each must be a copy")
+	}
+	if a.Label != "Pair" || a.Branches[0].Node.Label != "Coin" {
+		t.Errorf("expansion: %v / %v", a, a.Branches[0].Node)
+	}
+	// A subtree as the root.
+	m = load(t, "subtree s\n  decision \"S\"\n    \"a\"\n    \"b\"\nuse s\n")
+	if m.Root == nil || m.Root.Label != "S" {
+		t.Errorf("root use: %v", m.Root)
+	}
+	// No placeholder may survive, even after errors.
+	for _, bad := range []string{
+		"decision \"D\"\n  \"a\"\n    use nowhere\n",
+		"subtree s\n  use s\ndecision \"D\"\n  \"a\"\n    use s\n",
+		"use nowhere\n",
+	} {
+		m, ds := Parse([]byte(bad), Options{})
+		if !ds.HasErrors() {
+			t.Errorf("%q: no error", bad)
+		}
+		tree.Walk(m.Root, func(n *tree.Node, _ int) bool {
+			if n.Kind == kindUse {
+				t.Errorf("%q: placeholder left in the model", bad)
+			}
+			return true
+		})
+	}
+}
+
+func TestCycles(t *testing.T) {
+	tests := []struct{ src, want string }{
+		{"subtree a\n  use a\nuse a\n", `2:7: subtree "a" uses itself`},
+		{"subtree a\n  decision \"A\"\n    \"x\"\n      use b\nsubtree b\n  decision \"B\"\n    \"y\"\n      use c\nsubtree c\n  use a\nuse a\n",
+			`10:7: subtree "a" uses itself: a → b → c → a`},
+	}
+	for _, tt := range tests {
+		_, ds := Parse([]byte(tt.src), Options{})
+		found := false
+		for _, d := range ds {
+			if strings.Contains(d.Error(), tt.want) {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("%q: want %q in %v", tt.src, tt.want, ds)
+		}
+	}
+}
+
+// doubling returns a model whose subtrees each use the next one twice, for
+// levels levels: 2^levels paths.
+func doubling(levels int) string {
+	var b strings.Builder
+	for i := 0; i < levels; i++ {
+		fmt.Fprintf(&b, "subtree l%d\n  decision \"L%d\"\n    \"a\"\n      use l%d\n    \"b\"\n      use l%d\n", i, i, i+1, i+1)
+	}
+	fmt.Fprintf(&b, "subtree l%d\n  decision \"End\"\n    \"a\"\n    \"b\"\n", levels)
+	b.WriteString("decision \"Top\"\n  \"go\"\n    use l0\n  \"stop\"\n")
+	return b.String()
+}
+
+func TestNodeLimit(t *testing.T) {
+	// 40 levels of doubling would be 2^41 nodes: refused at once, at the use.
+	_, ds := Parse([]byte(doubling(40)), Options{})
+	if len(ds) != 1 || !strings.Contains(ds[0].Summary, `using subtree "l0" here takes the tree past the limit of 5,000,000 nodes`) {
+		t.Fatalf("got %v", ds)
+	}
+	if ds[0].Pos != (tree.Pos{Line: 40*6 + 4 + 3, Col: 9}) {
+		t.Errorf("at %v", ds[0].Pos)
+	}
+	// 3 levels: Top + l0..l2 (1+2+4 decisions) + 8 End decisions with 16 ends, + the stop end.
+	m := load(t, doubling(3))
+	n := tree.Count(m.Root)
+	if n != 1+7+8+16+1 {
+		t.Errorf("%d nodes", n)
+	}
+	if _, ds := Parse([]byte(doubling(3)), Options{NodeLimit: n}); ds.HasErrors() {
+		t.Errorf("at the limit: %v", ds)
+	}
+	if _, ds := Parse([]byte(doubling(3)), Options{NodeLimit: n - 1}); !ds.HasErrors() {
+		t.Error("one past the limit: no error")
+	}
+	// A literal tree past the limit.
+	_, ds = Parse([]byte("decision \"D\"\n  \"a\"\n  \"b\"\n  \"c\"\n"), Options{NodeLimit: 3})
+	if len(ds) != 1 || !strings.Contains(ds[0].Summary, "more than 3 nodes") {
+		t.Errorf("literal: %v", ds)
+	}
+}
+
+// TestDeepChain reads a tree 100 000 levels deep: a chain of subtrees each
+// using the next (by indentation alone such a file would be quadratic in
+// size), and a 2 000-level chain written out with indentation.
+func TestDeepChain(t *testing.T) {
+	const depth = 100_000
+	var b strings.Builder
+	for i := 0; i < depth; i++ {
+		fmt.Fprintf(&b, "subtree s%d\n  decision \"Level %d\"\n    \"on\"\n      use s%d\n    \"stop\"  gain 1\n", i, i, i+1)
+	}
+	fmt.Fprintf(&b, "subtree s%d\n  decision \"Last\"\n    \"end\"  gain 2\n", depth)
+	b.WriteString("use s0\n")
+	m := load(t, b.String())
+	if got := tree.Count(m.Root); got != 2*depth+2 {
+		t.Errorf("%d nodes, want %d", got, 2*depth+2)
+	}
+	maxDepth := 0
+	tree.Walk(m.Root, func(_ *tree.Node, d int) bool { maxDepth = max(maxDepth, d); return true })
+	if maxDepth != depth+1 {
+		t.Errorf("depth %d", maxDepth)
+	}
+
+	b.Reset()
+	const levels = 2_000
+	for i := 0; i < levels; i++ {
+		ind := strings.Repeat(" ", 2*i)
+		fmt.Fprintf(&b, "%sdecision \"D%d\"\n%s \"stop\"\n%s \"go\"\n", ind, i, ind, ind)
+	}
+	m = load(t, b.String())
+	if got := tree.Count(m.Root); got != 2*levels+1 {
+		t.Errorf("indented chain: %d nodes", got)
+	}
+}
+
+// TestLargeModel is a sanity check, not a timing: a generated model of
+// 111 111 nodes reads without error (it takes a fraction of a second).
+func TestLargeModel(t *testing.T) {
+	if testing.Short() {
+		t.Skip("large model")
+	}
+	src := genModel(10, 5)
+	m, ds := Load(src, Options{})
+	if ds.HasErrors() {
+		t.Fatal(ds)
+	}
+	if got := tree.Count(m.Root); got != 111_111 {
+		t.Errorf("%d nodes", got)
+	}
+}
+
+func BenchmarkParseLarge(b *testing.B) {
+	src := genModel(10, 5)
+	b.SetBytes(int64(len(src)))
+	for b.Loop() {
+		Parse(src, Options{})
+	}
+}
+
+// TestAllErrors checks that one mistake on each of several lines gives one
+// diagnostic for each, in order.
+func TestAllErrors(t *testing.T) {
+	src := `let a = 1__0
+let b = 2 +
+decision "D"
+  "x"  gain 12%%
+  "y"  cost (1
+  "z"  gain rest
+`
+	_, ds := Load([]byte(src), Options{})
+	var lines []int
+	for _, d := range ds {
+		lines = append(lines, d.Pos.Line)
+	}
+	if !reflect.DeepEqual(lines, []int{1, 2, 4, 5, 6}) {
+		t.Errorf("lines %v: %v", lines, ds)
+	}
+}
+
+func TestPositionsInCharacters(t *testing.T) {
+	src := "decision \"Zürich — Genève\"\n  \"Größe ünd\"  gain prize\n  \"b\"\n"
+	_, ds := Load([]byte(src), Options{})
+	if len(ds) != 1 || ds[0].Pos != (tree.Pos{Line: 2, Col: 21}) || ds[0].Len != 5 {
+		t.Errorf("got %v (len %d)", ds, ds[0].Len)
+	}
+}
+
+func TestLineEndings(t *testing.T) {
+	unix := "title \"T\"\ndecision \"D\"\n  \"a\"  gain 1\n  \"b\"\n"
+	dos := "\ufeff" + strings.ReplaceAll(unix, "\n", "\r\n")
+	a, b := load(t, unix), load(t, dos)
+	if a.Title != b.Title || tree.Count(a.Root) != tree.Count(b.Root) || a.Root.Branches[0].Pos != b.Root.Branches[0].Pos {
+		t.Error("CRLF and BOM read differently")
+	}
+}
+
+func TestEmpty(t *testing.T) {
+	for _, src := range []string{"", "\n\n", "# only a comment\n   # indented comment\n"} {
+		m, ds := Load([]byte(src), Options{})
+		if len(ds) != 1 || !strings.HasPrefix(ds[0].Summary, "the model is empty") || m == nil || m.Root != nil {
+			t.Errorf("%q: %v", src, ds)
+		}
+	}
+}
+
+// TestFastPathAgrees checks the fast path against participle on every line
+// it accepts, over all the test inputs.
+func TestFastPathAgrees(t *testing.T) {
+	srcs := []string{fullExample, string(genModel(3, 3)), doubling(3),
+		"\"a\" 1 + 2\n\"a\" (1 + 2) gain -3 cost f(1, 2, x)\n\"a\" rest if \"x\", 5% if \"y\" gain 1\n\"a\" gain\n\"a\" 5 5\nchance x \"y\"\nchance \"y\"\nchance x\nuse s\ndecision \"d\"\n"}
+	srcs = append(srcs, badInputs(t)...)
+	ps := getParsers()
+	checked := 0
+	for _, src := range srcs {
+		for _, l := range scan([]byte(src)) {
+			if len(l.lx.toks) == 0 {
+				continue
+			}
+			ps.parseLine(l)
+			fast := fastParse(l.kind, l.lx.toks)
+			if fast == nil {
+				continue
+			}
+			slow := &srcLine{num: l.num, indent: l.indent, lx: l.lx}
+			ps.slowParse(slow)
+			if slow.err != nil {
+				t.Errorf("line %d %v: fast path accepts what participle rejects: %v", l.num, l.lx.toks, slow.err)
+				continue
+			}
+			if !reflect.DeepEqual(fast, slow.ast) {
+				t.Errorf("line %d %v: fast %#v, participle %#v", l.num, l.lx.toks, fast, slow.ast)
+			}
+			checked++
+		}
+	}
+	if checked < 100 {
+		t.Errorf("only %d lines checked", checked)
+	}
+}
