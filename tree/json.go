@@ -26,8 +26,8 @@ import (
 // Numbers are JSON numbers or decimal strings, read exactly (never through
 // float64). "uncertainties", "tests", and the node fields "uncertainty" and
 // "test" are forkcast's extension for named events and imperfect tests. The
-// annotations `solve --json` adds ("value" at the top and on inner nodes,
-// "best" on decisions) are accepted and recomputed, so solved output reads
+// annotations `solve --json` adds ("value" and "exact" at the top, "value"
+// on inner nodes, "best" on decisions) are accepted and recomputed, so solved output reads
 // back as a model.
 
 // jv is a JSON value with the position it starts at.
@@ -254,7 +254,7 @@ func ReadJSON(src []byte, limit int) (*Model, Diagnostics) {
 		return nil, r.ds.Sort()
 	}
 	m := &Model{}
-	if !r.fields(top, "the model", "title", "currency", "objective", "value", "root", "uncertainties", "tests") {
+	if !r.fields(top, "the model", "title", "currency", "objective", "value", "exact", "root", "uncertainties", "tests") {
 		return nil, r.ds
 	}
 	m.Title = r.str(top, "title", "the model", false)
@@ -471,6 +471,11 @@ func (j *jsonWriter) model() {
 	if j.opts.Value != nil && m.Root != nil {
 		j.key(&first, "value")
 		j.quote(j.opts.Value(m.Root).String())
+		if !m.Exact() {
+			// A division was rounded: say so (see Model.Exact).
+			j.key(&first, "exact")
+			j.w.WriteString("false")
+		}
 	}
 	if len(m.Uncertainties) > 0 {
 		j.key(&first, "uncertainties")

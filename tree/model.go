@@ -80,8 +80,17 @@ type Model struct {
 	Tests []*Test
 	Root  *Node
 
-	size int // nodes counted by the last Resolve
+	size    int  // nodes counted by the last Resolve
+	inexact bool // the last Resolve rounded a division
 }
+
+// Exact reports whether every figure the last Resolve produced is exact.
+// It is false when a division had to be rounded at DivisionScale places: a
+// fraction that is no finite decimal (1/3), or a posterior probability from
+// Bayes' rule. Rollback only adds and multiplies, so its results are then
+// exact consequences of figures that are themselves correct to DivisionScale
+// decimal places.
+func (m *Model) Exact() bool { return !m.inexact }
 
 // Size is the number of nodes in the tree, as counted by the last Resolve
 // (or counted now if the model was never resolved).

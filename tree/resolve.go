@@ -43,6 +43,7 @@ func (m *Model) Resolve(over map[string]decimal.Decimal) Diagnostics {
 			r.ds.Warn(p.Pos, "remove it, or use it in a branch", "%q is defined but never used", p.Name)
 		}
 	}
+	m.inexact = r.inexact
 	return r.ds.Sort()
 }
 
@@ -52,6 +53,7 @@ type resolver struct {
 	used     map[string]bool
 	dupParam map[*Param]bool
 	ds       Diagnostics
+	inexact  bool // a division was rounded on the way
 	// ustate holds resolved prior probabilities by uncertainty name.
 	unc  map[string]*Uncertainty
 	test map[string]*Test
@@ -68,6 +70,9 @@ func (r *resolver) lookup(name string) (Value, bool) {
 // eval evaluates e and reports a failure as a diagnostic; ok is false then.
 func (r *resolver) eval(e Expr) (Value, bool) {
 	v, err := Eval(e, r.lookup)
+	if err == nil && !v.Exact {
+		r.inexact = true
+	}
 	if err != nil {
 		if ee, isEval := err.(*EvalError); isEval {
 			r.ds = append(r.ds, Diagnostic{Severity: Error, Pos: ee.Pos, Summary: ee.Msg, Hint: ee.Hint})
@@ -311,6 +316,34 @@ type Observation struct {
 // for repeated tests). marginal is P(the readings); when it is 0 the prior is
 // returned.
 func Posterior(u *Uncertainty, obs *Observation) (post []decimal.Decimal, marginal decimal.Decimal) {
+	joint, marginal := jointOf(u, obs)
+	if marginal.IsZero() {
+		prior := make([]decimal.Decimal, len(u.States))
+		for i, s := range u.States {
+			prior[i] = s.P
+		}
+		return prior, marginal
+	}
+	post = make([]decimal.Decimal, len(joint))
+	for i, j := range joint {
+		post[i] = Div(j, marginal, true).D
+	}
+	return post, marginal
+}
+
+// posteriorExact reports whether every posterior of u given obs is an exact
+// decimal (no rounding at DivisionScale).
+func posteriorExact(post []decimal.Decimal, u *Uncertainty, obs *Observation) bool {
+	joint, marginal := jointOf(u, obs)
+	for i := range post {
+		if !post[i].Mul(marginal).Equal(joint[i]) {
+			return false
+		}
+	}
+	return true
+}
+
+func jointOf(u *Uncertainty, obs *Observation) ([]decimal.Decimal, decimal.Decimal) {
 	joint := make([]decimal.Decimal, len(u.States))
 	for i, s := range u.States {
 		joint[i] = s.P
@@ -324,22 +357,11 @@ func Posterior(u *Uncertainty, obs *Observation) (post []decimal.Decimal, margin
 			joint[i] = joint[i].Mul(rd.L[i])
 		}
 	}
-	marginal = decimal.Zero
+	marginal := decimal.Zero
 	for _, j := range joint {
 		marginal = marginal.Add(j)
 	}
-	if marginal.IsZero() {
-		prior := make([]decimal.Decimal, len(u.States))
-		for i, s := range u.States {
-			prior[i] = s.P
-		}
-		return prior, marginal
-	}
-	post = make([]decimal.Decimal, len(joint))
-	for i, j := range joint {
-		post[i] = Div(j, marginal, true).D
-	}
-	return post, marginal
+	return joint, marginal
 }
 
 // knownState records that a chance node on an uncertainty was passed on the
@@ -382,6 +404,9 @@ func (r *resolver) posterior(u *Uncertainty, obs *Observation, known *knownState
 		return p
 	}
 	p, _ := Posterior(u, obs)
+	if !posteriorExact(p, u, obs) {
+		r.inexact = true
+	}
 	if obs.post == nil {
 		obs.post = map[string][]decimal.Decimal{}
 	}

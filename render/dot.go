@@ -1,0 +1,854 @@
+package render
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"strconv"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/tree"
+	"github.com/shopspring/decimal"
+)
+
+// Options shape the picture of a tree. The zero value draws the whole tree
+// with labels wrapped at DefaultWrapWidth characters.
+type Options struct {
+	// PolicyOnly draws only what the optimal policy can reach: at each
+	// decision the options it rejects are folded into one stub that says
+	// how many there are and what the best of them is worth.
+	PolicyOnly bool
+	// MaxDepth, when positive, cuts the tree at that depth (the root is at
+	// depth 0): a node at MaxDepth with anything under it is drawn as a
+	// small stub that says how many nodes it stands for and its expected
+	// value. Zero draws every level; a negative value is an error.
+	MaxDepth int
+	// WrapWidth is the line length, in characters, at which long labels
+	// are wrapped at spaces; zero means DefaultWrapWidth.
+	WrapWidth int
+	// Currency, when not empty, replaces the model's currency code in the
+	// money shown (it changes the code and the number of decimals, not the
+	// amounts).
+	Currency string
+	// MaxDrawn is the most nodes a drawing may have (stubs included); zero
+	// means DefaultMaxDrawn. DOT refuses a bigger one with a *TooBigError:
+	// Graphviz's layout time grows faster than the tree, and a picture of
+	// tens of thousands of nodes is no longer read.
+	MaxDrawn int
+}
+
+// DefaultMaxDrawn is the largest drawing DOT makes unless Options.MaxDrawn
+// says otherwise.
+const DefaultMaxDrawn = 20_000
+
+// TooBigError is DOT's answer to a drawing with more nodes than
+// Options.MaxDrawn allows.
+type TooBigError struct {
+	Nodes, Limit int
+}
+
+func (e *TooBigError) Error() string {
+	return fmt.Sprintf("render: the drawing would have %d nodes, more than the limit of %d; draw the optimal policy only or cut it at a depth", e.Nodes, e.Limit)
+}
+
+// DefaultWrapWidth is the line length labels are wrapped at unless
+// Options.WrapWidth says otherwise.
+const DefaultWrapWidth = 24
+
+// The picture's look: a restrained, printable palette. The optimal policy
+// is told apart by weight and colour together (thick dark blue against thin
+// mid-grey), so it survives greyscale print and colour-blind readers; the
+// options a decision rejects are dashed and carry a double bar.
+const (
+	fontFamily = "Helvetica,Arial,sans-serif"
+
+	colInk      = "#1f1f1f" // text on the optimal path, titles
+	colInkSoft  = "#595959" // text elsewhere (7:1 on white)
+	colPolicy   = "#1c4b8c" // the optimal policy: strokes and values
+	colFill     = "#e2eaf5" // the optimal policy: shape fill
+	colOther    = "#8c8c8c" // other branches
+	colNode     = "#6b6b6b" // other shapes' outlines
+	colPruned   = "#9e9e9e" // rejected options
+	colPaper    = "#ffffff"
+	penPolicy   = "3"
+	penOther    = "1"
+	bandPolicy  = 3 // the rule under a branch label: as thick as the branch
+	bandOther   = 1
+	penPolicyNd = "2.0"
+	penNode     = "1.2"
+
+	fontNode  = 10.0 // node text, points
+	fontEdge  = 9.0  // branch text
+	fontTitle = 16.0
+	lineNode  = 12.0 // line height of node text (fontsize × 1.2)
+
+	sizeDecision = 0.30 // inches: side of the square
+	sizeChance   = 0.34 // diameter of the circle
+	sizeEnd      = 0.30 // width and height of the triangle's box
+	pruneMark    = "‖"
+)
+
+// ErrNoTree is returned when there is no solved tree to draw.
+var ErrNoTree = errors.New("render: no solved tree to draw")
+
+// DOT writes the solved tree as a graph in the Graphviz DOT language, laid
+// out left to right: decisions as squares, chance nodes as circles, end
+// nodes as triangles, every node with its expected value, every branch with
+// its label, probability and cash flow, and every end node with its
+// cumulative payoff and path probability. The optimal policy is drawn
+// thick and dark blue; everything on it (nodes and branches the policy
+// reaches from the root) has the class "optimal" in the SVG Graphviz makes
+// of it. Nodes have ids n0, n1, … in the tree's pre-order (the same node
+// keeps its id whatever the options), the branch into node nK has id eK,
+// and stubs have ids ending in "x".
+//
+// The output depends only on its inputs.
+func DOT(sol *eval.Solution, opts Options) ([]byte, error) {
+	if sol == nil || sol.Root == nil || sol.Model == nil {
+		return nil, ErrNoTree
+	}
+	if opts.MaxDepth < 0 {
+		return nil, fmt.Errorf("render: depth %d: give a positive depth, or 0 for the whole tree", opts.MaxDepth)
+	}
+	if opts.WrapWidth < 0 {
+		return nil, fmt.Errorf("render: wrap width %d is negative", opts.WrapWidth)
+	}
+	d := &drawer{sol: sol, opts: opts, m: sol.Model, cur: sol.Model.Currency}
+	if opts.Currency != "" {
+		d.cur = opts.Currency
+	}
+	d.wrap = opts.WrapWidth
+	if d.wrap == 0 {
+		d.wrap = DefaultWrapWidth
+	}
+	if err := d.index(); err != nil {
+		return nil, err
+	}
+	steps := d.plan()
+	limit := opts.MaxDrawn
+	if limit <= 0 {
+		limit = DefaultMaxDrawn
+	}
+	if len(steps) > limit {
+		return nil, &TooBigError{Nodes: len(steps), Limit: limit}
+	}
+	d.graph(steps)
+	return d.buf.Bytes(), nil
+}
+
+// drawer writes one graph.
+type drawer struct {
+	sol  *eval.Solution
+	m    *tree.Model
+	opts Options
+	cur  string
+	wrap int
+	buf  bytes.Buffer
+	// nodes is the solution's pre-order; on and ends are indexed alike.
+	nodes []eval.Solved
+	on    []bool                // reached by the optimal policy
+	ends  map[int]eval.EndPoint // end nodes by index
+	// deepest is the depth of the deepest node drawn: the last column.
+	deepest int
+}
+
+// index works out which nodes the policy reaches and the end points.
+func (d *drawer) index() error {
+	d.nodes = d.sol.Nodes()
+	if len(d.nodes) == 0 || d.sol.Root != &d.nodes[0] {
+		return ErrNoTree
+	}
+	for i := range d.nodes {
+		s := &d.nodes[i]
+		if s.Node == nil {
+			return errors.New("render: the solved tree has a missing node")
+		}
+		if p := s.Parent(); p != nil && (s.Via() < 0 || s.Via() >= len(p.Node.Branches)) {
+			return errors.New("render: the solved tree does not match its model")
+		}
+	}
+	d.on = make([]bool, len(d.nodes))
+	d.on[0] = true
+	for i := 1; i < len(d.nodes); i++ {
+		s := &d.nodes[i]
+		p := s.Parent()
+		d.on[i] = d.on[p.Index()] && d.takes(p, s.Via())
+	}
+	d.ends = map[int]eval.EndPoint{}
+	for _, e := range d.sol.Ends() {
+		d.ends[e.Index()] = e
+	}
+	return nil
+}
+
+// takes reports whether the policy, once at s, follows branch j.
+func (d *drawer) takes(s *eval.Solved, j int) bool {
+	return s.Node.Kind != tree.KindDecision || s.Chosen() == j
+}
+
+func (d *drawer) graph(steps []step) {
+	b := &d.buf
+	name := d.m.Title
+	if name == "" {
+		name = "Decision tree"
+	}
+	fmt.Fprintf(b, "digraph %s {\n", quote(name))
+	fmt.Fprintf(b, "\tgraph [rankdir=LR ordering=out nodesep=0.12 ranksep=0.4 splines=line pad=0.3 bgcolor=%q class=\"forkcast\" fontname=%q labelloc=t labeljust=l label=<%s>]\n",
+		colPaper, fontFamily, d.titleLabel())
+	fmt.Fprintf(b, "\tnode [fontname=%q fontsize=%g fontcolor=%q fixedsize=shape penwidth=%s color=%q]\n",
+		fontFamily, fontNode, colInk, penNode, colNode)
+	fmt.Fprintf(b, "\tedge [arrowhead=none penwidth=%s color=%q tailport=e headport=w]\n", penOther, colOther)
+	for _, st := range steps {
+		d.deepest = max(d.deepest, d.nodes[st.i].Depth())
+	}
+	// Label nodes of one depth share a rank, and Graphviz ends every edge
+	// at a rank's full width, so the labels of a rank are made equally wide
+	// for their rules to meet the edges.
+	labels := make([]labelSpec, len(steps))
+	width := map[int]float64{}
+	for k, st := range steps {
+		switch {
+		case st.others:
+			labels[k] = d.othersLabel(st.i)
+		case st.i > 0:
+			labels[k] = d.branchLabel(&d.nodes[st.i])
+		default:
+			continue
+		}
+		width[labels[k].depth] = max(width[labels[k].depth], labels[k].width())
+	}
+	for k, st := range steps {
+		s := &d.nodes[st.i]
+		if st.others {
+			l := labels[k]
+			d.labelNode(l, width[l.depth])
+			fmt.Fprintf(b, "\tn%d -> %s [id=\"e%dx\" class=%q%s]\n", st.i, l.id, st.i, l.look.class, l.look.edgeAttrs())
+			continue
+		}
+		if st.i > 0 {
+			l := labels[k]
+			d.labelNode(l, width[l.depth])
+			fmt.Fprintf(b, "\tn%d -> %s [id=\"e%d\" class=%q%s]\n", s.Parent().Index(), l.id, st.i, l.look.class, l.look.edgeAttrs())
+		}
+		if d.cut(s) && s.Size() > 1 {
+			d.depthStub(st.i)
+		} else {
+			d.node(st.i)
+		}
+		if st.i > 0 {
+			l := labels[k]
+			// A heavy weight keeps the label level with the node it leads to,
+			// so that the bend of a branch falls before its label.
+			fmt.Fprintf(b, "\t%s -> n%d [id=\"f%d\" class=%q weight=20%s]\n", l.id, st.i, st.i, l.look.class, l.look.edgeAttrs())
+		}
+	}
+	b.WriteString("}\n")
+}
+
+// step is one thing to draw: node i with the branch into it, or (others)
+// the stub for the options decision i rejects.
+type step struct {
+	i      int
+	others bool
+}
+
+// cut reports whether MaxDepth stops the drawing at s.
+func (d *drawer) cut(s *eval.Solved) bool {
+	return d.opts.MaxDepth > 0 && s.Depth() >= d.opts.MaxDepth
+}
+
+// plan lists what is drawn, in pre-order (without recursion), which is the
+// order it is written in: with ordering=out, Graphviz keeps each node's
+// branches top to bottom in the order their edges come.
+func (d *drawer) plan() []step {
+	var out []step
+	stack := []step{{i: 0}}
+	for len(stack) > 0 {
+		st := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		out = append(out, st)
+		s := &d.nodes[st.i]
+		if st.others || d.cut(s) {
+			continue
+		}
+		kids := s.Kids()
+		if d.opts.PolicyOnly && s.Node.Kind == tree.KindDecision && len(kids) > 0 {
+			if _, _, ok := s.Margin(); ok {
+				stack = append(stack, step{i: st.i, others: true})
+			}
+			if c := s.Chosen(); c >= 0 && c < len(kids) {
+				stack = append(stack, step{i: kids[c].Index()})
+			}
+			continue
+		}
+		for j := len(kids) - 1; j >= 0; j-- {
+			stack = append(stack, step{i: kids[j].Index()})
+		}
+	}
+	return out
+}
+
+// titleLabel is the graph's heading, flush left: the title, the answer
+// and a key to the drawing.
+func (d *drawer) titleLabel() string {
+	var h htmlText
+	row := func(size float64, color string, bold bool, text string) {
+		h.raw(`<TR><TD ALIGN="LEFT" CELLPADDING="1">`)
+		h.font(size, color, bold, text)
+		h.raw(`</TD></TR>`)
+	}
+	h.raw(`<TABLE BORDER="0" CELLBORDER="0" CELLSPACING="0" CELLPADDING="0">`)
+	if d.m.Title != "" {
+		row(fontTitle, colInk, true, clean(d.m.Title))
+	}
+	root := d.sol.Root
+	line := d.valueText(root.Value())
+	if root.Node.Kind == tree.KindDecision && root.Chosen() >= 0 {
+		line = "Best: " + clean(root.Node.Branches[root.Chosen()].Label) + " · " + line
+	}
+	row(fontNode+1, colInk, false, line)
+	key := "Thick blue: the optimal policy · dashed " + pruneMark + ": an option not taken"
+	if d.opts.PolicyOnly {
+		key += " · only the optimal policy drawn"
+	}
+	if d.opts.MaxDepth > 0 {
+		key += fmt.Sprintf(" · cut at depth %d", d.opts.MaxDepth)
+	}
+	row(fontEdge, colInkSoft, false, key)
+	h.raw(`<TR><TD CELLPADDING="1" HEIGHT="8"></TD></TR></TABLE>`)
+	return h.String()
+}
+
+// look is how one branch is drawn.
+type look struct {
+	class  string
+	color  string
+	pen    string
+	band   int // thickness of the rule under the label, points
+	dashed bool
+	ink    string
+	bold   bool
+}
+
+func (l look) edgeAttrs() string {
+	s := fmt.Sprintf(" color=%q penwidth=%s", l.color, l.pen)
+	if l.dashed {
+		s += " style=dashed"
+	}
+	return s
+}
+
+var (
+	lookPolicy = look{class: "branch optimal", color: colPolicy, pen: penPolicy, band: bandPolicy, ink: colInk, bold: true}
+	lookOther  = look{class: "branch", color: colOther, pen: penOther, band: bandOther, ink: colInkSoft}
+	lookPruned = look{class: "branch pruned", color: colPruned, pen: penOther, band: bandOther, dashed: true, ink: colInkSoft}
+)
+
+// branchLook is how the branch into s is drawn.
+func (d *drawer) branchLook(s *eval.Solved) look {
+	p := s.Parent()
+	switch {
+	case d.on[s.Index()]:
+		return lookPolicy
+	case p.Node.Kind == tree.KindDecision && p.Chosen() != s.Via():
+		return lookPruned
+	}
+	return lookOther
+}
+
+// labelSpec is a branch label: the node (id bK, or bKx for the stub of
+// the options decision K rejects) that carries the branch's name above a
+// rule and its probability and cash flow below, at the depth of the node
+// the branch leads to.
+type labelSpec struct {
+	id           string
+	look         look
+	above, below []string
+	depth        int
+}
+
+// width is the label's estimated width in points, padding included.
+func (l labelSpec) width() float64 {
+	w := 0.0
+	for _, s := range l.above {
+		w = max(w, textWidth(s, fontEdge, l.look.bold))
+	}
+	for _, s := range l.below {
+		w = max(w, textWidth(s, fontEdge, false))
+	}
+	return w + 6
+}
+
+// branchLabel is the label of the branch into s.
+func (d *drawer) branchLabel(s *eval.Solved) labelSpec {
+	i := s.Index()
+	p := s.Parent()
+	b := p.Node.Branches[s.Via()]
+	st := d.branchLook(s)
+	lines := wrapText(clean(b.Label), d.wrap)
+	if st.dashed {
+		if len(lines) == 0 {
+			lines = []string{pruneMark}
+		} else {
+			lines[0] = pruneMark + " " + lines[0]
+		}
+		if p.IsBest(s.Via()) {
+			lines[len(lines)-1] += " (tie)"
+		}
+	}
+	var figs []string
+	if p.Node.Kind == tree.KindChance {
+		figs = append(figs, Percent(b.P, 2))
+	}
+	if !b.C.IsZero() {
+		figs = append(figs, d.cash(b.C))
+	}
+	var below []string
+	if len(figs) > 0 {
+		below = []string{strings.Join(figs, " · ")}
+	}
+	return labelSpec{id: fmt.Sprintf("b%d", i), look: st, above: lines, below: below, depth: s.Depth()}
+}
+
+// labelNode writes a branch label: lines above a rule drawn like the
+// branch, lines below it. The rule runs through the node's middle, where
+// the edges meet it, so that the branch reads as one line.
+func (d *drawer) labelNode(l labelSpec, width float64) {
+	st, above, below := l.look, l.above, l.below
+	rows := max(len(above), len(below), 1)
+	h := float64(rows)*fontEdge*1.2 + 4
+	// The rule is a filled cell for the optimal policy, else the top border
+	// of a cell (dashed for a rejected option). The rows around it are
+	// sized to centre it: equal for a filled cell; for a 1-point border,
+	// measured, the row above 2 points taller. (An empty cell with neither
+	// padding nor border makes Graphviz 12 fail silently once an edge
+	// meets the node, hence the padding.)
+	hAbove, rule := h, ""
+	if st.band > 1 {
+		rule = `<TD WIDTH="` + pts(width) + `" HEIGHT="` + strconv.Itoa(st.band) + `" CELLPADDING="1" BGCOLOR="` + st.color + `"></TD>`
+	} else {
+		dash := ""
+		if st.dashed {
+			dash = ` STYLE="dashed"`
+		}
+		rule = `<TD WIDTH="` + pts(width) + `" HEIGHT="1" BORDER="1" SIDES="T"` + dash + ` COLOR="` + st.color + `"></TD>`
+		hAbove += 2
+	}
+	var t htmlText
+	t.raw(`<TABLE BORDER="0" CELLBORDER="0" CELLSPACING="0" CELLPADDING="0">`)
+	t.raw(`<TR><TD HEIGHT="` + pts(hAbove) + `" CELLPADDING="2" VALIGN="BOTTOM">`)
+	t.lines(fontEdge, st.ink, st.bold, above)
+	t.raw(`</TD></TR><TR>` + rule + `</TR>`)
+	t.raw(`<TR><TD HEIGHT="` + pts(h) + `" CELLPADDING="2" VALIGN="TOP">`)
+	t.lines(fontEdge, st.ink, false, below)
+	t.raw(`</TD></TR></TABLE>`)
+	fmt.Fprintf(&d.buf, "\t%s [id=%q class=%q shape=plain label=<%s>]\n", l.id, l.id, st.class, t.String())
+}
+
+// node writes a decision, chance or end node.
+func (d *drawer) node(i int) {
+	s := &d.nodes[i]
+	n := s.Node
+	on := d.on[i]
+	classes := n.Kind.String()
+	stroke, fill, pen, ink := colNode, colPaper, penNode, colInkSoft
+	if on {
+		classes += " optimal"
+		stroke, fill, pen, ink = colPolicy, colFill, penPolicyNd, colInk
+	}
+	var shape, label string
+	switch n.Kind {
+	case tree.KindDecision:
+		shape = fmt.Sprintf("shape=square width=%g height=%g", sizeDecision, sizeDecision)
+		label = d.innerLabel(s, sizeDecision, on, ink)
+	case tree.KindChance:
+		shape = fmt.Sprintf("shape=circle width=%g height=%g", sizeChance, sizeChance)
+		label = d.innerLabel(s, sizeChance, on, ink)
+	default:
+		shape = fmt.Sprintf("shape=triangle orientation=270 width=%g height=%g", sizeEnd, sizeEnd)
+		label = d.endLabel(i, ink)
+	}
+	fmt.Fprintf(&d.buf, "\tn%d [id=\"n%d\" class=%q %s style=filled color=%q fillcolor=%q penwidth=%s label=<%s>]\n",
+		i, i, classes, shape, stroke, fill, pen, label)
+}
+
+// textLine is one line of node text.
+type textLine struct {
+	text  string
+	color string
+	bold  bool
+}
+
+// innerLabel sets a decision's or chance node's title above its shape and
+// its expected value below.
+func (d *drawer) innerLabel(s *eval.Solved, side float64, on bool, ink string) string {
+	var above []textLine
+	for _, l := range wrapText(d.nodeTitle(s.Node), d.wrap) {
+		above = append(above, textLine{l, ink, false})
+	}
+	if !s.Node.TestCost.IsZero() {
+		above = append(above, textLine{"test: " + d.cash(s.Node.TestCost), ink, false})
+	}
+	col := colInkSoft
+	if on {
+		col = colPolicy
+	}
+	return stacked(above, []textLine{{d.valueText(s.Value()), col, on}}, side*72)
+}
+
+// stacked sets lines above and below a shape side points wide, all ending
+// flush with the shape's right side, so that the branches fanning out to
+// the right cross no text. Graphviz centres the label on the shape, so the
+// table is symmetric: a blank column on the right as wide as the text's
+// overhang on the left, and rows above and below the shape equally tall.
+func stacked(above, below []textLine, side float64) string {
+	w := 0.0
+	for _, l := range append(above[:len(above):len(above)], below...) {
+		w = max(w, textWidth(l.text, fontNode, l.bold))
+	}
+	over := pts(max(w-side, 0) + 6)
+	h := pts(float64(max(len(above), len(below), 1))*lineNode + 2)
+	var t htmlText
+	write := func(ls []textLine) {
+		for k, l := range ls {
+			if k > 0 {
+				t.br()
+			}
+			t.font(0, l.color, l.bold, l.text)
+		}
+	}
+	t.raw(`<TABLE BORDER="0" CELLBORDER="0" CELLSPACING="0" CELLPADDING="0">`)
+	t.raw(`<TR><TD COLSPAN="2" HEIGHT="` + h + `" ALIGN="RIGHT" BALIGN="RIGHT" VALIGN="BOTTOM">`)
+	write(above)
+	t.raw(`</TD><TD ROWSPAN="3" CELLPADDING="1" WIDTH="` + over + `"></TD></TR>`)
+	t.raw(`<TR><TD CELLPADDING="1" WIDTH="` + over + `"></TD><TD CELLPADDING="1" WIDTH="` + pts(side) + `" HEIGHT="` + pts(side+6) + `"></TD></TR>`)
+	t.raw(`<TR><TD COLSPAN="2" HEIGHT="` + h + `" ALIGN="RIGHT" BALIGN="RIGHT" VALIGN="TOP">`)
+	write(below)
+	t.raw(`</TD></TR></TABLE>`)
+	return t.String()
+}
+
+// endLabel sets the cumulative payoff and path probability to the right of
+// an end node's triangle: a one-row table of three cells, the middle one as
+// wide as the triangle and the outer two equally wide (the left one blank),
+// so that the triangle stays in the middle where Graphviz puts it.
+//
+// An end node with nodes beyond it in its column (a short path in a deep
+// tree) has the text above and below instead, like other nodes: to its
+// right it would narrow the room the branches of the nodes beside it fan
+// out in.
+func (d *drawer) endLabel(i int, ink string) string {
+	s := &d.nodes[i]
+	e := d.ends[i]
+	lines := wrapText(d.endTitle(s.Node), d.wrap)
+	first := d.payoffText(e.Payoff)
+	second := "p = " + Percent(e.Prob, 2)
+	if s.Depth() < d.deepest {
+		var above []textLine
+		for _, l := range lines {
+			above = append(above, textLine{l, ink, false})
+		}
+		col := colInkSoft
+		if d.on[i] {
+			col = colPolicy
+		}
+		above = append(above, textLine{first, col, d.on[i]})
+		return stacked(above, []textLine{{second, ink, false}}, sizeEnd*72)
+	}
+	w := max(textWidth(first, fontNode, true), textWidth(second, fontNode, false))
+	for _, l := range lines {
+		w = max(w, textWidth(l, fontNode, false))
+	}
+	cell := pts(w + 6)
+	col := colInkSoft
+	if d.on[i] {
+		col = colPolicy
+	}
+	var t htmlText
+	t.raw(`<TABLE BORDER="0" CELLBORDER="0" CELLSPACING="0" CELLPADDING="0"><TR>`)
+	t.raw(`<TD CELLPADDING="1" WIDTH="` + cell + `"></TD>`)
+	t.raw(`<TD CELLPADDING="1" WIDTH="` + pts(sizeEnd*72+8) + `" HEIGHT="` + pts(sizeEnd*72+4) + `"></TD>`)
+	t.raw(`<TD WIDTH="` + cell + `" ALIGN="LEFT" BALIGN="LEFT">`)
+	for _, l := range lines {
+		t.font(0, ink, false, l)
+		t.br()
+	}
+	t.font(0, col, d.on[i], first)
+	t.br()
+	t.font(0, ink, false, second)
+	t.raw(`</TD></TR></TABLE>`)
+	return t.String()
+}
+
+// depthStub stands in for the subtree at pre-order position i, cut by
+// MaxDepth: a small dashed box with the node's title, how many nodes it
+// hides and its expected value.
+func (d *drawer) depthStub(i int) {
+	s := &d.nodes[i]
+	on := d.on[i]
+	classes, stroke, pen, ink, col := "stub", colNode, penNode, colInkSoft, colInkSoft
+	if on {
+		classes, stroke, pen, ink, col = "stub optimal", colPolicy, "1.6", colInk, colPolicy
+	}
+	var t htmlText
+	for _, l := range wrapText(d.nodeTitle(s.Node), d.wrap) {
+		t.font(0, ink, false, l)
+		t.br()
+	}
+	t.font(fontEdge, ink, false, fmt.Sprintf("%s %s not drawn", Grouped(strconv.Itoa(s.Size())), plural(s.Size(), "node", "nodes")))
+	t.br()
+	t.font(0, col, on, d.valueText(s.Value()))
+	fmt.Fprintf(&d.buf, "\tn%d [id=\"n%d\" class=%q shape=box style=\"rounded,dashed\" fixedsize=false width=0 height=0 margin=\"0.2,0.08\" color=%q penwidth=%s label=<%s>]\n",
+		i, i, classes, stroke, pen, t.String())
+}
+
+// othersLabel folds the options the decision at pre-order position i
+// rejects into one stub branch (PolicyOnly): a dashed branch that ends at
+// its label, which says how many options there are and which is the best
+// of them, with its value.
+func (d *drawer) othersLabel(i int) labelSpec {
+	s := &d.nodes[i]
+	margin, runnerUp, _ := s.Margin()
+	others := len(s.Node.Branches) - 1
+	above := []string{fmt.Sprintf("%s %s other %s", pruneMark, Grouped(strconv.Itoa(others)), plural(others, "option", "options"))}
+	lead := "best: "
+	if others == 1 {
+		lead = ""
+	}
+	var below []string
+	if runnerUp >= 0 {
+		below = wrapText(lead+clean(s.Node.Branches[runnerUp].Label), d.wrap)
+		v := d.valueText(s.BranchValue(runnerUp))
+		if margin.IsZero() {
+			v += " (tie)"
+		}
+		below = append(below, v)
+	}
+	st := lookPruned
+	st.class = "branch pruned others"
+	return labelSpec{id: fmt.Sprintf("b%dx", i), look: st, above: above, below: below, depth: s.Depth() + 1}
+}
+
+// nodeTitle is what a decision or chance node is called in the picture.
+func (d *drawer) nodeTitle(n *tree.Node) string {
+	switch {
+	case n.Label != "":
+		return clean(n.Label)
+	case n.Test != "":
+		if t := d.m.TestNamed(n.Test); t != nil {
+			return clean(t.Display())
+		}
+		return clean(n.Test)
+	case n.Uncertainty != "":
+		if u := d.m.Uncertainty(n.Uncertainty); u != nil {
+			return clean(u.Display())
+		}
+		return clean(n.Uncertainty)
+	}
+	return ""
+}
+
+// endTitle is an end node's own label, if it has one.
+func (d *drawer) endTitle(n *tree.Node) string { return clean(n.Label) }
+
+// valueText is a node's expected value as the picture shows it.
+func (d *drawer) valueText(v decimal.Decimal) string {
+	if d.m.Objective == tree.Min {
+		return "expected cost " + Money(v, d.cur)
+	}
+	return "EV " + Money(v, d.cur)
+}
+
+// payoffText is an end node's cumulative payoff.
+func (d *drawer) payoffText(v decimal.Decimal) string {
+	if d.m.Objective == tree.Min {
+		return "total cost " + Money(v, d.cur)
+	}
+	return "net " + Money(v, d.cur)
+}
+
+// cash is a branch's cash flow in the objective's terms, written as people
+// write it.
+func (d *drawer) cash(c decimal.Decimal) string { return Cash(c, d.m.Objective, d.cur) }
+
+// Cash writes a cash flow given in the objective's terms (a payoff under
+// tree.Max, a cost under tree.Min) as a gain or a cost with its currency:
+// "gain 1,400,000.00 EUR", "cost 520,000.00 EUR". Zero is "".
+func Cash(c decimal.Decimal, obj tree.Objective, currency string) string {
+	if c.IsZero() {
+		return ""
+	}
+	gain := c.IsPositive()
+	if obj == tree.Min {
+		gain = !gain
+	}
+	word := "cost "
+	if gain {
+		word = "gain "
+	}
+	return word + Money(c.Abs(), currency)
+}
+
+func plural(n int, one, many string) string {
+	if n == 1 {
+		return one
+	}
+	return many
+}
+
+// pts formats a length in points for an HTML-like label attribute, which
+// takes whole numbers.
+func pts(v float64) string {
+	return strconv.Itoa(int(v + 0.999))
+}
+
+// quote makes a DOT quoted string. DOT's only escape is \" and a trailing
+// backslash would escape the closing quote, so backslashes become slashes.
+func quote(s string) string {
+	s = clean(s)
+	s = strings.ReplaceAll(s, `\`, "/")
+	s = strings.ReplaceAll(s, `"`, `\"`)
+	return `"` + s + `"`
+}
+
+// clean makes a label safe to show: valid UTF-8, control characters (line
+// breaks included) turned into spaces, runs of spaces folded.
+func clean(s string) string {
+	s = strings.ToValidUTF8(s, "\uFFFD")
+	s = strings.Map(func(r rune) rune {
+		if unicode.IsControl(r) || r == '\u2028' || r == '\u2029' {
+			return ' '
+		}
+		return r
+	}, s)
+	return strings.Join(strings.Fields(s), " ")
+}
+
+// wrapText breaks s at spaces into lines of at most width characters; a
+// word longer than width is broken within. Empty input gives no lines.
+func wrapText(s string, width int) []string {
+	var lines []string
+	var cur strings.Builder
+	n := 0
+	for _, w := range strings.Fields(s) {
+		for utf8.RuneCountInString(w) > width {
+			if n > 0 {
+				lines = append(lines, cur.String())
+				cur.Reset()
+				n = 0
+			}
+			r := []rune(w)
+			lines = append(lines, string(r[:width]))
+			w = string(r[width:])
+		}
+		wl := utf8.RuneCountInString(w)
+		if wl == 0 {
+			continue
+		}
+		if n > 0 && n+1+wl > width {
+			lines = append(lines, cur.String())
+			cur.Reset()
+			n = 0
+		}
+		if n > 0 {
+			cur.WriteByte(' ')
+			n++
+		}
+		cur.WriteString(w)
+		n += wl
+	}
+	if n > 0 {
+		lines = append(lines, cur.String())
+	}
+	return lines
+}
+
+// htmlText builds the body of a Graphviz HTML-like label.
+type htmlText struct{ strings.Builder }
+
+func (h *htmlText) raw(s string) { h.WriteString(s) }
+
+func (h *htmlText) br() { h.WriteString(`<BR/>`) }
+
+// lines writes lines of text, one under another.
+func (h *htmlText) lines(size float64, color string, bold bool, lines []string) {
+	for k, l := range lines {
+		if k > 0 {
+			h.br()
+		}
+		h.font(size, color, bold, l)
+	}
+}
+
+// font writes text (escaped) in a colour, optionally bold and at a size
+// (0 keeps the size it inherits).
+func (h *htmlText) font(size float64, color string, bold bool, text string) {
+	h.WriteString(`<FONT COLOR="` + color + `"`)
+	if size > 0 {
+		h.WriteString(` POINT-SIZE="` + strconv.FormatFloat(size, 'f', -1, 64) + `"`)
+	}
+	h.WriteString(`>`)
+	if bold {
+		h.WriteString(`<B>`)
+	}
+	h.WriteString(escapeHTML(text))
+	if bold {
+		h.WriteString(`</B>`)
+	}
+	h.WriteString(`</FONT>`)
+}
+
+// escapeHTML escapes text for an HTML-like label (XML rules).
+func escapeHTML(s string) string {
+	var b strings.Builder
+	for _, r := range s {
+		switch r {
+		case '&':
+			b.WriteString("&amp;")
+		case '<':
+			b.WriteString("&lt;")
+		case '>':
+			b.WriteString("&gt;")
+		case '"':
+			b.WriteString("&quot;")
+		case '\'':
+			b.WriteString("&#39;")
+		default:
+			b.WriteRune(r)
+		}
+	}
+	return b.String()
+}
+
+// textWidth estimates the width in points of s set in Helvetica at size:
+// the advance widths of the Helvetica AFM for ASCII (bold a little wider),
+// 0.6 em for anything else. It only sizes the blank cell that balances an
+// end node's label, so erring wide is harmless.
+func textWidth(s string, size float64, bold bool) float64 {
+	em := 0.0
+	for _, r := range s {
+		w := 600
+		if r < 128 && r >= 32 {
+			w = helvetica[r-32]
+		}
+		em += float64(w)
+	}
+	if bold {
+		em *= 1.08
+	}
+	return em / 1000 * size
+}
+
+// helvetica holds the advance widths (1/1000 em) of Helvetica for the
+// printable ASCII characters, space first.
+var helvetica = [95]int{
+	278, 278, 355, 556, 556, 889, 667, 191, 333, 333, 389, 584, 278, 333, 278, 278,
+	556, 556, 556, 556, 556, 556, 556, 556, 556, 556, 278, 278, 584, 584, 584, 556,
+	1015, 667, 667, 722, 722, 667, 611, 778, 722, 278, 500, 667, 556, 833, 722, 778,
+	667, 778, 722, 667, 611, 722, 667, 944, 667, 667, 611, 278, 278, 278, 469, 556,
+	333, 556, 556, 500, 556, 556, 278, 556, 556, 222, 222, 500, 222, 833, 556, 556,
+	556, 556, 333, 500, 278, 556, 500, 722, 500, 500, 500, 334, 260, 334, 584,
+}

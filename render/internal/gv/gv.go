@@ -1,0 +1,115 @@
+// Package gv is the one door to go-graphviz: it serialises every call into
+// its WebAssembly instance and turns its panics into errors.
+//
+// go-graphviz runs a single WebAssembly instance of Graphviz per process
+// (created in its package init) and its calls are not safe for concurrent
+// use: two goroutines calling it at once crash the process, even through
+// separate graphviz.Graphviz values. The lock below guards that process-wide
+// instance; it is the only package-level state, and it holds no data.
+package gv
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"io"
+	"sync"
+
+	"github.com/forkcast/forkcast/render/internal/gvcache"
+	graphviz "github.com/goccy/go-graphviz"
+)
+
+func init() {
+	// go-graphviz has initialised by now (this package imports it): give
+	// the process its temporary directory back.
+	gvcache.Restore()
+}
+
+// mu guards go-graphviz's process-wide WebAssembly instance.
+var mu sync.Mutex
+
+// Context is one Graphviz context (a GVC_t). Its methods are safe for
+// concurrent use.
+type Context struct {
+	g *graphviz.Graphviz
+}
+
+// New makes a context.
+func New(ctx context.Context) (c *Context, err error) {
+	mu.Lock()
+	defer mu.Unlock()
+	defer recoverInto(&err)
+	g, err := graphviz.New(ctx)
+	if err != nil {
+		return nil, err
+	}
+	return &Context{g: g}, nil
+}
+
+// Close frees the context.
+func (c *Context) Close() (err error) {
+	mu.Lock()
+	defer mu.Unlock()
+	defer recoverInto(&err)
+	if c.g == nil {
+		return nil
+	}
+	g := c.g
+	c.g = nil
+	return g.Close()
+}
+
+// Render lays out a graph in the DOT language with the dot engine and
+// writes it in format ("svg", "png"). dpi, when positive, sets the
+// resolution of raster formats.
+func (c *Context) Render(ctx context.Context, dot []byte, format string, dpi float64, w io.Writer) (err error) {
+	if err := ctx.Err(); err != nil {
+		return err
+	}
+	var buf bytes.Buffer
+	if err := c.render(ctx, dot, format, dpi, &buf); err != nil {
+		return err
+	}
+	_, err = w.Write(buf.Bytes())
+	return err
+}
+
+func (c *Context) render(ctx context.Context, dot []byte, format string, dpi float64, buf *bytes.Buffer) (err error) {
+	mu.Lock()
+	defer mu.Unlock()
+	defer recoverInto(&err)
+	if c.g == nil {
+		return fmt.Errorf("graphviz: the renderer is closed")
+	}
+	graph, err := graphviz.ParseBytes(dot)
+	if err != nil {
+		return fmt.Errorf("graphviz: %w", err)
+	}
+	if graph == nil {
+		return fmt.Errorf("graphviz: no graph in the input")
+	}
+	defer func() {
+		if cerr := graph.Close(); cerr != nil && err == nil {
+			err = cerr
+		}
+	}()
+	if dpi > 0 {
+		graph.SetDPI(dpi)
+	}
+	c.g.SetLayout(graphviz.DOT)
+	if err := c.g.Render(ctx, graph, graphviz.Format(format), buf); err != nil {
+		return fmt.Errorf("graphviz: %w", err)
+	}
+	// go-graphviz drops the status of the render call: a failure shows
+	// only as missing output.
+	if buf.Len() == 0 || (format == "svg" && !bytes.Contains(buf.Bytes(), []byte("</svg>"))) {
+		return fmt.Errorf("graphviz could not draw the graph (it gave no %s output)", format)
+	}
+	return nil
+}
+
+func recoverInto(err *error) {
+	if r := recover(); r != nil {
+		*err = fmt.Errorf("graphviz failed: %v", r)
+	}
+}
