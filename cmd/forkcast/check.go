@@ -1,0 +1,75 @@
+package main
+
+import (
+	"fmt"
+	"strings"
+
+	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/examples"
+	"github.com/urfave/cli/v2"
+)
+
+func checkCommand() *cli.Command {
+	return &cli.Command{
+		Name:      "check",
+		Usage:     "parse and validate a model; report every error and warning",
+		ArgsUsage: "FILE",
+		UsageText: "forkcast check FILE\n\n" +
+			"   forkcast check model.fork && forkcast solve model.fork",
+		Description: "Reads the model and reports every problem found, not only the first, as\n" +
+			"file:line:col: message, the source line, a caret under the spot and a hint.\n" +
+			"Errors (exit status 1) stop a model from being solved: syntax, unknown names,\n" +
+			"probabilities outside [0, 1] or not summing to 1, duplicate labels, cycles.\n" +
+			"Warnings do not: branches with probability 0, options that are worse than\n" +
+			"another option of the same decision in every outcome, `let`s never used.",
+		Flags: []cli.Flag{maxNodesFlag},
+		Action: func(c *cli.Context) error {
+			l, err := loadModel(c)
+			if err != nil {
+				return err
+			}
+			sol, err := eval.Solve(l.Model)
+			if err != nil {
+				return modelErr("%v", err)
+			}
+			ds := append(l.Diags, eval.Dominated(sol)...).Sort()
+			ds.Print(c.App.ErrWriter, l.Name, l.Src)
+			fmt.Fprintf(c.App.Writer, "%s: ok: %d nodes, %d warning%s\n", l.Name, len(sol.Nodes()), len(ds), plural(len(ds)))
+			return nil
+		},
+	}
+}
+
+func examplesCommand() *cli.Command {
+	return &cli.Command{
+		Name:      "examples",
+		Usage:     "list the example models built in, or print one",
+		ArgsUsage: "[NAME]",
+		UsageText: "forkcast examples            list them\n" +
+			"   forkcast examples sourcing   print one (save it with > sourcing.fork)\n" +
+			"   forkcast solve example:sourcing",
+		Description: "The examples are invented scenarios, built into the binary so that a fresh\n" +
+			"install can show a worked model with no files at hand. Any command that takes\n" +
+			"a FILE also takes example:NAME.",
+		Action: func(c *cli.Context) error {
+			w := c.App.Writer
+			switch c.NArg() {
+			case 0:
+				for _, name := range examples.Names() {
+					ex, _ := examples.Get(name)
+					fmt.Fprintf(w, "%-12s %s\n", name, ex.Summary())
+				}
+				fmt.Fprintln(w, "\nprint one with `forkcast examples NAME`; solve one with `forkcast solve example:NAME`")
+				return nil
+			case 1:
+				ex, ok := examples.Get(c.Args().First())
+				if !ok {
+					return usageErr("no example %q; the examples are: %s", c.Args().First(), strings.Join(examples.Names(), ", "))
+				}
+				_, err := w.Write(ex.Source)
+				return err
+			}
+			return usageErr("examples takes at most one NAME")
+		},
+	}
+}

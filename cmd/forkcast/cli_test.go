@@ -1,0 +1,173 @@
+package main
+
+import (
+	"bytes"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// forkcast runs the CLI in-process.
+func forkcast(t *testing.T, stdin string, args ...string) (code int, stdout, stderr string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code = run(append([]string{"forkcast"}, args...), strings.NewReader(stdin), &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func writeFile(t *testing.T, name, content string) string {
+	t.Helper()
+	p := filepath.Join(t.TempDir(), name)
+	if err := os.WriteFile(p, []byte(content), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
+func TestSolveExample(t *testing.T) {
+	code, out, errs := forkcast(t, "", "solve", "../../examples/sourcing.fork")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	// 0.85 × 1,340,000 + 0.15 × 1,100,000 − 340,000 (worked by hand from
+	// the example's own figures).
+	for _, want := range []string{
+		"Ticket-scanner software: build, buy or lease",
+		"expected value:  964,000.00 EUR",
+		`take "Lease the service": better by 9,000.00 EUR than "Buy a licence"`,
+		`* "Lease the service"  cost 340,000.00`,
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+func TestFlagsAfterFileAndStdin(t *testing.T) {
+	_, before, _ := forkcast(t, "", "solve", "--json", "example:sourcing")
+	_, after, _ := forkcast(t, "", "solve", "example:sourcing", "--json")
+	if before == "" || before != after {
+		t.Fatalf("--json before and after the file differ:\n%s\n---\n%s", before, after)
+	}
+	src, _ := os.ReadFile("../../examples/sourcing.fork")
+	_, piped, _ := forkcast(t, string(src), "solve", "-", "--json")
+	if piped != before {
+		t.Fatalf("standard input gives other output")
+	}
+	// And the JSON from standard input is read as JSON.
+	_, again, errs := forkcast(t, before, "solve", "--json", "-")
+	var a, b map[string]any
+	if err := json.Unmarshal([]byte(before), &a); err != nil {
+		t.Fatal(err)
+	}
+	if err := json.Unmarshal([]byte(again), &b); err != nil {
+		t.Fatalf("%v: %s", err, errs)
+	}
+	if a["value"] != b["value"] {
+		t.Fatalf("value %v after a JSON round trip, want %v", b["value"], a["value"])
+	}
+}
+
+func TestSolveJSONShape(t *testing.T) {
+	code, out, errs := forkcast(t, "", "solve", "--json", "../../examples/expansion.fork")
+	if code != 0 {
+		t.Fatal(errs)
+	}
+	dec := json.NewDecoder(strings.NewReader(out))
+	dec.UseNumber()
+	var top map[string]any
+	if err := dec.Decode(&top); err != nil {
+		t.Fatal(err)
+	}
+	if top["objective"] != "max" || top["value"] != "226500" {
+		t.Fatalf("objective %v value %v; want max and \"226500\"", top["objective"], top["value"])
+	}
+	var walk func(n map[string]any)
+	count := 0
+	walk = func(n map[string]any) {
+		count++
+		if _, ok := n["value"].(string); !ok {
+			t.Errorf("node %v has no string value", n["label"])
+		}
+		if n["type"] == "decision" {
+			if best, ok := n["best"].([]any); !ok || len(best) == 0 {
+				t.Errorf("decision %v has no best", n["label"])
+			}
+		}
+		bs, _ := n["branches"].([]any)
+		for _, b := range bs {
+			walk(b.(map[string]any)["node"].(map[string]any))
+		}
+	}
+	walk(top["root"].(map[string]any))
+	if count != 16 {
+		t.Errorf("%d nodes in the JSON, want 16", count)
+	}
+	if !strings.Contains(out, `"best": ["Pilot kiosk first"]`) {
+		t.Errorf("root best not as expected:\n%s", out)
+	}
+}
+
+func TestExitCodes(t *testing.T) {
+	bad := writeFile(t, "bad.fork", "decision \"d\"\n  \"a\"  cost nope\n")
+	warn := writeFile(t, "warn.fork", "let unused = 1\ndecision \"d\"\n  \"a\"  gain 5\n")
+	cases := []struct {
+		name   string
+		args   []string
+		code   int
+		stderr string
+	}{
+		{"model error", []string{"solve", bad}, 1, "bad.fork:2:13: unknown name \"nope\""},
+		{"check error", []string{"check", bad}, 1, "1 error; nothing was solved"},
+		{"check warning", []string{"check", warn}, 0, "warn.fork:1:5: warning: \"unused\" is defined but never used"},
+		{"no file", []string{"solve"}, 2, "solve needs a model FILE"},
+		{"two files", []string{"solve", bad, warn}, 2, "solve takes one FILE"},
+		{"missing file", []string{"solve", "no/such.fork"}, 2, "no such file: no/such.fork"},
+		{"unknown flag", []string{"solve", "--colour", bad}, 2, "flag provided but not defined: -colour"},
+		{"unknown example", []string{"solve", "example:nothing"}, 2, "no example \"nothing\""},
+		{"unknown command", []string{"sovle"}, 2, "unknown command \"sovle\""},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, _, errs := forkcast(t, "", c.args...)
+			if code != c.code || !strings.Contains(errs, c.stderr) {
+				t.Fatalf("exit %d, stderr:\n%s\nwant exit %d and %q", code, errs, c.code, c.stderr)
+			}
+		})
+	}
+}
+
+func TestHelpTeaches(t *testing.T) {
+	for _, cmd := range commands() {
+		code, out, _ := forkcast(t, "", cmd.Name, "--help")
+		if code != 0 || !strings.Contains(out, "forkcast "+cmd.Name) {
+			t.Errorf("%s --help: exit %d, no example in:\n%s", cmd.Name, code, out)
+		}
+	}
+}
+
+func TestExamplesCommand(t *testing.T) {
+	_, list, _ := forkcast(t, "", "examples")
+	for _, name := range []string{"sourcing", "release", "expansion"} {
+		if !strings.Contains(list, name) {
+			t.Errorf("list lacks %s:\n%s", name, list)
+		}
+	}
+	_, src, _ := forkcast(t, "", "examples", "sourcing")
+	want, _ := os.ReadFile("../../examples/sourcing.fork")
+	if src != string(want) {
+		t.Error("examples sourcing does not print the bundled file")
+	}
+}
+
+func TestDeterministicOutput(t *testing.T) {
+	for _, args := range [][]string{{"solve", "example:expansion"}, {"solve", "--json", "example:release"}} {
+		_, a, _ := forkcast(t, "", args...)
+		_, b, _ := forkcast(t, "", args...)
+		if a != b {
+			t.Errorf("%v: two runs differ", args)
+		}
+	}
+}

@@ -1,0 +1,163 @@
+package main
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/render"
+	"github.com/urfave/cli/v2"
+)
+
+func drawCommand() *cli.Command {
+	return &cli.Command{
+		Name:      "draw",
+		Usage:     "draw the solved tree as a picture (SVG, PNG or Graphviz DOT)",
+		ArgsUsage: "FILE",
+		UsageText: "forkcast draw [-o OUT] [--format svg|png|dot] [--policy-only] [--depth N] FILE\n\n" +
+			"   forkcast draw examples/sourcing.fork              writes sourcing.svg\n" +
+			"   forkcast draw example:sourcing -o docs/tree.png\n" +
+			"   forkcast draw big.json --policy-only --depth 4 -o big.svg\n" +
+			"   forkcast draw model.fork -o - | gzip > tree.svgz",
+		Description: "Solves the model and draws the tree left to right: decisions as squares,\n" +
+			"chance nodes as circles, end nodes as triangles. Every node shows its expected\n" +
+			"value, every branch its label, probability and cash flow (gain or cost), every\n" +
+			"end node its total payoff and the probability of the path to it. The optimal\n" +
+			"policy is thick and dark blue; options a decision rejects are dashed and\n" +
+			"marked ‖. In SVG, everything on the optimal policy has the class \"optimal\".\n\n" +
+			"OUT defaults to FILE's base name with the format's extension, in the current\n" +
+			"directory (standard output when FILE is -); -o - writes to standard output.\n" +
+			"The format comes from --format, else from OUT's extension (.svg, .png, .dot\n" +
+			"or .gv), else SVG.\n\n" +
+			"For big trees, --policy-only folds the options each decision rejects into one\n" +
+			"stub, and --depth N draws N levels and sums up each deeper subtree in a stub.\n" +
+			"Drawing stops at " + fmt.Sprint(render.DefaultMaxDrawn) + " nodes.",
+		Flags: []cli.Flag{
+			&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the picture to `OUT` (- for standard output)"},
+			&cli.StringFlag{Name: "format", Usage: "picture format: svg, png or dot (`FORMAT`)"},
+			&cli.BoolFlag{Name: "policy-only", Usage: "draw only the optimal policy; fold each decision's other options into one stub"},
+			&cli.IntFlag{Name: "depth", Usage: "draw `N` levels below the root and sum up deeper subtrees (0: all)"},
+			&cli.IntFlag{Name: "wrap", Usage: "wrap labels at `N` characters", Value: render.DefaultWrapWidth},
+			maxNodesFlag,
+		},
+		Action: drawAction,
+	}
+}
+
+// drawFormat is what draw writes: a render.Format or DOT text.
+type drawFormat string
+
+const formatDOT drawFormat = "dot"
+
+func drawAction(c *cli.Context) error {
+	name, err := fileArg(c)
+	if err != nil {
+		return err
+	}
+	out, format, err := drawTarget(c, name)
+	if err != nil {
+		return err
+	}
+	if c.Int("depth") < 0 {
+		return usageErr("--depth %d: give a positive number of levels, or 0 for the whole tree", c.Int("depth"))
+	}
+	if c.Int("wrap") < 1 {
+		return usageErr("--wrap %d: give a line length of at least 1", c.Int("wrap"))
+	}
+	if out == "-" && format == drawFormat(render.PNG) && isTerminal(c.App.Writer) {
+		return usageErr("will not write a PNG to a terminal; give -o FILE.png or redirect the output")
+	}
+	l, err := loadModel(c)
+	if err != nil {
+		return err
+	}
+	l.printWarnings(c)
+	sol, err := eval.Solve(l.Model)
+	if err != nil {
+		return modelErr("%v", err)
+	}
+	opts := render.Options{PolicyOnly: c.Bool("policy-only"), MaxDepth: c.Int("depth"), WrapWidth: c.Int("wrap")}
+	dot, err := render.DOT(sol, opts)
+	if err != nil {
+		var big *render.TooBigError
+		if errors.As(err, &big) {
+			return usageErr("%s: the drawing would have %d nodes, more than the %d a picture can usefully hold; draw less with --policy-only or --depth N", l.Name, big.Nodes, big.Limit)
+		}
+		return modelErr("%s: %v", l.Name, err)
+	}
+	var pic bytes.Buffer
+	if format == formatDOT {
+		pic.Write(dot)
+	} else {
+		r, err := render.NewRenderer(c.Context)
+		if err != nil {
+			return modelErr("%v", err)
+		}
+		defer r.Close()
+		if err := r.Render(c.Context, dot, render.Format(format), &pic); err != nil {
+			return modelErr("%s: %v", l.Name, err)
+		}
+	}
+	if out == "-" {
+		_, err := c.App.Writer.Write(pic.Bytes())
+		return err
+	}
+	if err := os.WriteFile(out, pic.Bytes(), 0o644); err != nil {
+		return modelErr("%v", err)
+	}
+	fmt.Fprintf(c.App.ErrWriter, "wrote %s\n", out)
+	return nil
+}
+
+// drawTarget works out where the picture goes and in which format.
+func drawTarget(c *cli.Context, name string) (out string, format drawFormat, err error) {
+	out = c.String("output")
+	if f := c.String("format"); f != "" {
+		switch strings.ToLower(f) {
+		case "svg", "png", "dot":
+			format = drawFormat(strings.ToLower(f))
+		default:
+			return "", "", usageErr("--format %q: choose svg, png or dot", f)
+		}
+	}
+	if format == "" && out != "" && out != "-" {
+		switch strings.ToLower(filepath.Ext(out)) {
+		case ".png":
+			format = drawFormat(render.PNG)
+		case ".dot", ".gv":
+			format = formatDOT
+		}
+	}
+	if format == "" {
+		format = drawFormat(render.SVG)
+	}
+	if out == "" {
+		if name == "-" {
+			return "-", format, nil
+		}
+		base := strings.TrimPrefix(filepath.Base(name), "example:")
+		if strings.HasPrefix(name, "example:") {
+			base = strings.TrimPrefix(name, "example:")
+		}
+		base = strings.TrimSuffix(base, filepath.Ext(base))
+		if base == "" || base == "." || base == string(filepath.Separator) {
+			base = "tree"
+		}
+		out = base + "." + string(format)
+	}
+	return out, format, nil
+}
+
+// isTerminal reports whether w is a terminal (a character device).
+func isTerminal(w any) bool {
+	f, ok := w.(*os.File)
+	if !ok {
+		return false
+	}
+	st, err := f.Stat()
+	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}

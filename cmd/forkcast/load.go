@@ -1,0 +1,132 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"github.com/forkcast/forkcast/examples"
+	"github.com/forkcast/forkcast/lang"
+	"github.com/forkcast/forkcast/tree"
+	"github.com/urfave/cli/v2"
+)
+
+// loaded is a model read from the command line's FILE.
+type loaded struct {
+	Model *tree.Model
+	Name  string // as the user gave it, for messages
+	Src   []byte
+	Diags tree.Diagnostics // warnings (errors stop loading)
+}
+
+// maxNodesFlag is shared by every command that reads a model.
+var maxNodesFlag = &cli.IntFlag{
+	Name:  "max-nodes",
+	Usage: "refuse models that expand to more than `N` nodes",
+	Value: tree.DefaultNodeLimit,
+}
+
+// fileArg returns the one FILE argument or a usage error.
+func fileArg(c *cli.Context) (string, error) {
+	switch c.NArg() {
+	case 0:
+		return "", usageErr("%s needs a model FILE (a .fork or .json path, - for standard input, or example:NAME)", c.Command.Name)
+	case 1:
+		return c.Args().First(), nil
+	}
+	return "", usageErr("%s takes one FILE, got %d: %s", c.Command.Name, c.NArg(), strings.Join(c.Args().Slice(), " "))
+}
+
+// readSource reads FILE: a path, "-" for standard input, or example:NAME.
+func readSource(c *cli.Context, name string) ([]byte, bool, error) {
+	isJSON := strings.EqualFold(filepath.Ext(name), ".json")
+	switch {
+	case name == "-":
+		src, err := io.ReadAll(c.App.Reader)
+		if err != nil {
+			return nil, false, modelErr("reading standard input: %v", err)
+		}
+		// Standard input has no extension: JSON starts with a brace.
+		trimmed := strings.TrimLeft(string(src[:min(len(src), 64)]), " \t\r\n")
+		return src, strings.HasPrefix(trimmed, "{"), nil
+	case strings.HasPrefix(name, "example:"):
+		ex, ok := examples.Get(strings.TrimPrefix(name, "example:"))
+		if !ok {
+			return nil, false, usageErr("no example %q; the examples are: %s", strings.TrimPrefix(name, "example:"), strings.Join(examples.Names(), ", "))
+		}
+		return ex.Source, false, nil
+	}
+	src, err := os.ReadFile(name)
+	if err != nil {
+		if os.IsNotExist(err) {
+			return nil, false, usageErr("no such file: %s", name)
+		}
+		return nil, false, modelErr("%v", err)
+	}
+	return src, isJSON, nil
+}
+
+// loadModel reads, parses and resolves FILE. Errors and warnings go to
+// standard error as file:line:col diagnostics; a model with errors returns
+// an exit-1 error.
+func loadModel(c *cli.Context) (*loaded, error) {
+	name, err := fileArg(c)
+	if err != nil {
+		return nil, err
+	}
+	src, isJSON, err := readSource(c, name)
+	if err != nil {
+		return nil, err
+	}
+	limit := c.Int(maxNodesFlag.Name)
+	var m *tree.Model
+	var ds tree.Diagnostics
+	if isJSON {
+		m, ds = tree.ReadJSON(src, limit)
+		if !ds.HasErrors() {
+			ds = append(ds, m.Resolve(nil)...)
+		}
+		ds = ds.Sort()
+	} else {
+		m, ds = lang.Load(src, lang.Options{NodeLimit: limit})
+	}
+	shown := name
+	if name == "-" {
+		shown = "<stdin>"
+	}
+	if ds.HasErrors() {
+		ds.Print(c.App.ErrWriter, shown, src)
+		n := len(ds.Errors())
+		return nil, modelErr("%s: %d error%s; nothing was solved", shown, n, plural(n))
+	}
+	return &loaded{Model: m, Name: shown, Src: src, Diags: ds}, nil
+}
+
+// printWarnings reports warnings on standard error, unless quiet.
+func (l *loaded) printWarnings(c *cli.Context) {
+	if len(l.Diags) > 0 {
+		l.Diags.Print(c.App.ErrWriter, l.Name, l.Src)
+	}
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
+
+// describe is a short phrase for a node, for text output.
+func describe(n *tree.Node) string {
+	switch {
+	case n.Test != "" && n.Label == "":
+		return fmt.Sprintf("test %s", n.Test)
+	case n.Uncertainty != "" && n.Label == "":
+		return fmt.Sprintf("chance %s", n.Uncertainty)
+	case n.Kind == tree.KindEnd:
+		return "end"
+	}
+	return fmt.Sprintf("%s %q", n.Kind, n.Label)
+}

@@ -1,0 +1,151 @@
+// Command forkcast lays out a one-off decision under uncertainty as a
+// decision tree, finds the course of action with the best expected monetary
+// value, and helps defend it.
+//
+//	forkcast solve examples/sourcing.fork
+//	forkcast check model.fork
+//	forkcast examples
+//
+// Run `forkcast help` or `forkcast COMMAND --help` for more.
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+
+	"github.com/urfave/cli/v2"
+)
+
+// Exit codes.
+const (
+	exitOK    = 0
+	exitModel = 1 // the model has errors
+	exitUsage = 2 // the command line is wrong
+)
+
+func main() {
+	os.Exit(run(os.Args, os.Stdin, os.Stdout, os.Stderr))
+}
+
+// commands lists every command, in the order `forkcast help` shows them.
+func commands() []*cli.Command {
+	return []*cli.Command{
+		solveCommand(),
+		checkCommand(),
+		drawCommand(),
+		examplesCommand(),
+		voiCommand(),
+		breakevenCommand(),
+	}
+}
+
+// run is main without the process: tests call it with their own streams.
+func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	app := &cli.App{
+		Name:  "forkcast",
+		Usage: "decision trees with exact expected monetary value",
+		Description: "forkcast reads a decision model (a .fork text file, or JSON), rolls the tree\n" +
+			"back to the option with the best expected monetary value, and shows\n" +
+			"what supports that answer.\n\n" +
+			"Start with:  forkcast examples            (the models built in)\n" +
+			"             forkcast solve example:sourcing\n" +
+			"             forkcast check my-model.fork\n\n" +
+			"FILE may be a path, - for standard input, or example:NAME.\n" +
+			"Exit status: 0 success, 1 the model has errors, 2 the command line is wrong.",
+		Commands:        commands(),
+		Reader:          stdin,
+		Writer:          stdout,
+		ErrWriter:       stderr,
+		HideHelpCommand: false,
+		Suggest:         true,
+		OnUsageError: func(c *cli.Context, err error, isSub bool) error {
+			return usageErr("%s", err.Error())
+		},
+		ExitErrHandler: func(*cli.Context, error) {}, // run decides the exit code
+		CommandNotFound: func(c *cli.Context, name string) {
+			fmt.Fprintf(stderr, "forkcast: unknown command %q; run `forkcast help` for the list\n", name)
+		},
+	}
+	for _, cmd := range app.Commands {
+		cmd.OnUsageError = app.OnUsageError
+	}
+	err := app.Run(reorder(args, app.Commands))
+	if err == nil {
+		if len(args) > 1 && app.Command(args[1]) == nil && !strings.HasPrefix(args[1], "-") && args[1] != "help" && args[1] != "h" {
+			return exitUsage
+		}
+		return exitOK
+	}
+	var ec cli.ExitCoder
+	if errors.As(err, &ec) {
+		if msg := err.Error(); msg != "" {
+			fmt.Fprintln(stderr, "forkcast: "+msg)
+		}
+		return ec.ExitCode()
+	}
+	fmt.Fprintln(stderr, "forkcast: "+err.Error())
+	return exitUsage
+}
+
+// usageErr is a command-line mistake: exit status 2.
+func usageErr(format string, args ...any) error {
+	return cli.Exit(fmt.Sprintf(format, args...)+"\n(run with --help to see how to use it)", exitUsage)
+}
+
+// modelErr is a problem with the model, already reported: exit status 1.
+func modelErr(format string, args ...any) error {
+	return cli.Exit(fmt.Sprintf(format, args...), exitModel)
+}
+
+// reorder moves a command's flags ahead of its arguments, so that
+// `solve m.fork --json` works like `solve --json m.fork` (the flag package
+// stops at the first argument). Everything after "--" stays as it is.
+func reorder(args []string, cmds []*cli.Command) []string {
+	if len(args) < 3 {
+		return args
+	}
+	var cmd *cli.Command
+	for _, c := range cmds {
+		if c.HasName(args[1]) {
+			cmd = c
+		}
+	}
+	if cmd == nil {
+		return args
+	}
+	takesValue := map[string]bool{}
+	for _, f := range cmd.Flags {
+		_, isBool := f.(*cli.BoolFlag)
+		for _, n := range f.Names() {
+			takesValue[n] = !isBool
+		}
+	}
+	var flags, pos []string
+	rest := args[2:]
+	for i := 0; i < len(rest); i++ {
+		a := rest[i]
+		if a == "--" {
+			pos = append(pos, rest[i+1:]...)
+			break
+		}
+		if len(a) > 1 && a[0] == '-' {
+			flags = append(flags, a)
+			name := strings.TrimLeft(a, "-")
+			if !strings.Contains(name, "=") && takesValue[name] && i+1 < len(rest) {
+				i++
+				flags = append(flags, rest[i])
+			}
+			continue
+		}
+		pos = append(pos, a)
+	}
+	out := append([]string{args[0], args[1]}, flags...)
+	if len(pos) > 0 {
+		out = append(out, "--")
+		out = append(out, pos...)
+	}
+	return out
+}

@@ -1,0 +1,264 @@
+package main
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/render"
+	"github.com/forkcast/forkcast/tree"
+	"github.com/shopspring/decimal"
+	"github.com/urfave/cli/v2"
+)
+
+func solveCommand() *cli.Command {
+	return &cli.Command{
+		Name:      "solve",
+		Usage:     "roll the tree back: the best policy and its expected value",
+		ArgsUsage: "FILE",
+		UsageText: "forkcast solve [--json] [--no-tree] FILE\n\n" +
+			"   forkcast solve examples/sourcing.fork\n" +
+			"   forkcast solve example:release --json > solved.json\n" +
+			"   cat model.json | forkcast solve -",
+		Description: "Reads the model, rolls the tree back with exact decimal arithmetic and prints:\n" +
+			"the expected value of the whole tree; the recommended policy, decision by\n" +
+			"decision, with the expected value of every option and the margin of the best\n" +
+			"over the runner-up; and the tree as indented text with each node's expected\n" +
+			"value (* marks the option the policy takes, x one it rejects).\n\n" +
+			"Money is rounded to the currency's minor unit for display; --json carries the\n" +
+			"full exact values. An expected value is a long-run average over many such\n" +
+			"decisions, not the outcome of this one: look at the spread too.",
+		Flags: []cli.Flag{
+			&cli.BoolFlag{Name: "json", Usage: "print the solved tree as JSON (the interchange format, every node with \"value\", every decision with \"best\")"},
+			&cli.BoolFlag{Name: "no-tree", Usage: "leave out the indented tree (for big models)"},
+			maxNodesFlag,
+		},
+		Action: func(c *cli.Context) error {
+			l, err := loadModel(c)
+			if err != nil {
+				return err
+			}
+			l.printWarnings(c)
+			sol, err := eval.Solve(l.Model)
+			if err != nil {
+				return modelErr("%v", err)
+			}
+			if c.Bool("json") {
+				return writeSolvedJSON(c.App.Writer, sol)
+			}
+			w := bufio.NewWriter(c.App.Writer)
+			printSolution(w, sol, !c.Bool("no-tree"))
+			return w.Flush()
+		},
+	}
+}
+
+// writeSolvedJSON writes the annotated tree as DESIGN.md specifies.
+func writeSolvedJSON(w io.Writer, sol *eval.Solution) error {
+	byNode := make(map[*tree.Node]*eval.Solved, len(sol.Nodes()))
+	for i := range sol.Nodes() {
+		s := &sol.Nodes()[i]
+		byNode[s.Node] = s
+	}
+	return tree.WriteJSON(w, sol.Model, tree.JSONOptions{
+		Value: func(n *tree.Node) decimal.Decimal { return byNode[n].Value() },
+		Best: func(n *tree.Node) []string {
+			s := byNode[n]
+			best := s.Best()
+			labels := make([]string, len(best))
+			for i, b := range best {
+				labels[i] = n.Branches[b].Label
+			}
+			return labels
+		},
+	})
+}
+
+// printer formats money and probabilities for one model.
+type printer struct {
+	w   io.Writer
+	m   *tree.Model
+	cur string
+}
+
+func (p printer) money(d decimal.Decimal) string { return render.Money(d, p.cur) }
+
+// cash shows a branch's cash flow as people write it: gain or cost.
+func (p printer) cash(c decimal.Decimal) string {
+	if c.IsZero() {
+		return ""
+	}
+	gain := c.IsPositive()
+	if p.m.Objective == tree.Min {
+		gain = !gain
+	}
+	if gain {
+		return "gain " + render.Amount(c.Abs(), p.cur)
+	}
+	return "cost " + render.Amount(c.Abs(), p.cur)
+}
+
+func objectiveText(m *tree.Model) string {
+	if m.Objective == tree.Min {
+		return "minimise expected cost"
+	}
+	return "maximise expected net value"
+}
+
+func printSolution(w io.Writer, sol *eval.Solution, withTree bool) {
+	m := sol.Model
+	p := printer{w: w, m: m, cur: m.Currency}
+	if m.Title != "" {
+		fmt.Fprintln(w, m.Title)
+	}
+	fmt.Fprintf(w, "objective:       %s\n", objectiveText(m))
+	word := "expected value:"
+	if m.Objective == tree.Min {
+		word = "expected cost: "
+	}
+	fmt.Fprintf(w, "%s  %s\n", word, p.money(sol.Value()))
+	if !m.Exact() {
+		fmt.Fprintf(w, "note:            a fraction or a Bayes posterior was rounded at %d decimal places;\n"+
+			"                 the figures are exact to that precision\n", tree.DivisionScale)
+	}
+	fmt.Fprintln(w)
+	fmt.Fprintln(w, "Recommended policy")
+	printPolicy(p, sol)
+	if withTree {
+		fmt.Fprintln(w)
+		fmt.Fprintln(w, "Tree (expected value at each node)")
+		printTree(p, sol)
+	}
+}
+
+// printPolicy lists the decisions the optimal policy reaches, in model
+// order, each with the path that leads to it, every option's value and the
+// margin.
+func printPolicy(p printer, sol *eval.Solution) {
+	w := p.w
+	n := 0
+	for i := range sol.Nodes() {
+		s := &sol.Nodes()[i]
+		if s.Node.Kind != tree.KindDecision || !s.OnPolicy() {
+			continue
+		}
+		n++
+		fmt.Fprintf(w, "  %d. %s", n, quoted(s.Node.Display()))
+		if cond := conditions(s); cond != "" {
+			fmt.Fprintf(w, "  (if %s)", cond)
+		}
+		fmt.Fprintln(w)
+		width := 0
+		for _, b := range s.Node.Branches {
+			width = max(width, len([]rune(b.Label)))
+		}
+		for j, b := range s.Node.Branches {
+			mark := " "
+			if j == s.Chosen() {
+				mark = "*"
+			} else if s.IsBest(j) {
+				mark = "="
+			}
+			fmt.Fprintf(w, "     %s %-*s  %s\n", mark, width, b.Label, p.money(s.BranchValue(j)))
+		}
+		c := s.Node.Branches[s.Chosen()].Label
+		if margin, ru, ok := s.Margin(); ok {
+			if s.Tied() {
+				fmt.Fprintf(w, "     take %s: tied with %s; the first in the model is taken\n", quoted(c), quotedList(s, s.Best()[1:]))
+			} else {
+				fmt.Fprintf(w, "     take %s: better by %s than %s\n", quoted(c), p.money(margin), quoted(s.Node.Branches[ru].Label))
+			}
+		} else {
+			fmt.Fprintf(w, "     take %s (the only option)\n", quoted(c))
+		}
+	}
+	if n == 0 {
+		fmt.Fprintln(w, "  (the tree has no decision: nothing to choose)")
+	}
+}
+
+// conditions is the chance outcomes on the way to s ("Integration = Rework").
+func conditions(s *eval.Solved) string {
+	var parts []string
+	for c := s; c.Parent() != nil; c = c.Parent() {
+		if p := c.Parent(); p.Node.Kind == tree.KindChance {
+			parts = append(parts, fmt.Sprintf("%s = %s", p.Node.Display(), quoted(p.Node.Branches[c.Via()].Label)))
+		}
+	}
+	for i, j := 0, len(parts)-1; i < j; i, j = i+1, j-1 {
+		parts[i], parts[j] = parts[j], parts[i]
+	}
+	return strings.Join(parts, ", ")
+}
+
+func quoted(s string) string { return "\"" + s + "\"" }
+
+func quotedList(s *eval.Solved, idx []int) string {
+	q := make([]string, len(idx))
+	for i, j := range idx {
+		q[i] = quoted(s.Node.Branches[j].Label)
+	}
+	return strings.Join(q, ", ")
+}
+
+// printTree prints the tree as indented text, iteratively (deep trees).
+func printTree(p printer, sol *eval.Solution) {
+	w := p.w
+	fmt.Fprintf(w, "%s  %s\n", describe(sol.Root.Node), p.money(sol.Root.Value())+choiceNote(sol.Root))
+	type item struct {
+		s      *eval.Solved
+		prefix string
+	}
+	var stack []item
+	push := func(s *eval.Solved, prefix string) {
+		kids := s.Kids()
+		for j := len(kids) - 1; j >= 0; j-- {
+			stack = append(stack, item{kids[j], prefix})
+		}
+	}
+	push(sol.Root, "  ")
+	for len(stack) > 0 {
+		it := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		s := it.s
+		parent := s.Parent()
+		b := parent.Node.Branches[s.Via()]
+		mark := ""
+		if parent.Node.Kind == tree.KindDecision {
+			if parent.IsBest(s.Via()) {
+				mark = "* "
+			} else {
+				mark = "x "
+			}
+		}
+		var parts []string
+		parts = append(parts, mark+quoted(b.Label))
+		if parent.Node.Kind == tree.KindChance {
+			parts = append(parts, render.Percent(b.P, 2))
+		}
+		if cs := p.cash(b.C); cs != "" {
+			parts = append(parts, cs)
+		}
+		line := strings.Join(parts, "  ")
+		if s.Node.Kind == tree.KindEnd {
+			fmt.Fprintf(w, "%s%s  -> %s\n", it.prefix, line, p.money(s.Value().Add(b.C)))
+			continue
+		}
+		fmt.Fprintf(w, "%s%s\n", it.prefix, line)
+		fmt.Fprintf(w, "%s  %s  %s%s\n", it.prefix, describe(s.Node), p.money(s.Value()), choiceNote(s))
+		push(s, it.prefix+"    ")
+	}
+}
+
+// choiceNote adds what a decision takes, or a test's cost.
+func choiceNote(s *eval.Solved) string {
+	switch {
+	case s.Node.Kind == tree.KindDecision && s.Chosen() >= 0:
+		return "  take " + quoted(s.Node.Branches[s.Chosen()].Label)
+	case !s.Node.TestCost.IsZero():
+		return "  (includes the test's cost)"
+	}
+	return ""
+}

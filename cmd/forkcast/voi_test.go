@@ -1,0 +1,160 @@
+package main
+
+import (
+	"encoding/json"
+	"strings"
+	"testing"
+)
+
+func TestVOIRelease(t *testing.T) {
+	code, out, errs := forkcast(t, "", "voi", "example:release")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	// By hand (examples/release.fork, invented data): deciding without
+	// the test costs 45,000; with it 30,980 (12,000 + 0.244·45,000 +
+	// 0.756·(0.02/0.756)·400,000); EVSI 45,000 − 18,980 = 26,020.
+	for _, want := range []string{
+		"everything uncertain, together          21,980.00 EUR",
+		"EVSI: what the test's information is worth         26,020.00 EUR",
+		"expected net saving of testing (EVSI − cost)       14,020.00 EUR",
+		"EVPI of defect against deciding without the test   36,000.00 EUR",
+		"efficiency of the test (EVSI / EVPI)                       72.3%",
+		"P(reading)                             24.4%    75.6%",
+		"Recommendation: run the test: it is expected to save 14,020.00 EUR after its cost.",
+		"An upper bound",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+}
+
+func TestVOIJSON(t *testing.T) {
+	code, out, errs := forkcast(t, "", "voi", "example:release", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var v struct {
+		EVPI          string `json:"evpi"`
+		Uncertainties []struct {
+			Name string `json:"name"`
+			EVPI string `json:"evpi"`
+		} `json:"uncertainties"`
+		Tests []struct {
+			Name     string `json:"name"`
+			Readings []struct {
+				Label       string   `json:"label"`
+				Probability string   `json:"probability"`
+				Posterior   []string `json:"posterior"`
+			} `json:"readings"`
+			Sites []struct {
+				EVSI           string  `json:"evsi"`
+				Efficiency     *string `json:"efficiency"`
+				Recommendation string  `json:"recommendation"`
+			} `json:"sites"`
+		} `json:"tests"`
+	}
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatalf("%v\n%s", err, out)
+	}
+	if !strings.HasPrefix(v.EVPI, "21980.0000000000000000000000000000000000000") {
+		t.Errorf("evpi %q", v.EVPI)
+	}
+	if len(v.Uncertainties) != 1 || v.Uncertainties[0].Name != "defect" || v.Uncertainties[0].EVPI != v.EVPI {
+		t.Errorf("uncertainties %+v", v.Uncertainties)
+	}
+	if len(v.Tests) != 1 || len(v.Tests[0].Sites) != 1 {
+		t.Fatalf("tests %+v", v.Tests)
+	}
+	tv := v.Tests[0]
+	if tv.Readings[0].Probability != "0.244" || !strings.HasPrefix(tv.Readings[0].Posterior[0], "0.7377049180327868852459016393442622950819672131147") {
+		t.Errorf("readings %+v", tv.Readings)
+	}
+	s := tv.Sites[0]
+	if !strings.HasPrefix(s.EVSI, "26019.99999999999999999999999999999999999999999") && !strings.HasPrefix(s.EVSI, "26020") {
+		t.Errorf("evsi %q", s.EVSI)
+	}
+	if s.Efficiency == nil || s.Recommendation != "test" {
+		t.Errorf("site %+v", s)
+	}
+}
+
+func TestVOINoTests(t *testing.T) {
+	code, out, _ := forkcast(t, "", "voi", "example:sourcing")
+	// By hand (examples/sourcing.fork, invented data): with every chance
+	// node known, "Lease" met or "Buy" clean gives 1,000,000 (probability
+	// 1 − 0.15·0.3); otherwise the better of 850,000 and building
+	// (880,000 on time): 993,857.50 against 964,000.
+	if code != 0 || !strings.Contains(out, "everything uncertain, together   29,857.50 EUR") || !strings.Contains(out, "declares no `test`") {
+		t.Errorf("exit %d:\n%s", code, out)
+	}
+}
+
+func TestBreakevenCLI(t *testing.T) {
+	code, out, errs := forkcast(t, "", "breakeven", "example:sourcing", "--vary", "licence")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	// By hand: buying is worth 1,265,000 − licence, leasing 964,000.
+	for _, want := range []string{
+		`Switch at licence = 301,000 (exact): "Buy a licence" below, "Lease the service" above`,
+		"Lease the service   964,000.00 EUR",
+		"250,000 .. 301,000   Buy a licence",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	code, out, _ = forkcast(t, "", "breakeven", "--json", "--vary", "Supplier service level/Met", "example:sourcing")
+	var v struct {
+		Switches []struct {
+			At    string `json:"at"`
+			Exact bool   `json:"exact"`
+			Below string `json:"below"`
+		} `json:"switches"`
+		Adjust string `json:"adjust"`
+	}
+	if err := json.Unmarshal([]byte(out), &v); err != nil || code != 0 {
+		t.Fatalf("exit %d, %v\n%s", code, err, out)
+	}
+	// By hand: leasing is worth 760,000 + 240,000 m against 955,000.
+	if len(v.Switches) != 1 || v.Switches[0].At != "0.8125" || !v.Switches[0].Exact || v.Switches[0].Below != "Buy a licence" {
+		t.Errorf("switches %+v", v.Switches)
+	}
+	if !strings.Contains(v.Adjust, `"Missed"`) {
+		t.Errorf("adjust %q", v.Adjust)
+	}
+	code, out, _ = forkcast(t, "", "breakeven", "example:release", "--vary", "p_defect", "--in", "30%..40%", "--at", "Before release")
+	if code != 0 || !strings.Contains(out, `"Run the soak test" below, "Decide without testing" above`) {
+		t.Errorf("exit %d:\n%s", code, out)
+	}
+	code, out, _ = forkcast(t, "", "breakeven", "example:sourcing", "--vary", "dev_cost", "--in", "600_000..700_000")
+	if code != 0 || !strings.Contains(out, `No switch: "Lease the service" is best over the whole range.`) {
+		t.Errorf("exit %d:\n%s", code, out)
+	}
+}
+
+func TestBreakevenErrors(t *testing.T) {
+	bad := writeFile(t, "bad.fork", "decision \"d\"\n  \"a\"  cost nope\n")
+	for _, c := range []struct {
+		args   []string
+		code   int
+		stderr string
+	}{
+		{[]string{"breakeven", "example:sourcing"}, 2, "breakeven needs --vary"},
+		{[]string{"breakeven", "example:sourcing", "--vary", "nonesuch"}, 2, `no parameter "nonesuch"`},
+		{[]string{"breakeven", "example:sourcing", "--vary", "delivery:Late", "--in", "0..2"}, 2, "[0, 1]"},
+		{[]string{"breakeven", "example:sourcing", "--vary", "licence", "--in", "3..x"}, 2, `"x" is not a number`},
+		{[]string{"breakeven", "example:sourcing", "--vary", "benefit"}, 2, "has no range"},
+		{[]string{"breakeven", "example:sourcing", "--vary", "licence", "--at", "Nowhere"}, 2, `no decision labelled "Nowhere"`},
+		{[]string{"breakeven", bad, "--vary", "x"}, 1, "unknown name"},
+		{[]string{"voi", bad}, 1, "unknown name"},
+		{[]string{"voi"}, 2, "voi needs a model FILE"},
+	} {
+		code, _, errs := forkcast(t, "", c.args...)
+		if code != c.code || !strings.Contains(errs, c.stderr) {
+			t.Errorf("%v: exit %d, stderr:\n%s\nwant exit %d and %q", c.args, code, errs, c.code, c.stderr)
+		}
+	}
+}
