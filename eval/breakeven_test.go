@@ -20,7 +20,7 @@ func breakeven(t *testing.T, m *tree.Model, vary string, lo, hi, at string) *Bre
 	}
 	opts := BreakevenOptions{Vary: v, At: at}
 	if lo != "" {
-		l, h := num(lo), num(hi)
+		l, h := d(lo), d(hi)
 		opts.Low, opts.High = &l, &h
 	}
 	be, err := FindBreakeven(m, opts)
@@ -87,13 +87,13 @@ func TestBreakevenOilPrior(t *testing.T) {
 // treating gains the net benefit b if the patient has the disease and
 // costs the net harm h if not; not treating is the reference (0).
 func treatModel(b, h string, rest bool) *tree.Model {
-	no := tree.Outcome("No disease", num("0.5"), num(h).Neg(), nil)
+	no := tree.Outcome("No disease", d("0.5"), d(h).Neg(), nil)
 	if rest {
-		no = tree.RestOutcome("No disease", num(h).Neg(), nil)
+		no = tree.RestOutcome("No disease", d(h).Neg(), nil)
 	}
 	return &tree.Model{Root: tree.Decision("Treat?",
 		tree.Choice("Treat", decimal.Zero, tree.Chance("Disease?",
-			tree.Outcome("Disease", num("0.5"), num(b), nil), no)),
+			tree.Outcome("Disease", d("0.5"), d(b), nil), no)),
 		tree.Choice("Do not treat", decimal.Zero, nil))}
 }
 
@@ -107,7 +107,7 @@ func TestBreakevenThreshold(t *testing.T) {
 				t.Fatalf("B=%s H=%s: %d switches", c.b, c.h, len(be.Switches))
 			}
 			sw := be.Switches[0]
-			hr, br := num(c.h).Rat(), num(c.b).Rat()
+			hr, br := d(c.h).Rat(), d(c.b).Rat()
 			want := new(big.Rat).Quo(hr, new(big.Rat).Add(hr, br))
 			near(t, "threshold B="+c.b+" H="+c.h, sw.At, want)
 			exact := new(big.Rat).SetFrac(want.Num(), want.Denom())
@@ -129,12 +129,12 @@ func TestBreakevenThreshold(t *testing.T) {
 func cashModel() *tree.Model {
 	x := func() tree.Expr { return &tree.Name{Name: "x"} }
 	return &tree.Model{
-		Params: []*tree.Param{{Name: "x", Expr: tree.Num(num("10")), Low: tree.Num(num("0")), High: tree.Num(num("200"))}},
+		Params: []*tree.Param{{Name: "x", Expr: tree.Num(d("10")), Low: tree.Num(d("0")), High: tree.Num(d("200"))}},
 		Root: tree.Decision("Pick",
-			&tree.Branch{Label: "Low", Cash: &tree.Binary{Op: '-', X: tree.Num(num("100")), Y: x()}},
-			tree.Choice("Flat", num("50"), nil),
-			&tree.Branch{Label: "High", Cash: &tree.Binary{Op: '-', X: x(), Y: tree.Num(num("80"))}},
-			tree.Choice("Never", num("-1000"), nil)),
+			&tree.Branch{Label: "Low", Cash: &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: x()}},
+			tree.Choice("Flat", d("50"), nil),
+			&tree.Branch{Label: "High", Cash: &tree.Binary{Op: '-', X: x(), Y: tree.Num(d("80"))}},
+			tree.Choice("Never", d("-1000"), nil)),
 	}
 }
 
@@ -162,9 +162,9 @@ func TestBreakevenCash(t *testing.T) {
 	// A crossing that is not a terminating decimal: 100 − 3x = 0 at 100/3
 	// (by hand).
 	m := cashModel()
-	m.Root.Branches[0].Cash = &tree.Binary{Op: '-', X: tree.Num(num("100")), Y: &tree.Binary{Op: '*', X: tree.Num(num("3")), Y: &tree.Name{Name: "x"}}}
+	m.Root.Branches[0].Cash = &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: &tree.Binary{Op: '*', X: tree.Num(d("3")), Y: &tree.Name{Name: "x"}}}
 	m.Root.Branches[1].Cash = tree.Num(decimal.Zero)
-	m.Root.Branches[2].Cash = tree.Num(num("-500"))
+	m.Root.Branches[2].Cash = tree.Num(d("-500"))
 	be = breakeven(t, m, "x", "", "", "")
 	if len(be.Switches) != 1 || be.Switches[0].Exact {
 		t.Fatalf("switches %+v", be.Switches)
@@ -177,14 +177,14 @@ func TestBreakevenCash(t *testing.T) {
 func TestBreakevenNonlinear(t *testing.T) {
 	p := func() tree.Expr { return &tree.Name{Name: "p"} }
 	m := &tree.Model{
-		Params: []*tree.Param{{Name: "p", Expr: tree.Num(num("0.2")), Low: tree.Num(num("0")), High: tree.Num(num("1"))}},
+		Params: []*tree.Param{{Name: "p", Expr: tree.Num(d("0.2")), Low: tree.Num(d("0")), High: tree.Num(d("1"))}},
 		Root: tree.Decision("Pick",
 			tree.Choice("Both", decimal.Zero, tree.Chance("First",
 				&tree.Branch{Label: "Yes", Prob: p(), Node: tree.Chance("Second",
-					&tree.Branch{Label: "Yes", Prob: p(), Cash: tree.Num(num("100"))},
+					&tree.Branch{Label: "Yes", Prob: p(), Cash: tree.Num(d("100"))},
 					&tree.Branch{Label: "No", Rest: true})},
 				&tree.Branch{Label: "No", Rest: true})),
-			tree.Choice("Sure", num("30"), nil)),
+			tree.Choice("Sure", d("30"), nil)),
 	}
 	be := breakeven(t, m, "p", "", "", "")
 	if len(be.Switches) != 1 || be.Switches[0].Exact {
@@ -192,8 +192,8 @@ func TestBreakevenNonlinear(t *testing.T) {
 	}
 	// By hand: 100 p² = 30 at p = √0.3.
 	x := be.Switches[0].At
-	if d := x.Mul(x).Sub(num("0.3")).Abs(); d.GreaterThan(num("1e-48")) {
-		t.Errorf("p = %s: p² − 0.3 = %s", x, d)
+	if diff := x.Mul(x).Sub(d("0.3")).Abs(); diff.GreaterThan(d("1e-48")) {
+		t.Errorf("p = %s: p² − 0.3 = %s", x, diff)
 	}
 }
 
@@ -205,10 +205,10 @@ func TestBreakevenAt(t *testing.T) {
 	// base of 40 → 45 at "Later" it moves to 65.
 	m := cashModel()
 	m.Root = tree.Decision("Root",
-		&tree.Branch{Label: "Cash game", Cash: &tree.Binary{Op: '-', X: tree.Num(num("100")), Y: &tree.Name{Name: "x"}}},
+		&tree.Branch{Label: "Cash game", Cash: &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: &tree.Name{Name: "x"}}},
 		tree.Choice("Wait", decimal.Zero, tree.Decision("Later",
-			tree.Choice("Forty-five", num("45"), nil),
-			&tree.Branch{Label: "Minus twenty", Cash: &tree.Binary{Op: '-', X: &tree.Name{Name: "x"}, Y: tree.Num(num("20"))}})))
+			tree.Choice("Forty-five", d("45"), nil),
+			&tree.Branch{Label: "Minus twenty", Cash: &tree.Binary{Op: '-', X: &tree.Name{Name: "x"}, Y: tree.Num(d("20"))}})))
 	root := breakeven(t, m, "x", "", "", "")
 	// By hand: 100 − x = 45 at x = 55 (then x − 20 = 35 < 45).
 	if len(root.Switches) != 1 {
@@ -231,11 +231,11 @@ func TestBreakevenNarrowed(t *testing.T) {
 	// and a rest: it can be at most 70%.
 	m := &tree.Model{Root: tree.Decision("Go?",
 		tree.Choice("Go", decimal.Zero, tree.Chance("Market",
-			tree.Outcome("Boom", num("0.2"), num("100"), nil),
-			tree.Outcome("Flat", num("0.3"), num("10"), nil),
-			tree.RestOutcome("Bust", num("-50"), nil))),
+			tree.Outcome("Boom", d("0.2"), d("100"), nil),
+			tree.Outcome("Flat", d("0.3"), d("10"), nil),
+			tree.RestOutcome("Bust", d("-50"), nil))),
 		tree.Choice("Stay", decimal.Zero, nil))}
-	resolved(t, m)
+	mustSolve(t, m)
 	be := breakeven(t, m, "Market/Boom", "", "", "")
 	wantDec(t, "high end", be.High, "0.7")
 	if !be.Narrowed {
@@ -256,7 +256,7 @@ func TestBreakevenParamNarrowed(t *testing.T) {
 	// The oil model's p_oil over 0 .. 1.5: beyond 1 "Dry" (the rest) would
 	// be negative, so the range is cut at 1.
 	m := oilModel("0.25", false)
-	m.Params[0].High = tree.Num(num("1.5"))
+	m.Params[0].High = tree.Num(d("1.5"))
 	be := breakeven(t, m, "p_oil", "", "", "")
 	wantDec(t, "high", be.High, "1")
 	if !be.Narrowed || len(be.Switches) != 1 {
@@ -286,7 +286,7 @@ func TestBreakevenBadRequests(t *testing.T) {
 		}
 		opts := BreakevenOptions{Vary: v, At: c.at}
 		if c.lo != "" {
-			l, h := num(c.lo), num(c.hi)
+			l, h := d(c.lo), d(c.hi)
 			opts.Low, opts.High = &l, &h
 		}
 		_, err = FindBreakeven(m, opts)
@@ -313,14 +313,14 @@ func TestBreakevenRandomLines(t *testing.T) {
 		k := 2 + r.Intn(5)
 		a, b := make([]int64, k), make([]int64, k)
 		obj := tree.Objective(r.Intn(2))
-		d := tree.Decision("Pick")
+		pick := tree.Decision("Pick")
 		for i := range a {
 			a[i], b[i] = int64(r.Intn(41)-20), int64(r.Intn(11)-5)
 			cash := &tree.Binary{Op: '+', X: tree.Num(decimal.NewFromInt(a[i])), Y: &tree.Binary{Op: '*', X: tree.Num(decimal.NewFromInt(b[i])), Y: &tree.Name{Name: "x"}}}
-			d.Branches = append(d.Branches, &tree.Branch{Label: fmt.Sprintf("O%d", i), Cash: cash})
+			pick.Branches = append(pick.Branches, &tree.Branch{Label: fmt.Sprintf("O%d", i), Cash: cash})
 		}
-		m := &tree.Model{Objective: obj, Root: d,
-			Params: []*tree.Param{{Name: "x", Expr: tree.Num(decimal.Zero), Low: tree.Num(num("-10")), High: tree.Num(num("10"))}}}
+		m := &tree.Model{Objective: obj, Root: pick,
+			Params: []*tree.Param{{Name: "x", Expr: tree.Num(decimal.Zero), Low: tree.Num(d("-10")), High: tree.Num(d("10"))}}}
 		be := breakeven(t, m, "x", "", "", "")
 		// The envelope on Rat, in goodness terms (negated under min).
 		g := func(i int) (*big.Rat, *big.Rat) {

@@ -10,25 +10,10 @@ import (
 	"github.com/shopspring/decimal"
 )
 
-// num reads a decimal literal (test helper).
-func num(s string) decimal.Decimal { return decimal.RequireFromString(s) }
-
-// resolved resolves and solves m, failing the test on any error.
-func resolved(t testing.TB, m *tree.Model) *Solution {
-	t.Helper()
-	if ds := m.Resolve(nil); ds.HasErrors() {
-		t.Fatalf("resolve: %v", ds)
-	}
-	sol, err := Solve(m)
-	if err != nil {
-		t.Fatal(err)
-	}
-	return sol
-}
 
 func wantDec(t *testing.T, what string, got decimal.Decimal, want string) {
 	t.Helper()
-	if !got.Equal(num(want)) {
+	if !got.Equal(d(want)) {
 		t.Errorf("%s = %s, want %s", what, got, want)
 	}
 }
@@ -53,16 +38,16 @@ func oilModel(pOil string, survey bool) *tree.Model {
 	choice := func() *tree.Node {
 		return tree.Decision("Drill or sell",
 			tree.Choice("Drill", decimal.Zero, tree.ChanceOn("oil",
-				tree.Given("Oil", num("700"), nil),
-				tree.Given("Dry", num("-100"), nil))),
-			tree.Choice("Sell", num("90"), nil))
+				tree.Given("Oil", d("700"), nil),
+				tree.Given("Dry", d("-100"), nil))),
+			tree.Choice("Sell", d("90"), nil))
 	}
 	m := &tree.Model{Title: "oil drilling",
-		Params: []*tree.Param{{Name: "p_oil", Expr: tree.Num(num(pOil)), Low: tree.Num(num("0")), High: tree.Num(num("1"))}},
+		Params: []*tree.Param{{Name: "p_oil", Expr: tree.Num(d(pOil)), Low: tree.Num(d("0")), High: tree.Num(d("1"))}},
 		Uncertainties: []*tree.Uncertainty{{Name: "oil", States: []*tree.State{
 			{Label: "Oil", Prob: &tree.Name{Name: "p_oil"}}, {Label: "Dry"}}}},
-		Tests: []*tree.Test{{Name: "seismic", Label: "Seismic survey", On: "oil", Cost: tree.Num(num("30")), Readings: []*tree.Reading{
-			{Label: "Favourable", Given: []*tree.Likelihood{{State: "Oil", Prob: tree.Num(num("0.6"))}, {State: "Dry", Prob: tree.Num(num("0.2"))}}},
+		Tests: []*tree.Test{{Name: "seismic", Label: "Seismic survey", On: "oil", Cost: tree.Num(d("30")), Readings: []*tree.Reading{
+			{Label: "Favourable", Given: []*tree.Likelihood{{State: "Oil", Prob: tree.Num(d("0.6"))}, {State: "Dry", Prob: tree.Num(d("0.2"))}}},
 			{Label: "Unfavourable", Rest: true}}}},
 	}
 	if !survey {
@@ -79,7 +64,7 @@ func oilModel(pOil string, survey bool) *tree.Model {
 }
 
 func TestOilDrillingEVPI(t *testing.T) {
-	sol := resolved(t, oilModel("0.25", false))
+	sol := mustSolve(t, oilModel("0.25", false))
 	// Hillier & Lieberman, oil-drilling prototype: EMV(drill) = 100 is
 	// optimal; with perfect information 0.25·700 + 0.75·90 = 242.5, so
 	// EVPI = 142.5.
@@ -101,7 +86,7 @@ func TestOilDrillingEVPI(t *testing.T) {
 }
 
 func TestOilDrillingSurvey(t *testing.T) {
-	sol := resolved(t, oilModel("0.25", true))
+	sol := mustSolve(t, oilModel("0.25", true))
 	tv, err := EVSI(sol, "seismic")
 	if err != nil {
 		t.Fatal(err)
@@ -152,16 +137,16 @@ func TestCondominiumEVPI(t *testing.T) {
 	// small 8/7, medium 14/5, large 20/−9, P(strong) = 0.8. EV 14.2 (large),
 	// EVPI 3.2.
 	demand := func(strong, weak string) *tree.Node {
-		return tree.ChanceOn("demand", tree.Given("Strong", num(strong), nil), tree.Given("Weak", num(weak), nil))
+		return tree.ChanceOn("demand", tree.Given("Strong", d(strong), nil), tree.Given("Weak", d(weak), nil))
 	}
 	m := &tree.Model{
-		Uncertainties: []*tree.Uncertainty{{Name: "demand", States: []*tree.State{{Label: "Strong", Prob: tree.Num(num("0.8"))}, {Label: "Weak"}}}},
+		Uncertainties: []*tree.Uncertainty{{Name: "demand", States: []*tree.State{{Label: "Strong", Prob: tree.Num(d("0.8"))}, {Label: "Weak"}}}},
 		Root: tree.Decision("Complex size",
 			tree.Choice("Small", decimal.Zero, demand("8", "7")),
 			tree.Choice("Medium", decimal.Zero, demand("14", "5")),
 			tree.Choice("Large", decimal.Zero, demand("20", "-9"))),
 	}
-	sol := resolved(t, m)
+	sol := mustSolve(t, m)
 	wantDec(t, "EV", sol.Value(), "14.2") // recalled from memory
 	if sol.Root.Chosen() != 2 {
 		t.Errorf("chosen %d, want Large", sol.Root.Chosen())
@@ -176,13 +161,13 @@ func TestCondominiumEVPI(t *testing.T) {
 	// E[max(S, M, L)] over independent demands (computed by hand:
 	// 0.8·0.8·0.8·20 ... see below).
 	plain := func(strong, weak string) *tree.Node {
-		return tree.Chance("Demand", tree.Outcome("Strong", num("0.8"), num(strong), nil), tree.Outcome("Weak", num("0.2"), num(weak), nil))
+		return tree.Chance("Demand", tree.Outcome("Strong", d("0.8"), d(strong), nil), tree.Outcome("Weak", d("0.2"), d(weak), nil))
 	}
 	m2 := &tree.Model{Root: tree.Decision("Complex size",
 		tree.Choice("Small", decimal.Zero, plain("8", "7")),
 		tree.Choice("Medium", decimal.Zero, plain("14", "5")),
 		tree.Choice("Large", decimal.Zero, plain("20", "-9")))}
-	sol2 := resolved(t, m2)
+	sol2 := mustSolve(t, m2)
 	total, err := TotalEVPI(sol2, VOIOptions{})
 	if err != nil {
 		t.Fatal(err)
@@ -210,11 +195,11 @@ func TestCondominiumEVPI(t *testing.T) {
 func TestEVPIMin(t *testing.T) {
 	// Invented: ship (cost 400 if defective, p = 0.2) or rework (45).
 	m := &tree.Model{Objective: tree.Min,
-		Uncertainties: []*tree.Uncertainty{{Name: "defect", States: []*tree.State{{Label: "Defective", Prob: tree.Num(num("0.2"))}, {Label: "Sound"}}}},
+		Uncertainties: []*tree.Uncertainty{{Name: "defect", States: []*tree.State{{Label: "Defective", Prob: tree.Num(d("0.2"))}, {Label: "Sound"}}}},
 		Root: tree.Decision("Release",
-			tree.Choice("Ship", decimal.Zero, tree.ChanceOn("defect", tree.Given("Defective", num("400"), nil), tree.Given("Sound", decimal.Zero, nil))),
-			tree.Choice("Rework", num("45"), nil))}
-	sol := resolved(t, m)
+			tree.Choice("Ship", decimal.Zero, tree.ChanceOn("defect", tree.Given("Defective", d("400"), nil), tree.Given("Sound", decimal.Zero, nil))),
+			tree.Choice("Rework", d("45"), nil))}
+	sol := mustSolve(t, m)
 	pi, err := EVPI(sol, "defect")
 	if err != nil {
 		t.Fatal(err)
@@ -233,17 +218,17 @@ func TestUncertaintyTwice(t *testing.T) {
 	// the decision has a positive EVPI.
 	m := &tree.Model{
 		Uncertainties: []*tree.Uncertainty{
-			{Name: "u", States: []*tree.State{{Label: "Hi", Prob: tree.Num(num("0.5"))}, {Label: "Lo"}}},
+			{Name: "u", States: []*tree.State{{Label: "Hi", Prob: tree.Num(d("0.5"))}, {Label: "Lo"}}},
 		},
 		Root: tree.ChanceOn("u",
 			tree.Given("Hi", decimal.Zero, tree.Decision("Act",
-				tree.Choice("Go", decimal.Zero, tree.ChanceOn("u", tree.Given("Hi", num("10"), nil), tree.Given("Lo", num("-10"), nil))),
+				tree.Choice("Go", decimal.Zero, tree.ChanceOn("u", tree.Given("Hi", d("10"), nil), tree.Given("Lo", d("-10"), nil))),
 				tree.Choice("Stop", decimal.Zero, nil))),
 			tree.Given("Lo", decimal.Zero, tree.Decision("Act",
-				tree.Choice("Go", decimal.Zero, tree.ChanceOn("u", tree.Given("Hi", num("10"), nil), tree.Given("Lo", num("-10"), nil))),
+				tree.Choice("Go", decimal.Zero, tree.ChanceOn("u", tree.Given("Hi", d("10"), nil), tree.Given("Lo", d("-10"), nil))),
 				tree.Choice("Stop", decimal.Zero, nil)))),
 	}
-	sol := resolved(t, m)
+	sol := mustSolve(t, m)
 	// By hand: after "Hi" the second node is Hi for certain: Go is worth
 	// 10; after "Lo", Stop (0). Value 5.
 	wantDec(t, "value", sol.Value(), "5")
@@ -262,7 +247,7 @@ func TestTestWarnings(t *testing.T) {
 		{Label: "Always", Rest: true}, {Label: "Never", Given: []*tree.Likelihood{{State: "Oil", Prob: tree.Num(decimal.Zero)}}}}})
 	// Run it where there is no alternative: the root is the test.
 	m.Root = tree.RunTest("useless", tree.Given("Always", decimal.Zero, m.Root), tree.Given("Never", decimal.Zero, nil))
-	sol := resolved(t, m)
+	sol := mustSolve(t, m)
 	info, err := ValueOfInformation(sol, VOIOptions{})
 	if err != nil {
 		t.Fatal(err)
@@ -284,9 +269,9 @@ func TestTestWarnings(t *testing.T) {
 func TestEVSINegative(t *testing.T) {
 	m := oilModel("0.25", true)
 	// After the survey only "Sell for 10" is on offer (invented).
-	sell := func() *tree.Node { return tree.Decision("After", tree.Choice("Sell for 10", num("10"), nil)) }
+	sell := func() *tree.Node { return tree.Decision("After", tree.Choice("Sell for 10", d("10"), nil)) }
 	m.Root.Branches[1].Node = tree.RunTest("seismic", tree.Given("Favourable", decimal.Zero, sell()), tree.Given("Unfavourable", decimal.Zero, sell()))
-	sol := resolved(t, m)
+	sol := mustSolve(t, m)
 	tv, err := EVSI(sol, "seismic")
 	if err != nil {
 		t.Fatal(err)
@@ -670,7 +655,7 @@ func TestRandomVOI(t *testing.T) {
 	r := rand.New(rand.NewSource(20240611))
 	for it := 0; it < n; it++ {
 		rm := newRatModel(r)
-		sol := resolved(t, rm.m)
+		sol := mustSolve(t, rm.m)
 		ctx := fmt.Sprintf("tree %d (%v)", it, rm.obj)
 		near(t, ctx+" root value", sol.Value(), rm.rootValue())
 		info, err := ValueOfInformation(sol, VOIOptions{})
@@ -703,7 +688,7 @@ func TestRandomVOI(t *testing.T) {
 		evsi := new(big.Rat).Mul(rm.sign(), new(big.Rat).Sub(rm.withTestBeforeCost(), rm.actValue(rm.priorU)))
 		near(t, ctx+" EVSI", s.EVSI, evsi)
 		near(t, ctx+" EVPI at the site", s.EVPI, rm.evpiAgainstNow())
-		tol := num("1e-45")
+		tol := d("1e-45")
 		if s.EVSI.LessThan(tol.Neg()) || pu.EVPI.IsNegative() || s.EVSI.GreaterThan(s.EVPI.Add(tol)) {
 			t.Errorf("%s: want 0 ≤ EVSI %s ≤ EVPI %s", ctx, s.EVSI, s.EVPI)
 		}
@@ -732,7 +717,7 @@ func TestSecondSurvey(t *testing.T) {
 	m.Root.Branches[1].Node = tree.RunTest("seismic",
 		tree.Given("Favourable", decimal.Zero, again()),
 		tree.Given("Unfavourable", decimal.Zero, again()))
-	sol := resolved(t, m)
+	sol := mustSolve(t, m)
 	tv, err := EVSI(sol, "seismic")
 	if err != nil {
 		t.Fatal(err)

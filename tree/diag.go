@@ -109,21 +109,15 @@ func (ds Diagnostics) Sort() Diagnostics {
 }
 
 // Errors returns only the errors.
-func (ds Diagnostics) Errors() Diagnostics {
-	var out Diagnostics
-	for _, d := range ds {
-		if d.Severity == Error {
-			out = append(out, d)
-		}
-	}
-	return out
-}
+func (ds Diagnostics) Errors() Diagnostics { return ds.only(Error) }
 
 // Warnings returns only the warnings.
-func (ds Diagnostics) Warnings() Diagnostics {
+func (ds Diagnostics) Warnings() Diagnostics { return ds.only(Warning) }
+
+func (ds Diagnostics) only(sev Severity) Diagnostics {
 	var out Diagnostics
 	for _, d := range ds {
-		if d.Severity == Warning {
+		if d.Severity == sev {
 			out = append(out, d)
 		}
 	}
