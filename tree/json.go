@@ -437,13 +437,7 @@ func (j *jsonWriter) key(first *bool, k string) {
 	j.w.WriteString(": ")
 }
 
-func (j *jsonWriter) quote(s string) {
-	b, err := json.Marshal(s)
-	if err != nil && j.err == nil {
-		j.err = err
-	}
-	j.w.Write(b)
-}
+func (j *jsonWriter) quote(s string) { j.w.WriteString(j.quoted(s)) }
 
 func (j *jsonWriter) open(c byte) { j.w.WriteByte(c); j.indent++ }
 func (j *jsonWriter) close(c byte, empty bool) {
@@ -454,182 +448,167 @@ func (j *jsonWriter) close(c byte, empty bool) {
 	j.w.WriteByte(c)
 }
 
-func (j *jsonWriter) model() {
-	m := j.m
+// array writes n items, one per line; item writes the i-th.
+func (j *jsonWriter) array(n int, item func(i int)) {
+	j.open('[')
+	for i := 0; i < n; i++ {
+		if i > 0 {
+			j.w.WriteByte(',')
+		}
+		j.nl()
+		item(i)
+	}
+	j.close(']', n == 0)
+}
+
+// object writes an object whose keys body adds with key.
+func (j *jsonWriter) object(body func(first *bool)) {
 	first := true
 	j.open('{')
-	if m.Title != "" {
-		j.key(&first, "title")
-		j.quote(m.Title)
-	}
-	if m.Currency != "" {
-		j.key(&first, "currency")
-		j.quote(m.Currency)
-	}
-	j.key(&first, "objective")
-	j.quote(m.Objective.String())
-	if j.opts.Value != nil && m.Root != nil {
-		j.key(&first, "value")
-		j.quote(j.opts.Value(m.Root).String())
-		if !m.Exact() {
-			// A division was rounded: say so (see Model.Exact).
-			j.key(&first, "exact")
-			j.w.WriteString("false")
-		}
-	}
-	if len(m.Uncertainties) > 0 {
-		j.key(&first, "uncertainties")
-		j.open('[')
-		for i, u := range m.Uncertainties {
-			if i > 0 {
-				j.w.WriteByte(',')
-			}
-			j.nl()
-			f := true
-			j.open('{')
-			j.key(&f, "name")
-			j.quote(u.Name)
-			if u.Label != "" {
-				j.key(&f, "label")
-				j.quote(u.Label)
-			}
-			j.key(&f, "states")
-			j.open('[')
-			for k, s := range u.States {
-				if k > 0 {
-					j.w.WriteByte(',')
-				}
-				j.nl()
-				j.w.WriteString(`{"label": `)
-				j.quote(s.Label)
-				j.w.WriteString(`, "probability": ` + s.P.String() + `}`)
-			}
-			j.close(']', len(u.States) == 0)
-			j.close('}', false)
-		}
-		j.close(']', false)
-	}
-	if len(m.Tests) > 0 {
-		j.key(&first, "tests")
-		j.open('[')
-		for i, t := range m.Tests {
-			if i > 0 {
-				j.w.WriteByte(',')
-			}
-			j.nl()
-			f := true
-			j.open('{')
-			j.key(&f, "name")
-			j.quote(t.Name)
-			if t.Label != "" {
-				j.key(&f, "label")
-				j.quote(t.Label)
-			}
-			j.key(&f, "on")
-			j.quote(t.On)
-			j.key(&f, "cost")
-			j.w.WriteString(t.CostValue.String())
-			j.key(&f, "readings")
-			j.open('[')
-			u := m.Uncertainty(t.On)
-			for k, rd := range t.Readings {
-				if k > 0 {
-					j.w.WriteByte(',')
-				}
-				j.nl()
-				j.w.WriteString(`{"label": `)
-				j.quote(rd.Label)
-				j.w.WriteString(`, "likelihoods": [`)
-				for si, l := range rd.L {
-					if si > 0 {
-						j.w.WriteString(", ")
-					}
-					j.w.WriteString(`{"state": `)
-					if u != nil && si < len(u.States) {
-						j.quote(u.States[si].Label)
-					}
-					j.w.WriteString(`, "probability": ` + l.String() + `}`)
-				}
-				j.w.WriteString(`]}`)
-			}
-			j.close(']', len(t.Readings) == 0)
-			j.close('}', false)
-		}
-		j.close(']', false)
-	}
-	if m.Root != nil {
-		j.key(&first, "root")
-		j.node(m.Root)
-	}
+	body(&first)
 	j.close('}', false)
+}
+
+// str writes a string member, left out when empty.
+func (j *jsonWriter) str(first *bool, k, v string) {
+	if v != "" {
+		j.key(first, k)
+		j.quote(v)
+	}
+}
+
+// raw writes a member whose value is already JSON (a number, true, false).
+func (j *jsonWriter) raw(first *bool, k, v string) {
+	j.key(first, k)
+	j.w.WriteString(v)
+}
+
+// inline writes a short object on one line: {"k": v, ...}; vals are JSON.
+func (j *jsonWriter) inline(kv ...string) {
+	j.w.WriteByte('{')
+	for i := 0; i < len(kv); i += 2 {
+		if i > 0 {
+			j.w.WriteString(", ")
+		}
+		j.quote(kv[i])
+		j.w.WriteString(": " + kv[i+1])
+	}
+	j.w.WriteByte('}')
+}
+
+func (j *jsonWriter) quoted(s string) string {
+	b, err := json.Marshal(s)
+	if err != nil && j.err == nil {
+		j.err = err
+	}
+	return string(b)
+}
+
+func (j *jsonWriter) model() {
+	m := j.m
+	j.object(func(first *bool) {
+		j.str(first, "title", m.Title)
+		j.str(first, "currency", m.Currency)
+		j.str(first, "objective", m.Objective.String())
+		if j.opts.Value != nil && m.Root != nil {
+			j.str(first, "value", j.opts.Value(m.Root).String())
+			if !m.Exact() {
+				// A division was rounded: say so (see Model.Exact).
+				j.raw(first, "exact", "false")
+			}
+		}
+		if len(m.Uncertainties) > 0 {
+			j.key(first, "uncertainties")
+			j.array(len(m.Uncertainties), func(i int) {
+				u := m.Uncertainties[i]
+				j.object(func(f *bool) {
+					j.str(f, "name", u.Name)
+					j.str(f, "label", u.Label)
+					j.key(f, "states")
+					j.array(len(u.States), func(k int) {
+						j.inline("label", j.quoted(u.States[k].Label), "probability", u.States[k].P.String())
+					})
+				})
+			})
+		}
+		if len(m.Tests) > 0 {
+			j.key(first, "tests")
+			j.array(len(m.Tests), func(i int) {
+				t := m.Tests[i]
+				u := m.Uncertainty(t.On)
+				j.object(func(f *bool) {
+					j.str(f, "name", t.Name)
+					j.str(f, "label", t.Label)
+					j.str(f, "on", t.On)
+					j.raw(f, "cost", t.CostValue.String())
+					j.key(f, "readings")
+					j.array(len(t.Readings), func(k int) {
+						rd := t.Readings[k]
+						j.w.WriteString(`{"label": ` + j.quoted(rd.Label) + `, "likelihoods": [`)
+						for si, l := range rd.L {
+							if si > 0 {
+								j.w.WriteString(", ")
+							}
+							state := ""
+							if u != nil && si < len(u.States) {
+								state = u.States[si].Label
+							}
+							j.inline("state", j.quoted(state), "probability", l.String())
+						}
+						j.w.WriteString(`]}`)
+					})
+				})
+			})
+		}
+		if m.Root != nil {
+			j.key(first, "root")
+			j.node(m.Root)
+		}
+	})
 	j.w.WriteByte('\n')
 }
 
 func (j *jsonWriter) node(n *Node) {
-	first := true
-	j.open('{')
-	j.key(&first, "type")
-	j.quote(n.Kind.String())
-	if n.Label != "" {
-		j.key(&first, "label")
-		j.quote(n.Label)
-	}
-	if n.Uncertainty != "" {
-		j.key(&first, "uncertainty")
-		j.quote(n.Uncertainty)
-	}
-	if n.Test != "" {
-		j.key(&first, "test")
-		j.quote(n.Test)
-	}
-	if j.opts.Value != nil {
-		j.key(&first, "value")
-		j.quote(j.opts.Value(n).String())
-	} else if n.Kind == KindEnd && !n.Value.IsZero() {
-		j.key(&first, "value")
-		j.w.WriteString(n.Value.String())
-	}
-	if j.opts.Best != nil && n.Kind == KindDecision {
-		j.key(&first, "best")
-		j.w.WriteByte('[')
-		for i, l := range j.opts.Best(n) {
-			if i > 0 {
-				j.w.WriteString(", ")
-			}
-			j.quote(l)
+	j.object(func(first *bool) {
+		j.str(first, "type", n.Kind.String())
+		j.str(first, "label", n.Label)
+		j.str(first, "uncertainty", n.Uncertainty)
+		j.str(first, "test", n.Test)
+		if j.opts.Value != nil {
+			j.str(first, "value", j.opts.Value(n).String())
+		} else if n.Kind == KindEnd && !n.Value.IsZero() {
+			j.raw(first, "value", n.Value.String())
 		}
-		j.w.WriteByte(']')
-	}
-	if len(n.Branches) > 0 {
-		j.key(&first, "branches")
-		j.open('[')
+		if j.opts.Best != nil && n.Kind == KindDecision {
+			best := j.opts.Best(n)
+			q := make([]string, len(best))
+			for i, l := range best {
+				q[i] = j.quoted(l)
+			}
+			j.raw(first, "best", "["+strings.Join(q, ", ")+"]")
+		}
+		if len(n.Branches) == 0 {
+			return
+		}
 		named := n.Uncertainty != "" || n.Test != ""
-		for i, b := range n.Branches {
-			if i > 0 {
-				j.w.WriteByte(',')
-			}
-			j.nl()
-			f := true
-			j.open('{')
-			j.key(&f, "label")
-			j.quote(b.Label)
-			if n.Kind == KindChance && (!named || j.opts.Probabilities) {
-				j.key(&f, "probability")
-				j.w.WriteString(b.P.String())
-			}
-			if !b.C.IsZero() {
-				j.key(&f, "cash")
-				j.w.WriteString(b.C.String())
-			}
-			if b.Node != nil && (j.opts.Value != nil || !isPlainEnd(b.Node)) {
-				j.key(&f, "node")
-				j.node(b.Node)
-			}
-			j.close('}', false)
-		}
-		j.close(']', false)
-	}
-	j.close('}', false)
+		j.key(first, "branches")
+		j.array(len(n.Branches), func(i int) {
+			b := n.Branches[i]
+			j.object(func(f *bool) {
+				j.str(f, "label", b.Label)
+				if n.Kind == KindChance && (!named || j.opts.Probabilities) {
+					j.raw(f, "probability", b.P.String())
+				}
+				if !b.C.IsZero() {
+					j.raw(f, "cash", b.C.String())
+				}
+				if b.Node != nil && (j.opts.Value != nil || !isPlainEnd(b.Node)) {
+					j.key(f, "node")
+					j.node(b.Node)
+				}
+			})
+		})
+	})
 }
 
 // isPlainEnd is an end node with nothing to say: the writer leaves it out,
