@@ -10,7 +10,6 @@ import (
 	"github.com/shopspring/decimal"
 )
 
-
 func wantDec(t *testing.T, what string, got decimal.Decimal, want string) {
 	t.Helper()
 	if !got.Equal(d(want)) {

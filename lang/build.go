@@ -318,14 +318,16 @@ func (b *builder) bareLabel(l *srcLine, role itemRole) {
 	// Read the rest of the line with the label quoted.
 	nt := append([]lexer.Token{{Type: tokString, Value: `"` + text + `"`, Pos: toks[0].Pos}}, toks[n:]...)
 	nw := append([]int{end - toks[0].Pos.Column}, l.lx.width[n:]...)
-	lx := lexed{toks: nt, width: nw, endCol: l.lx.endCol, lexErr: true}
+	lx := lexed{toks: nt, width: nw, endCol: l.lx.endCol, lexErr: true, noParse: l.lx.noParse}
+	hadLexErr := l.lx.lexErr
 	l.lx, l.kind = lx, kItem
 	l.ast, l.err = nil, nil
 	if !lx.noParse {
 		g, err := parseWith(getParsers().item, nt, lexer.Position{Line: l.num, Column: lx.endCol})
 		if err != nil {
-			d := syntaxError(err, kItem, role, lx)
-			b.ds = append(b.ds, d)
+			if !hadLexErr {
+				b.ds = append(b.ds, syntaxError(err, kItem, role, lx))
+			}
 		} else {
 			l.ast = g
 		}
@@ -336,9 +338,14 @@ func (b *builder) unknownKeyword(l *srcLine, parent *frame) {
 	first := l.first()
 	list := topKeywords
 	hint := "a line starts with one of: " + strings.Join(topKeywords, ", ") + "; or with a quoted label"
-	if parent != nil && parent.kind == fBranch || parent != nil && parent.kind == fSubtree {
-		list = nodeKeywords
-		hint = "under " + parent.desc() + " goes a node: " + strings.Join(nodeKeywords, ", ")
+	if parent != nil {
+		switch parent.kind {
+		case fBranch, fSubtree:
+			list = nodeKeywords
+			hint = "under " + parent.desc() + " goes a node: " + strings.Join(nodeKeywords, ", ")
+		case fNode:
+			hint = "the lines under " + parent.desc() + " are its branches, each starting with a quoted label"
+		}
 	}
 	msg := fmt.Sprintf("unknown keyword %q", first.Value)
 	if s := suggest(strings.ToLower(first.Value), list); s != "" {

@@ -213,7 +213,7 @@ func (b *builder) weigh(root *tree.Node) int {
 // checkLimit weighs the main tree and reports where it passes the node
 // limit, if it does.
 func (b *builder) checkLimit() bool {
-	raise := "if the model really is this big, raise the node limit (--node-limit; Options.NodeLimit in Go)"
+	raise := "if the model really is this big, raise the node limit (--max-nodes on the command line; Options.NodeLimit in Go)"
 	total := 0
 	stack := []*tree.Node{b.m.Root}
 	for len(stack) > 0 {

@@ -141,40 +141,44 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 		case r == '#':
 			return out
 		case r == '"' || r == '“' || r == '”':
+			// A label runs to its closing quote, on this line. \" and \\ are
+			// escapes, kept as written (unquote removes them). Curly quotes
+			// are reported and read as straight ones.
 			j, n := i+size, 1
-			closed := false
-			var b []byte
-			b = append(b, '"')
+			end, closed, curly := len(s), false, r != '"'
 			for j < len(s) {
 				q, qs := utf8.DecodeRuneInString(s[j:])
 				if q == '\\' && j+1 < len(s) && (s[j+1] == '"' || s[j+1] == '\\') {
-					b = append(b, s[j], s[j+1])
 					j += 2
 					n += 2
 					continue
 				}
-				j += qs
-				n++
 				if q == '"' || q == '”' || (r == '“' && q == '“') {
-					closed = true
-					b = append(b, '"')
-					if q != '"' || r != '"' {
-						errAt(c, n, "use straight double quotes (\") around labels; word processors turn them into curly ones",
-							"label in curly quotes")
-					}
+					end, closed, curly = j, true, curly || q != '"'
+					j += qs
+					n++
 					break
 				}
 				if q == utf8.RuneError && qs == 1 && !badUTF8 {
-					errAt(col+n-1, 1, "save the file as UTF-8 text", "invalid UTF-8 in a label")
+					errAt(col+n, 1, "save the file as UTF-8 text", "invalid UTF-8 in a label")
 					badUTF8 = true
 				}
-				b = append(b, s[j-qs:j]...)
+				j += qs
+				n++
 			}
-			if !closed {
+			v := s[i:j]
+			if curly || !closed {
+				v = `"` + s[i+size:end] + `"`
+			}
+			switch {
+			case !closed:
 				errAt(c, n, "add the closing \" at the end of the label; a label must fit on one line",
 					"unterminated label: the closing quote is missing")
+			case curly:
+				errAt(c, n, "use straight double quotes (\") around labels; word processors turn them into curly ones",
+					"label in curly quotes")
 			}
-			emit(tokString, string(b), c, n)
+			emit(tokString, v, c, n)
 			i = j
 			col += n
 			minusRun = 0

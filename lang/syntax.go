@@ -195,6 +195,10 @@ func syntaxError(err error, k lineKind, role itemRole, lx lexed) tree.Diagnostic
 	case k == kLet && exp == "`..` between the low and high ends of the range":
 		d.Summary = fmt.Sprintf("expected `..` between the low and high ends of the range, found %s", the(found))
 		d.Hint = "write the range as in LOW .. HIGH, for example in 15% .. 45%"
+	case k == kItem && idx >= 2 && lx.toks[1].Type == tokIdent && isNodeKeyword(lx.toks[1].Value):
+		d.Pos, d.Len = tokPos(lx.toks[1]), lx.endCol-lx.toks[1].Pos.Column
+		d.Summary = "a node goes on a line of its own"
+		d.Hint = fmt.Sprintf("put `%s` on the next line, indented under %s", joinFrom(lx, 1), lx.toks[0].Value)
 	case t.Value == ".." && k != kLet:
 		d.Summary = "a range (LOW .. HIGH) only goes on a let line"
 		d.Hint = "give the value itself here; put the range on the let that defines it: let NAME = VALUE in LOW .. HIGH"

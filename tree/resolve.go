@@ -513,10 +513,11 @@ func (r *resolver) tree() {
 				for i, b := range n.Branches {
 					exprs[i], rest[i], pos[i] = b.Prob, b.Rest, b.Pos
 				}
-				ps, _ := r.probs(what, n.Pos, exprs, rest, pos)
+				ps, ok := r.probs(what, n.Pos, exprs, rest, pos)
 				for i, b := range n.Branches {
 					b.P = ps[i]
-					if b.P.IsZero() && (b.Prob != nil || b.Rest) && len(n.Branches) >= 2 {
+					// A zero is only news when the probabilities are sound.
+					if ok && b.P.IsZero() && (b.Prob != nil || b.Rest) && len(n.Branches) >= 2 {
 						r.ds.Warn(b.Pos, "remove it, or give it a probability", "branch %q has probability 0 and never happens", b.Label)
 					}
 				}
