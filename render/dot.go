@@ -42,7 +42,7 @@ type Options struct {
 
 // DefaultMaxDrawn is the largest drawing DOT makes unless Options.MaxDrawn
 // says otherwise.
-const DefaultMaxDrawn = 20_000
+const DefaultMaxDrawn = 10_000
 
 // TooBigError is DOT's answer to a drawing with more nodes than
 // Options.MaxDrawn allows.

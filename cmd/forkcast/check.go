@@ -22,7 +22,10 @@ func checkCommand() *cli.Command {
 			"probabilities outside [0, 1] or not summing to 1, duplicate labels, cycles.\n" +
 			"Warnings do not: branches with probability 0, options that are worse than\n" +
 			"another option of the same decision in every outcome, `let`s never used.",
-		Flags: []cli.Flag{maxNodesFlag},
+		Flags: []cli.Flag{
+			&cli.IntFlag{Name: "warnings", Value: 50, Usage: "show at most `N` warnings (-1: all); errors are always all shown"},
+			maxNodesFlag,
+		},
 		Action: func(c *cli.Context) error {
 			l, err := loadModel(c)
 			if err != nil {
@@ -33,7 +36,7 @@ func checkCommand() *cli.Command {
 				return modelErr("%v", err)
 			}
 			ds := append(l.Diags, eval.Dominated(sol)...).Sort()
-			ds.Print(c.App.ErrWriter, l.Name, l.Src)
+			printLimited(c, ds, l.Name, l.Src, c.Int("warnings"), "run with --warnings -1 to see them all")
 			fmt.Fprintf(c.App.Writer, "%s: ok: %d nodes, %d warning%s\n", l.Name, len(sol.Nodes()), len(ds), plural(len(ds)))
 			return nil
 		},

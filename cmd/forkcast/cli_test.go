@@ -171,3 +171,20 @@ func TestDeterministicOutput(t *testing.T) {
 		}
 	}
 }
+
+func TestWarningsAreCapped(t *testing.T) {
+	var b strings.Builder
+	for i := 0; i < 7; i++ {
+		b.WriteString("let unused" + string(rune('a'+i)) + " = 1\n")
+	}
+	b.WriteString("decision \"d\"\n  \"a\"  gain 5\n")
+	p := writeFile(t, "many.fork", b.String())
+	_, _, errs := forkcast(t, "", "solve", p)
+	if n := strings.Count(errs, "warning:"); n != solveWarningLimit || !strings.Contains(errs, "2 more warnings not shown; run `forkcast check`") {
+		t.Errorf("solve showed %d warnings:\n%s", n, errs)
+	}
+	_, _, errs = forkcast(t, "", "check", "--warnings", "-1", p)
+	if n := strings.Count(errs, "warning:"); n != 7 {
+		t.Errorf("check --warnings -1 showed %d of 7 warnings:\n%s", n, errs)
+	}
+}

@@ -10,6 +10,7 @@ import (
 
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render"
+	"github.com/forkcast/forkcast/render/graphviz"
 	"github.com/urfave/cli/v2"
 )
 
@@ -48,7 +49,7 @@ func drawCommand() *cli.Command {
 	}
 }
 
-// drawFormat is what draw writes: a render.Format or DOT text.
+// drawFormat is what draw writes: a graphviz.Format or DOT text.
 type drawFormat string
 
 const formatDOT drawFormat = "dot"
@@ -68,7 +69,7 @@ func drawAction(c *cli.Context) error {
 	if c.Int("wrap") < 1 {
 		return usageErr("--wrap %d: give a line length of at least 1", c.Int("wrap"))
 	}
-	if out == "-" && format == drawFormat(render.PNG) && isTerminal(c.App.Writer) {
+	if out == "-" && format == drawFormat(graphviz.PNG) && isTerminal(c.App.Writer) {
 		return usageErr("will not write a PNG to a terminal; give -o FILE.png or redirect the output")
 	}
 	l, err := loadModel(c)
@@ -93,12 +94,12 @@ func drawAction(c *cli.Context) error {
 	if format == formatDOT {
 		pic.Write(dot)
 	} else {
-		r, err := render.NewRenderer(c.Context)
+		r, err := graphviz.NewRenderer(c.Context)
 		if err != nil {
 			return modelErr("%v", err)
 		}
 		defer r.Close()
-		if err := r.Render(c.Context, dot, render.Format(format), &pic); err != nil {
+		if err := r.Render(c.Context, dot, graphviz.Format(format), &pic); err != nil {
 			return modelErr("%s: %v", l.Name, err)
 		}
 	}
@@ -127,13 +128,13 @@ func drawTarget(c *cli.Context, name string) (out string, format drawFormat, err
 	if format == "" && out != "" && out != "-" {
 		switch strings.ToLower(filepath.Ext(out)) {
 		case ".png":
-			format = drawFormat(render.PNG)
+			format = drawFormat(graphviz.PNG)
 		case ".dot", ".gv":
 			format = formatDOT
 		}
 	}
 	if format == "" {
-		format = drawFormat(render.SVG)
+		format = drawFormat(graphviz.SVG)
 	}
 	if out == "" {
 		if name == "-" {

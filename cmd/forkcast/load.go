@@ -97,17 +97,41 @@ func loadModel(c *cli.Context) (*loaded, error) {
 		shown = "<stdin>"
 	}
 	if ds.HasErrors() {
-		ds.Print(c.App.ErrWriter, shown, src)
+		printLimited(c, ds, shown, src, solveWarningLimit, "fix the errors, then run `forkcast check` to see them all")
 		n := len(ds.Errors())
 		return nil, modelErr("%s: %d error%s; nothing was solved", shown, n, plural(n))
 	}
 	return &loaded{Model: m, Name: shown, Src: src, Diags: ds}, nil
 }
 
-// printWarnings reports warnings on standard error, unless quiet.
+// solveWarningLimit is how many warnings an analysis command shows before
+// pointing to `forkcast check` for the rest.
+const solveWarningLimit = 5
+
+// printWarnings reports the model's warnings on standard error, the first
+// few only: `check` lists them all.
 func (l *loaded) printWarnings(c *cli.Context) {
-	if len(l.Diags) > 0 {
-		l.Diags.Print(c.App.ErrWriter, l.Name, l.Src)
+	printLimited(c, l.Diags, l.Name, l.Src, solveWarningLimit, "run `forkcast check` to see them all")
+}
+
+// printLimited prints every error and at most limit warnings (limit < 0:
+// all), then says how many warnings were left out and how to see them.
+func printLimited(c *cli.Context, ds tree.Diagnostics, name string, src []byte, limit int, how string) {
+	var shown tree.Diagnostics
+	left := 0
+	for _, d := range ds {
+		if d.Severity == tree.Warning && limit >= 0 {
+			if limit == 0 {
+				left++
+				continue
+			}
+			limit--
+		}
+		shown = append(shown, d)
+	}
+	shown.Print(c.App.ErrWriter, name, src)
+	if left > 0 {
+		fmt.Fprintf(c.App.ErrWriter, "%s: %d more warning%s not shown; %s\n", name, left, plural(left), how)
 	}
 }
 

@@ -35,10 +35,10 @@ func commands() []*cli.Command {
 	return []*cli.Command{
 		solveCommand(),
 		checkCommand(),
-		drawCommand(),
-		examplesCommand(),
 		voiCommand(),
 		breakevenCommand(),
+		drawCommand(),
+		examplesCommand(),
 	}
 }
 

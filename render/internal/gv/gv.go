@@ -46,7 +46,10 @@ func New(ctx context.Context) (c *Context, err error) {
 	return &Context{g: g}, nil
 }
 
-// Close frees the context.
+// Close frees the context. go-graphviz reports from it the last message
+// Graphviz gave on any earlier call (gvFreeContext returns the count of
+// errors ever reported), which says nothing about the freeing: that is
+// dropped, and only a failure of the call itself is returned.
 func (c *Context) Close() (err error) {
 	mu.Lock()
 	defer mu.Unlock()
@@ -56,7 +59,8 @@ func (c *Context) Close() (err error) {
 	}
 	g := c.g
 	c.g = nil
-	return g.Close()
+	_ = g.Close()
+	return nil
 }
 
 // Render lays out a graph in the DOT language with the dot engine and

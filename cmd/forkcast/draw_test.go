@@ -1,0 +1,115 @@
+package main
+
+import (
+	"bytes"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+func TestDraw(t *testing.T) {
+	dir := t.TempDir()
+	src, err := os.ReadFile("../../examples/expansion.fork")
+	if err != nil {
+		t.Fatal(err)
+	}
+	svgOK := func(t *testing.T, b []byte) {
+		t.Helper()
+		if !bytes.Contains(b, []byte("</svg>")) || !bytes.Contains(b, []byte(`class="node decision optimal"`)) {
+			t.Errorf("not an SVG of a solved tree: %.200s", b)
+		}
+	}
+	cases := []struct {
+		name  string
+		stdin string
+		args  []string
+		file  string // the picture written, if any
+		check func(t *testing.T, b []byte)
+	}{
+		{"svg file", "", []string{"draw", "example:sourcing", "-o", filepath.Join(dir, "a.svg")}, "a.svg", svgOK},
+		{"png by extension", "", []string{"draw", "example:sourcing", "-o", filepath.Join(dir, "a.png")}, "a.png", func(t *testing.T, b []byte) {
+			if !bytes.HasPrefix(b, []byte("\x89PNG")) {
+				t.Errorf("not a PNG")
+			}
+		}},
+		{"dot by extension", "", []string{"draw", "example:release", "--policy-only", "-o", filepath.Join(dir, "a.gv")}, "a.gv", func(t *testing.T, b []byte) {
+			if !bytes.HasPrefix(b, []byte("digraph ")) || !bytes.Contains(b, []byte("others")) {
+				t.Errorf("not the DOT of a policy-only drawing: %.100s", b)
+			}
+		}},
+		{"flags after the file, depth", "", []string{"draw", "../../examples/expansion.fork", "--depth", "1", "-o", filepath.Join(dir, "d.svg")}, "d.svg", func(t *testing.T, b []byte) {
+			svgOK(t, b)
+			if !bytes.Contains(b, []byte("not drawn")) {
+				t.Error("no depth stub")
+			}
+		}},
+		{"stdin to stdout", string(src), []string{"draw", "-"}, "", svgOK},
+		{"stdout dot", "", []string{"draw", "example:sourcing", "-o", "-", "--format", "dot"}, "", func(t *testing.T, b []byte) {
+			if !bytes.HasPrefix(b, []byte("digraph ")) {
+				t.Errorf("not DOT: %.100s", b)
+			}
+		}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			code, out, errs := forkcast(t, c.stdin, c.args...)
+			if code != 0 {
+				t.Fatalf("exit %d: %s", code, errs)
+			}
+			b := []byte(out)
+			if c.file != "" {
+				if !strings.Contains(errs, "wrote ") || out != "" {
+					t.Errorf("stdout %q, stderr %q", out, errs)
+				}
+				if b, err = os.ReadFile(filepath.Join(dir, c.file)); err != nil {
+					t.Fatal(err)
+				}
+			}
+			c.check(t, b)
+		})
+	}
+}
+
+func TestDrawDefaultOutput(t *testing.T) {
+	t.Chdir(t.TempDir())
+	if code, _, errs := forkcast(t, "", "draw", "example:expansion"); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if code, _, errs := forkcast(t, "", "draw", "--format", "png", "example:expansion"); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, name := range []string{"expansion.svg", "expansion.png"} {
+		if _, err := os.Stat(name); err != nil {
+			t.Errorf("no %s: %v", name, err)
+		}
+	}
+}
+
+func TestDrawErrors(t *testing.T) {
+	bad := writeFile(t, "bad.fork", "decision \"d\"\n  \"a\"  cost nope\n")
+	out := filepath.Join(t.TempDir(), "x.svg")
+	for _, c := range []struct {
+		name   string
+		args   []string
+		code   int
+		stderr string
+	}{
+		{"model error", []string{"draw", bad, "-o", out}, 1, "1 error; nothing was solved"},
+		{"no file", []string{"draw"}, 2, "draw needs a model FILE"},
+		{"bad format", []string{"draw", "example:sourcing", "--format", "gif"}, 2, `--format "gif": choose svg, png or dot`},
+		{"bad depth", []string{"draw", "example:sourcing", "--depth", "-2"}, 2, "--depth -2"},
+		{"bad wrap", []string{"draw", "example:sourcing", "--wrap", "0"}, 2, "--wrap 0"},
+		{"missing dir", []string{"draw", "example:sourcing", "-o", filepath.Join(t.TempDir(), "no", "such", "x.svg")}, 1, "no such file or directory"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			code, _, errs := forkcast(t, "", c.args...)
+			if code != c.code || !strings.Contains(errs, c.stderr) {
+				t.Fatalf("exit %d, stderr:\n%s\nwant exit %d and %q", code, errs, c.code, c.stderr)
+			}
+		})
+	}
+	if _, err := os.Stat(out); err == nil {
+		t.Error("a picture was written for a model with errors")
+	}
+}
