@@ -33,7 +33,7 @@ type Solved struct {
 	// parent and via: the node above (-1 at the root) and the index of its
 	// branch that leads here; size counts the nodes in this subtree; best is
 	// the first optimal branch of a decision and nbest how many tie with it.
-	self, parent, via, depth, size, best, nbest int32
+	self, parent, via, size, best, nbest int32
 }
 
 // ErrNotResolved is returned by Solve for a model with no tree.
@@ -63,25 +63,25 @@ func (sol *Solution) flatten() {
 	sol.nodes = make([]Solved, 0, sol.Model.Size())
 	type item struct {
 		b                *tree.Branch
-		parent, via, dep int32
+		parent, via int32
 	}
 	root := Solved{Node: sol.Model.Root, sol: sol, parent: -1, via: -1, best: -1}
 	sol.nodes = append(sol.nodes, root)
 	var stack []item
-	push := func(n *tree.Node, self, dep int32) {
+	push := func(n *tree.Node, self int32) {
 		bs := n.Branches
 		for j := len(bs) - 1; j >= 0; j-- {
-			stack = append(stack, item{bs[j], self, int32(j), dep})
+			stack = append(stack, item{bs[j], self, int32(j)})
 		}
 	}
-	push(root.Node, 0, 1)
+	push(root.Node, 0)
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
 		self := int32(len(sol.nodes))
 		b := it.b
-		sol.nodes = append(sol.nodes, Solved{Node: b.Node, sol: sol, self: self, parent: it.parent, via: it.via, depth: it.dep, best: -1})
-		push(b.Node, self, it.dep+1)
+		sol.nodes = append(sol.nodes, Solved{Node: b.Node, sol: sol, self: self, parent: it.parent, via: it.via, best: -1})
+		push(b.Node, self)
 	}
 }
 
@@ -178,8 +178,15 @@ func (s *Solved) Parent() *Solved {
 // Via is the index of the parent's branch that leads here (-1 at the root).
 func (s *Solved) Via() int { return int(s.via) }
 
-// Depth is the number of branches from the root to this node.
-func (s *Solved) Depth() int { return int(s.depth) }
+// Depth is the number of branches from the root to this node (counted up
+// the parents: a field would cost every node of a large tree memory).
+func (s *Solved) Depth() int {
+	d := 0
+	for p := s.parent; p >= 0; p = s.sol.nodes[p].parent {
+		d++
+	}
+	return d
+}
 
 // Size is the number of nodes in this subtree, the node included.
 func (s *Solved) Size() int { return int(s.size) }
