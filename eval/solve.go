@@ -62,7 +62,7 @@ func Solve(m *tree.Model) (*Solution, error) {
 func (sol *Solution) flatten() {
 	sol.nodes = make([]Solved, 0, sol.Model.Size())
 	type item struct {
-		b                *tree.Branch
+		b           *tree.Branch
 		parent, via int32
 	}
 	root := Solved{Node: sol.Model.Root, sol: sol, parent: -1, via: -1, best: -1}

@@ -94,16 +94,28 @@ const (
 // ErrNoTree is returned when there is no solved tree to draw.
 var ErrNoTree = errors.New("render: no solved tree to draw")
 
-// DOT writes the solved tree as a graph in the Graphviz DOT language, laid
-// out left to right: decisions as squares, chance nodes as circles, end
+// DOT writes the solved tree as a graph in the Graphviz DOT language,
+// drawn left to right: decisions as squares, chance nodes as circles, end
 // nodes as triangles, every node with its expected value, every branch with
-// its label, probability and cash flow, and every end node with its
-// cumulative payoff and path probability. The optimal policy is drawn
-// thick and dark blue; everything on it (nodes and branches the policy
-// reaches from the root) has the class "optimal" in the SVG Graphviz makes
-// of it. Nodes have ids n0, n1, … in the tree's pre-order (the same node
-// keeps its id whatever the options), the branch into node nK has id eK,
-// and stubs have ids ending in "x".
+// its label, probability and cash flow (as a gain or a cost), and every end
+// node with its cumulative payoff and path probability. The optimal policy
+// is thick and dark blue; the options a decision rejects are dashed and
+// marked ‖.
+//
+// The graph is laid out already (every node and edge has its position, and
+// the graph says layout=nop2): package render/graphviz, or Graphviz's own
+// tools (dot -Tsvg), only draw it. Each branch is a small label node (the
+// branch's name above a rule, its figures below) between two straight
+// edges.
+//
+// In the SVG Graphviz makes of it, every element on the optimal policy
+// (the nodes, labels and edges the policy reaches from the root) has the
+// class "optimal"; nodes also have the class of their kind (decision,
+// chance, end, stub), branches "branch" and rejected ones "pruned". Ids
+// are stable: nodes are n0, n1, … in the tree's pre-order (a node keeps its
+// id whatever the options), the branch into node nK is bK (its label), eK
+// (the edge into the label) and fK (the edge on to nK), and the stub for
+// the options decision K rejects is bKx, reached by eKx.
 //
 // The output depends only on its inputs.
 func DOT(sol *eval.Solution, opts Options) ([]byte, error) {
@@ -151,8 +163,6 @@ type drawer struct {
 	nodes []eval.Solved
 	on    []bool                // reached by the optimal policy
 	ends  map[int]eval.EndPoint // end nodes by index
-	// deepest is the depth of the deepest node drawn: the last column.
-	deepest int
 }
 
 // index works out which nodes the policy reaches and the end points.
@@ -195,54 +205,47 @@ func (d *drawer) graph(steps []step) {
 	if name == "" {
 		name = "Decision tree"
 	}
+	items := d.layout(steps)
 	fmt.Fprintf(b, "digraph %s {\n", quote(name))
-	fmt.Fprintf(b, "\tgraph [rankdir=LR ordering=out nodesep=0.12 ranksep=0.4 splines=line pad=0.3 bgcolor=%q class=\"forkcast\" fontname=%q labelloc=t labeljust=l label=<%s>]\n",
+	// layout=nop2: the positions below are final (see layout); Graphviz
+	// only sizes the labels and draws.
+	fmt.Fprintf(b, "\tgraph [layout=nop2 splines=true pad=0.3 bgcolor=%q class=\"forkcast\" fontname=%q labelloc=t labeljust=l label=<%s>]\n",
 		colPaper, fontFamily, d.titleLabel())
 	fmt.Fprintf(b, "\tnode [fontname=%q fontsize=%g fontcolor=%q fixedsize=shape penwidth=%s color=%q]\n",
 		fontFamily, fontNode, colInk, penNode, colNode)
-	fmt.Fprintf(b, "\tedge [arrowhead=none penwidth=%s color=%q tailport=e headport=w]\n", penOther, colOther)
-	for _, st := range steps {
-		d.deepest = max(d.deepest, d.nodes[st.i].Depth())
+	fmt.Fprintf(b, "\tedge [arrowhead=none penwidth=%s color=%q]\n", penOther, colOther)
+	// Nodes and labels first, then the edges: rejected options, other
+	// branches, the optimal policy.
+	for _, it := range items {
+		if l := it.label; l != nil {
+			fmt.Fprintf(b, "\t%s pos=\"%s\"]\n", l.def, xy(l.x, it.y))
+		}
+		if !it.st.others {
+			fmt.Fprintf(b, "\t%s pos=\"%s\"]\n", it.node.def, xy(it.x, it.y))
+		}
 	}
-	// Label nodes of one depth share a rank, and Graphviz ends every edge
-	// at a rank's full width, so the labels of a rank are made equally wide
-	// for their rules to meet the edges.
-	labels := make([]labelSpec, len(steps))
-	width := map[int]float64{}
-	for k, st := range steps {
-		switch {
-		case st.others:
-			labels[k] = d.othersLabel(st.i)
-		case st.i > 0:
-			labels[k] = d.branchLabel(&d.nodes[st.i])
-		default:
-			continue
-		}
-		width[labels[k].depth] = max(width[labels[k].depth], labels[k].width())
-	}
-	for k, st := range steps {
-		s := &d.nodes[st.i]
-		if st.others {
-			l := labels[k]
-			d.labelNode(l, width[l.depth])
-			fmt.Fprintf(b, "\tn%d -> %s [id=\"e%dx\" class=%q%s]\n", st.i, l.id, st.i, l.look.class, l.look.edgeAttrs())
-			continue
-		}
-		if st.i > 0 {
-			l := labels[k]
-			d.labelNode(l, width[l.depth])
-			fmt.Fprintf(b, "\tn%d -> %s [id=\"e%d\" class=%q%s]\n", s.Parent().Index(), l.id, st.i, l.look.class, l.look.edgeAttrs())
-		}
-		if d.cut(s) && s.Size() > 1 {
-			d.depthStub(st.i)
-		} else {
-			d.node(st.i)
-		}
-		if st.i > 0 {
-			l := labels[k]
-			// A heavy weight keeps the label level with the node it leads to,
-			// so that the bend of a branch falls before its label.
-			fmt.Fprintf(b, "\t%s -> n%d [id=\"f%d\" class=%q weight=20%s]\n", l.id, st.i, st.i, l.look.class, l.look.edgeAttrs())
+	for _, layer := range []look{lookPruned(), lookOther(), lookPolicy()} {
+		for _, it := range items {
+			l := it.label
+			if l == nil || l.look.color != layer.color || l.look.dashed != layer.dashed {
+				continue
+			}
+			p := it.parent
+			// Graphviz draws a node's edges in its own order, so branches
+			// must not overlap: at a decision only the option taken starts
+			// with the level stub; the others start where it ends.
+			path := fan(p.x+p.node.east, p.y, l.x-l.w/2, it.y)
+			ps := &d.nodes[p.st.i]
+			if ps.Node.Kind == tree.KindDecision && (it.st.others || d.nodes[it.st.i].Via() != ps.Chosen()) {
+				path = line(p.x+p.node.east+fanStub, p.y, l.x-l.w/2, it.y)
+			}
+			fmt.Fprintf(b, "\tn%d -> %s [id=\"e%s\" class=%q%s pos=\"%s\"]\n",
+				p.st.i, l.id, strings.TrimPrefix(l.id, "b"), l.look.class, l.look.edgeAttrs(), path)
+			if !it.st.others {
+				fmt.Fprintf(b, "\t%s -> n%d [id=\"f%d\" class=%q%s pos=\"%s\"]\n",
+					l.id, it.st.i, it.st.i, l.look.class, l.look.edgeAttrs(),
+					line(l.x+l.w/2, it.y, it.x+it.node.west, it.y))
+			}
 		}
 	}
 	b.WriteString("}\n")
@@ -260,9 +263,9 @@ func (d *drawer) cut(s *eval.Solved) bool {
 	return d.opts.MaxDepth > 0 && s.Depth() >= d.opts.MaxDepth
 }
 
-// plan lists what is drawn, in pre-order (without recursion), which is the
-// order it is written in: with ordering=out, Graphviz keeps each node's
-// branches top to bottom in the order their edges come.
+// plan lists what is drawn, in pre-order (without recursion): each node's
+// branches in model order, top to bottom, and the stub for a decision's
+// other options after the option it takes.
 func (d *drawer) plan() []step {
 	var out []step
 	stack := []step{{i: 0}}
@@ -341,33 +344,38 @@ func (l look) edgeAttrs() string {
 	return s
 }
 
-var (
-	lookPolicy = look{class: "branch optimal", color: colPolicy, pen: penPolicy, band: bandPolicy, ink: colInk, bold: true}
-	lookOther  = look{class: "branch", color: colOther, pen: penOther, band: bandOther, ink: colInkSoft}
-	lookPruned = look{class: "branch pruned", color: colPruned, pen: penOther, band: bandOther, dashed: true, ink: colInkSoft}
-)
+// The three ways a branch is drawn.
+func lookPolicy() look {
+	return look{class: "branch optimal", color: colPolicy, pen: penPolicy, band: bandPolicy, ink: colInk, bold: true}
+}
+
+func lookOther() look {
+	return look{class: "branch", color: colOther, pen: penOther, band: bandOther, ink: colInkSoft}
+}
+
+func lookPruned() look {
+	return look{class: "branch pruned", color: colPruned, pen: penOther, band: bandOther, dashed: true, ink: colInkSoft}
+}
 
 // branchLook is how the branch into s is drawn.
 func (d *drawer) branchLook(s *eval.Solved) look {
 	p := s.Parent()
 	switch {
 	case d.on[s.Index()]:
-		return lookPolicy
+		return lookPolicy()
 	case p.Node.Kind == tree.KindDecision && p.Chosen() != s.Via():
-		return lookPruned
+		return lookPruned()
 	}
-	return lookOther
+	return lookOther()
 }
 
 // labelSpec is a branch label: the node (id bK, or bKx for the stub of
 // the options decision K rejects) that carries the branch's name above a
-// rule and its probability and cash flow below, at the depth of the node
-// the branch leads to.
+// rule and its probability and cash flow below.
 type labelSpec struct {
 	id           string
 	look         look
 	above, below []string
-	depth        int
 }
 
 // width is the label's estimated width in points, padding included.
@@ -410,13 +418,14 @@ func (d *drawer) branchLabel(s *eval.Solved) labelSpec {
 	if len(figs) > 0 {
 		below = []string{strings.Join(figs, " · ")}
 	}
-	return labelSpec{id: fmt.Sprintf("b%d", i), look: st, above: lines, below: below, depth: s.Depth()}
+	return labelSpec{id: fmt.Sprintf("b%d", i), look: st, above: lines, below: below}
 }
 
-// labelNode writes a branch label: lines above a rule drawn like the
+// labelNode makes a branch label node: lines above a rule drawn like the
 // branch, lines below it. The rule runs through the node's middle, where
-// the edges meet it, so that the branch reads as one line.
-func (d *drawer) labelNode(l labelSpec, width float64) {
+// the edges meet it, so that the branch reads as one line; width is the
+// width of every label in its column, so that they line up.
+func (d *drawer) labelNode(l labelSpec, width float64) *placedLabel {
 	st, above, below := l.look, l.above, l.below
 	rows := max(len(above), len(below), 1)
 	h := float64(rows)*fontEdge*1.2 + 4
@@ -426,7 +435,7 @@ func (d *drawer) labelNode(l labelSpec, width float64) {
 	// measured, the row above 2 points taller. (An empty cell with neither
 	// padding nor border makes Graphviz 12 fail silently once an edge
 	// meets the node, hence the padding.)
-	hAbove, rule := h, ""
+	hAbove, rule, band := h, "", float64(st.band)
 	if st.band > 1 {
 		rule = `<TD WIDTH="` + pts(width) + `" HEIGHT="` + strconv.Itoa(st.band) + `" CELLPADDING="1" BGCOLOR="` + st.color + `"></TD>`
 	} else {
@@ -445,11 +454,16 @@ func (d *drawer) labelNode(l labelSpec, width float64) {
 	t.raw(`<TR><TD HEIGHT="` + pts(h) + `" CELLPADDING="2" VALIGN="TOP">`)
 	t.lines(fontEdge, st.ink, false, below)
 	t.raw(`</TD></TR></TABLE>`)
-	fmt.Fprintf(&d.buf, "\t%s [id=%q class=%q shape=plain label=<%s>]\n", l.id, l.id, st.class, t.String())
+	return &placedLabel{
+		labelSpec: l,
+		def:       fmt.Sprintf("%s [id=%q class=%q shape=plain label=<%s>", l.id, l.id, st.class, t.String()),
+		w:         ceil(width),
+		h:         ceil(hAbove) + band + ceil(h),
+	}
 }
 
-// node writes a decision, chance or end node.
-func (d *drawer) node(i int) {
+// node makes a decision, chance or end node.
+func (d *drawer) node(i int) placed {
 	s := &d.nodes[i]
 	n := s.Node
 	on := d.on[i]
@@ -460,19 +474,24 @@ func (d *drawer) node(i int) {
 		stroke, fill, pen, ink = colPolicy, colFill, penPolicyNd, colInk
 	}
 	var shape, label string
+	var p placed
 	switch n.Kind {
 	case tree.KindDecision:
 		shape = fmt.Sprintf("shape=square width=%g height=%g", sizeDecision, sizeDecision)
-		label = d.innerLabel(s, sizeDecision, on, ink)
+		label, p = d.innerLabel(s, sizeDecision, on, ink)
 	case tree.KindChance:
 		shape = fmt.Sprintf("shape=circle width=%g height=%g", sizeChance, sizeChance)
-		label = d.innerLabel(s, sizeChance, on, ink)
+		label, p = d.innerLabel(s, sizeChance, on, ink)
 	default:
 		shape = fmt.Sprintf("shape=triangle orientation=270 width=%g height=%g", sizeEnd, sizeEnd)
-		label = d.endLabel(i, ink)
+		label, p = d.endLabel(i, ink)
+		// The triangle's base, where its branch ends, is a quarter of its
+		// box left of its centre.
+		p.west = -sizeEnd * 72 / 4
 	}
-	fmt.Fprintf(&d.buf, "\tn%d [id=\"n%d\" class=%q %s style=filled color=%q fillcolor=%q penwidth=%s label=<%s>]\n",
+	p.def = fmt.Sprintf("n%d [id=\"n%d\" class=%q %s style=filled color=%q fillcolor=%q penwidth=%s label=<%s>",
 		i, i, classes, shape, stroke, fill, pen, label)
+	return p
 }
 
 // textLine is one line of node text.
@@ -484,7 +503,7 @@ type textLine struct {
 
 // innerLabel sets a decision's or chance node's title above its shape and
 // its expected value below.
-func (d *drawer) innerLabel(s *eval.Solved, side float64, on bool, ink string) string {
+func (d *drawer) innerLabel(s *eval.Solved, side float64, on bool, ink string) (string, placed) {
 	var above []textLine
 	for _, l := range wrapText(d.nodeTitle(s.Node), d.wrap) {
 		above = append(above, textLine{l, ink, false})
@@ -504,13 +523,17 @@ func (d *drawer) innerLabel(s *eval.Solved, side float64, on bool, ink string) s
 // the right cross no text. Graphviz centres the label on the shape, so the
 // table is symmetric: a blank column on the right as wide as the text's
 // overhang on the left, and rows above and below the shape equally tall.
-func stacked(above, below []textLine, side float64) string {
+func stacked(above, below []textLine, side float64) (string, placed) {
 	w := 0.0
 	for _, l := range append(above[:len(above):len(above)], below...) {
 		w = max(w, textWidth(l.text, fontNode, l.bold))
 	}
-	over := pts(max(w-side, 0) + 6)
-	h := pts(float64(max(len(above), len(below), 1))*lineNode + 2)
+	overPt := ceil(max(w-side, 0) + 6)
+	hPt := ceil(float64(max(len(above), len(below), 1))*lineNode + 2)
+	over, h := pts(overPt), pts(hPt)
+	half := ceil(side) / 2
+	p := placed{left: overPt + half, right: half, up: hPt + ceil(side+6)/2, west: -side / 2, east: side / 2}
+	p.down = p.up
 	var t htmlText
 	write := func(ls []textLine) {
 		for k, l := range ls {
@@ -528,45 +551,32 @@ func stacked(above, below []textLine, side float64) string {
 	t.raw(`<TR><TD COLSPAN="2" HEIGHT="` + h + `" ALIGN="RIGHT" BALIGN="RIGHT" VALIGN="TOP">`)
 	write(below)
 	t.raw(`</TD></TR></TABLE>`)
-	return t.String()
+	return t.String(), p
 }
 
 // endLabel sets the cumulative payoff and path probability to the right of
 // an end node's triangle: a one-row table of three cells, the middle one as
 // wide as the triangle and the outer two equally wide (the left one blank),
 // so that the triangle stays in the middle where Graphviz puts it.
-//
-// An end node with nodes beyond it in its column (a short path in a deep
-// tree) has the text above and below instead, like other nodes: to its
-// right it would narrow the room the branches of the nodes beside it fan
-// out in.
-func (d *drawer) endLabel(i int, ink string) string {
+func (d *drawer) endLabel(i int, ink string) (string, placed) {
 	s := &d.nodes[i]
 	e := d.ends[i]
 	lines := wrapText(d.endTitle(s.Node), d.wrap)
 	first := d.payoffText(e.Payoff)
 	second := "p = " + Percent(e.Prob, 2)
-	if s.Depth() < d.deepest {
-		var above []textLine
-		for _, l := range lines {
-			above = append(above, textLine{l, ink, false})
-		}
-		col := colInkSoft
-		if d.on[i] {
-			col = colPolicy
-		}
-		above = append(above, textLine{first, col, d.on[i]})
-		return stacked(above, []textLine{{second, ink, false}}, sizeEnd*72)
-	}
 	w := max(textWidth(first, fontNode, true), textWidth(second, fontNode, false))
 	for _, l := range lines {
 		w = max(w, textWidth(l, fontNode, false))
 	}
-	cell := pts(w + 6)
+	cellPt := ceil(w + 6)
+	cell := pts(cellPt)
 	col := colInkSoft
 	if d.on[i] {
 		col = colPolicy
 	}
+	mid := ceil(sizeEnd*72 + 8)
+	half := max(ceil(sizeEnd*72+4), float64(len(lines)+2)*lineNode) / 2
+	p := placed{left: mid / 2, right: mid/2 + cellPt, up: half, down: half, east: sizeEnd * 72 / 2}
 	var t htmlText
 	t.raw(`<TABLE BORDER="0" CELLBORDER="0" CELLSPACING="0" CELLPADDING="0"><TR>`)
 	t.raw(`<TD CELLPADDING="1" WIDTH="` + cell + `"></TD>`)
@@ -580,29 +590,46 @@ func (d *drawer) endLabel(i int, ink string) string {
 	t.br()
 	t.font(0, ink, false, second)
 	t.raw(`</TD></TR></TABLE>`)
-	return t.String()
+	return t.String(), p
 }
 
 // depthStub stands in for the subtree at pre-order position i, cut by
 // MaxDepth: a small dashed box with the node's title, how many nodes it
 // hides and its expected value.
-func (d *drawer) depthStub(i int) {
+func (d *drawer) depthStub(i int) placed {
 	s := &d.nodes[i]
 	on := d.on[i]
 	classes, stroke, pen, ink, col := "stub", colNode, penNode, colInkSoft, colInkSoft
 	if on {
 		classes, stroke, pen, ink, col = "stub optimal", colPolicy, "1.6", colInk, colPolicy
 	}
+	title := wrapText(d.nodeTitle(s.Node), d.wrap)
+	count := fmt.Sprintf("%s %s not drawn", Grouped(strconv.Itoa(s.Size())), plural(s.Size(), "node", "nodes"))
+	value := d.valueText(s.Value())
+	w := max(textWidth(count, fontEdge, false), textWidth(value, fontNode, on))
+	for _, l := range title {
+		w = max(w, textWidth(l, fontNode, false))
+	}
+	// The text sits in a cell of our own width, so that the box fits the
+	// widest estimate of it, Graphviz's or ours.
 	var t htmlText
-	for _, l := range wrapText(d.nodeTitle(s.Node), d.wrap) {
+	t.raw(`<TABLE BORDER="0" CELLBORDER="0" CELLSPACING="0" CELLPADDING="0"><TR><TD WIDTH="` + pts(w+4) + `">`)
+	for _, l := range title {
 		t.font(0, ink, false, l)
 		t.br()
 	}
-	t.font(fontEdge, ink, false, fmt.Sprintf("%s %s not drawn", Grouped(strconv.Itoa(s.Size())), plural(s.Size(), "node", "nodes")))
+	t.font(fontEdge, ink, false, count)
 	t.br()
-	t.font(0, col, on, d.valueText(s.Value()))
-	fmt.Fprintf(&d.buf, "\tn%d [id=\"n%d\" class=%q shape=box style=\"rounded,dashed\" fixedsize=false width=0 height=0 margin=\"0.2,0.08\" color=%q penwidth=%s label=<%s>]\n",
-		i, i, classes, stroke, pen, t.String())
+	t.font(0, col, on, value)
+	t.raw(`</TD></TR></TABLE>`)
+	const mx, my = 0.14, 0.08 // margins, inches
+	half := (ceil(w+4) + 2*mx*72) / 2
+	up := (float64(len(title)+2)*lineNode + 2*my*72) / 2
+	return placed{
+		def: fmt.Sprintf("n%d [id=\"n%d\" class=%q shape=box style=\"rounded,dashed\" fixedsize=false width=0 height=0 margin=\"%g,%g\" color=%q penwidth=%s label=<%s>",
+			i, i, classes, mx, my, stroke, pen, t.String()),
+		left: half, right: half, up: up, down: up, west: -half, east: half,
+	}
 }
 
 // othersLabel folds the options the decision at pre-order position i
@@ -627,9 +654,9 @@ func (d *drawer) othersLabel(i int) labelSpec {
 		}
 		below = append(below, v)
 	}
-	st := lookPruned
+	st := lookPruned()
 	st.class = "branch pruned others"
-	return labelSpec{id: fmt.Sprintf("b%dx", i), look: st, above: above, below: below, depth: s.Depth() + 1}
+	return labelSpec{id: fmt.Sprintf("b%dx", i), look: st, above: above, below: below}
 }
 
 // nodeTitle is what a decision or chance node is called in the picture.
@@ -832,7 +859,7 @@ func textWidth(s string, size float64, bold bool) float64 {
 	for _, r := range s {
 		w := 600
 		if r < 128 && r >= 32 {
-			w = helvetica[r-32]
+			w = helvetica(r)
 		}
 		em += float64(w)
 	}
@@ -842,13 +869,16 @@ func textWidth(s string, size float64, bold bool) float64 {
 	return em / 1000 * size
 }
 
-// helvetica holds the advance widths (1/1000 em) of Helvetica for the
-// printable ASCII characters, space first.
-var helvetica = [95]int{
-	278, 278, 355, 556, 556, 889, 667, 191, 333, 333, 389, 584, 278, 333, 278, 278,
-	556, 556, 556, 556, 556, 556, 556, 556, 556, 556, 278, 278, 584, 584, 584, 556,
-	1015, 667, 667, 722, 722, 667, 611, 778, 722, 278, 500, 667, 556, 833, 722, 778,
-	667, 778, 722, 667, 611, 722, 667, 944, 667, 667, 611, 278, 278, 278, 469, 556,
-	333, 556, 556, 500, 556, 556, 278, 556, 556, 222, 222, 500, 222, 833, 556, 556,
-	556, 556, 333, 500, 278, 556, 500, 722, 500, 500, 500, 334, 260, 334, 584,
+// helvetica is the advance width (1/1000 em) of Helvetica for a printable
+// ASCII character.
+func helvetica(r rune) int {
+	widths := [95]int{
+		278, 278, 355, 556, 556, 889, 667, 191, 333, 333, 389, 584, 278, 333, 278, 278,
+		556, 556, 556, 556, 556, 556, 556, 556, 556, 556, 278, 278, 584, 584, 584, 556,
+		1015, 667, 667, 722, 722, 667, 611, 778, 722, 278, 500, 667, 556, 833, 722, 778,
+		667, 778, 722, 667, 611, 722, 667, 944, 667, 667, 611, 278, 278, 278, 469, 556,
+		333, 556, 556, 500, 556, 556, 278, 556, 556, 222, 222, 500, 222, 833, 556, 556,
+		556, 556, 333, 500, 278, 556, 500, 722, 500, 500, 500, 334, 260, 334, 584,
+	}
+	return widths[r-32]
 }

@@ -42,7 +42,7 @@ type jv struct {
 type jsonReader struct {
 	src   []byte
 	dec   *json.Decoder
-	lines []int // byte offset of each line start
+	cur   cursor // where posAt last stopped
 	ds    Diagnostics
 	nodes int
 	limit int
@@ -54,18 +54,26 @@ func (r *jsonReader) posAt(off int64) Pos {
 	for o < len(r.src) && strings.IndexByte(" \t\r\n,:", r.src[o]) >= 0 {
 		o++
 	}
-	lo, hi := 0, len(r.lines)-1
-	for lo < hi {
-		mid := (lo + hi + 1) / 2
-		if r.lines[mid] <= o {
-			lo = mid
+	o = min(o, len(r.src))
+	// Positions are asked for in order, so a cursor moved forward keeps
+	// the whole read linear (a minified model is one long line).
+	if o < r.cur.off {
+		r.cur = cursor{line: 1, col: 1}
+	}
+	for r.cur.off < o {
+		c, size := utf8.DecodeRune(r.src[r.cur.off:o])
+		r.cur.off += size
+		if c == '\n' {
+			r.cur.line, r.cur.col = r.cur.line+1, 1
 		} else {
-			hi = mid - 1
+			r.cur.col++
 		}
 	}
-	col := utf8.RuneCount(r.src[r.lines[lo]:min(o, len(r.src))]) + 1
-	return Pos{Line: lo + 1, Col: col}
+	return Pos{Line: r.cur.line, Col: r.cur.col}
 }
+
+// cursor is a byte offset with its line and column.
+type cursor struct{ off, line, col int }
 
 // value reads one JSON value with positions, iteratively enough: objects
 // and arrays recurse, which is bounded by the decoder's own nesting limit.
@@ -220,12 +228,7 @@ func ReadJSON(src []byte, limit int) (*Model, Diagnostics) {
 	if limit <= 0 {
 		limit = DefaultNodeLimit
 	}
-	r := &jsonReader{src: src, limit: limit, lines: []int{0}}
-	for i, c := range src {
-		if c == '\n' {
-			r.lines = append(r.lines, i+1)
-		}
-	}
+	r := &jsonReader{src: src, limit: limit, cur: cursor{line: 1, col: 1}}
 	if len(bytes.TrimSpace(src)) == 0 {
 		r.ds.Add(Pos{Line: 1, Col: 1}, "a model is an object such as {\"root\": {\"type\": \"decision\", ...}}", "the JSON input is empty")
 		return nil, r.ds

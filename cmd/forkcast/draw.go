@@ -36,7 +36,7 @@ func drawCommand() *cli.Command {
 			"or .gv), else SVG.\n\n" +
 			"For big trees, --policy-only folds the options each decision rejects into one\n" +
 			"stub, and --depth N draws N levels and sums up each deeper subtree in a stub.\n" +
-			"Drawing stops at " + fmt.Sprint(render.DefaultMaxDrawn) + " nodes.",
+			"Drawing stops at " + render.Grouped(fmt.Sprint(render.DefaultMaxDrawn)) + " nodes; PNG at 32,768 pixels a side.",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "output", Aliases: []string{"o"}, Usage: "write the picture to `OUT` (- for standard output)"},
 			&cli.StringFlag{Name: "format", Usage: "picture format: svg, png or dot (`FORMAT`)"},

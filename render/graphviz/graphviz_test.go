@@ -95,8 +95,9 @@ type svgGroup struct {
 	id       string
 	classes  map[string]bool
 	polygons [][][2]float64
-	ellipses [][2]float64 // rx, ry
+	ellipses [][4]float64 // cx, cy, rx, ry
 	paths    int
+	path     string // the first path's d
 	texts    []string
 }
 
@@ -150,12 +151,17 @@ func parseSVG(t testing.TB, svg []byte) map[string]*svgGroup {
 				}
 			case "ellipse":
 				if cur != nil {
-					rx, _ := strconv.ParseFloat(attr["rx"], 64)
-					ry, _ := strconv.ParseFloat(attr["ry"], 64)
-					cur.ellipses = append(cur.ellipses, [2]float64{rx, ry})
+					var e [4]float64
+					for k, a := range []string{"cx", "cy", "rx", "ry"} {
+						e[k], _ = strconv.ParseFloat(attr[a], 64)
+					}
+					cur.ellipses = append(cur.ellipses, e)
 				}
 			case "path":
 				if cur != nil {
+					if cur.paths == 0 {
+						cur.path = attr["d"]
+					}
 					cur.paths++
 				}
 			case "text":
@@ -325,7 +331,7 @@ func checkDrawing(t *testing.T, sol *eval.Solution, opts Options, svg []byte) {
 			}
 			hasText(t, g, value(s.Value()))
 		case tree.KindChance:
-			if len(g.ellipses) != 1 || len(g.polygons) != 0 || math.Abs(g.ellipses[0][0]-g.ellipses[0][1]) > 0.01 {
+			if len(g.ellipses) != 1 || len(g.polygons) != 0 || math.Abs(g.ellipses[0][2]-g.ellipses[0][3]) > 0.01 {
 				t.Errorf("%s: a chance node must be one circle, got ellipses %v polygons %v", id, g.ellipses, g.polygons)
 			}
 			hasText(t, g, value(s.Value()))
@@ -349,6 +355,7 @@ func checkDrawing(t *testing.T, sol *eval.Solution, opts Options, svg []byte) {
 					t.Errorf("the branch into %s has no %s", id, fmt.Sprintf(f, i))
 				}
 			}
+			checkBranchGeometry(t, id, g, groups[fmt.Sprintf("e%d", i)], groups[fmt.Sprintf("f%d", i)])
 			b := s.Parent().Node.Branches[s.Via()]
 			if s.Parent().Node.Kind == tree.KindChance {
 				hasText(t, groups[fmt.Sprintf("b%d", i)], Percent(b.P, 2))
@@ -370,6 +377,64 @@ func checkDrawing(t *testing.T, sol *eval.Solution, opts Options, svg []byte) {
 			t.Errorf("%s is on the optimal policy but not drawn", id)
 		}
 	}
+}
+
+// checkBranchGeometry checks that a branch reads as one line: the edge
+// from the label on (f) is level, at the height of the node's centre, and
+// starts where the edge into the label (e) ends, one label's width on.
+func checkBranchGeometry(t *testing.T, id string, node, e, f *svgGroup) {
+	t.Helper()
+	if node == nil || e == nil || f == nil {
+		return
+	}
+	_, eEnd, ok1 := ends(e.path)
+	fStart, fEnd, ok2 := ends(f.path)
+	if !ok1 || !ok2 {
+		t.Errorf("%s: cannot read the edges %q, %q", id, e.path, f.path)
+		return
+	}
+	if math.Abs(fStart[1]-fEnd[1]) > 0.01 || math.Abs(eEnd[1]-fStart[1]) > 0.01 || eEnd[0] >= fStart[0] {
+		t.Errorf("%s: the branch is not one level line through its label: e ends %v, f runs %v to %v", id, eEnd, fStart, fEnd)
+	}
+	var cy float64
+	switch {
+	case len(node.ellipses) > 0:
+		cy = node.ellipses[0][1]
+	case len(node.polygons) > 0:
+		_, h := extent(node.polygons[0])
+		minY := math.Inf(1)
+		for _, p := range node.polygons[0] {
+			minY = math.Min(minY, p[1])
+		}
+		cy = minY + h/2
+	default:
+		return // a stub box: a path
+	}
+	if math.Abs(cy-fEnd[1]) > 0.01 {
+		t.Errorf("%s: the branch meets the node at y=%.2f, its centre is at %.2f", id, fEnd[1], cy)
+	}
+}
+
+// ends reads the first and last points of an SVG path "Mx,yC...".
+func ends(d string) (first, last [2]float64, ok bool) {
+	fields := strings.FieldsFunc(d, func(r rune) bool { return r == 'M' || r == 'C' || r == ' ' })
+	var pts [][2]float64
+	for _, f := range fields {
+		xy := strings.Split(f, ",")
+		if len(xy) != 2 {
+			return first, last, false
+		}
+		x, err1 := strconv.ParseFloat(xy[0], 64)
+		y, err2 := strconv.ParseFloat(xy[1], 64)
+		if err1 != nil || err2 != nil {
+			return first, last, false
+		}
+		pts = append(pts, [2]float64{x, y})
+	}
+	if len(pts) < 2 {
+		return first, last, false
+	}
+	return pts[0], pts[len(pts)-1], true
 }
 
 func hasText(t *testing.T, g *svgGroup, want string) {
@@ -523,7 +588,7 @@ func TestBadInput(t *testing.T) {
 		t.Errorf("Draw(nil) = %v, want render.ErrNoTree", err)
 	}
 	var buf bytes.Buffer
-	for _, dot := range []string{"", "not a graph", "digraph { a -> ", "\x00\xff"} {
+	for _, dot := range []string{"", "not a graph", "digraph { a -> ", "\x00\xff", "digraph { graph [layout=bogus] a }"} {
 		buf.Reset()
 		if err := r.Render(ctx, []byte(dot), SVG, &buf); err == nil {
 			t.Errorf("Render(%q): no error", dot)
@@ -576,6 +641,22 @@ func TestPNG(t *testing.T) {
 	}
 	if !bytes.HasPrefix(buf.Bytes(), []byte("\x89PNG\r\n\x1a\n")) {
 		t.Errorf("not a PNG: % x", buf.Bytes()[:min(8, buf.Len())])
+	}
+	// A chain of 300 decisions is far too wide for one raster: a clear
+	// error, nothing written, and the renderer goes on working.
+	var root *tree.Node
+	for i := 0; i < 300; i++ {
+		root = tree.Decision(fmt.Sprintf("Step %d", i),
+			tree.Choice("Go on", decimal.NewFromInt(1), root),
+			tree.Choice("Stop", decimal.Zero, nil))
+	}
+	buf.Reset()
+	err := renderer(t).Draw(context.Background(), solve(t, &tree.Model{Root: root}), Options{}, PNG, &buf)
+	if err == nil || !strings.Contains(err.Error(), "too big") || buf.Len() != 0 {
+		t.Errorf("a huge PNG: err %v, %d bytes written", err, buf.Len())
+	}
+	if err := renderer(t).Draw(context.Background(), solve(t, fixtures.Tie()), Options{}, PNG, io.Discard); err != nil {
+		t.Errorf("a PNG after a refused one: %v", err)
 	}
 }
 

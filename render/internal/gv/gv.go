@@ -5,7 +5,7 @@
 // (created in its package init) and its calls are not safe for concurrent
 // use: two goroutines calling it at once crash the process, even through
 // separate graphviz.Graphviz values. The lock below guards that process-wide
-// instance; it is the only package-level state, and it holds no data.
+// instance; it is the only package-level state.
 package gv
 
 import (
@@ -28,10 +28,20 @@ func init() {
 // mu guards go-graphviz's process-wide WebAssembly instance.
 var mu sync.Mutex
 
+// engine reports whether a graph may ask for a layout engine.
+func engine(name string) bool {
+	switch name {
+	case "dot", "neato", "fdp", "sfdp", "circo", "twopi", "osage", "patchwork", "nop", "nop1", "nop2":
+		return true
+	}
+	return false
+}
+
 // Context is one Graphviz context (a GVC_t). Its methods are safe for
 // concurrent use.
 type Context struct {
-	g *graphviz.Graphviz
+	g   *graphviz.Graphviz
+	png *pngEngine
 }
 
 // New makes a context.
@@ -39,11 +49,15 @@ func New(ctx context.Context) (c *Context, err error) {
 	mu.Lock()
 	defer mu.Unlock()
 	defer recoverInto(&err)
-	g, err := graphviz.New(ctx)
+	ps, png, err := plugins(ctx)
 	if err != nil {
 		return nil, err
 	}
-	return &Context{g: g}, nil
+	g, err := graphviz.NewWithPlugins(ctx, ps...)
+	if err != nil {
+		return nil, err
+	}
+	return &Context{g: g, png: png}, nil
 }
 
 // Close frees the context. go-graphviz reports from it the last message
@@ -100,9 +114,23 @@ func (c *Context) render(ctx context.Context, dot []byte, format string, dpi flo
 	if dpi > 0 {
 		graph.SetDPI(dpi)
 	}
-	c.g.SetLayout(graphviz.DOT)
+	// go-graphviz passes the layout engine to gvLayout itself, which does
+	// not look at the graph's own layout attribute: honour it here.
+	layout := graphviz.DOT
+	if l := graph.GetStr("layout"); l != "" {
+		if !engine(l) {
+			return fmt.Errorf("graphviz: unknown layout %q", l)
+		}
+		layout = graphviz.Layout(l)
+	}
+	c.g.SetLayout(layout)
+	c.png.err = nil
 	if err := c.g.Render(ctx, graph, graphviz.Format(format), buf); err != nil {
 		return fmt.Errorf("graphviz: %w", err)
+	}
+	if format == "png" && c.png.err != nil {
+		buf.Reset()
+		return c.png.err
 	}
 	// go-graphviz drops the status of the render call: a failure shows
 	// only as missing output.
