@@ -231,7 +231,7 @@ type Breakeven struct {
 // optimal choice at a decision changes. m is not changed: the search works
 // on a copy. m need not be resolved.
 func FindBreakeven(m *tree.Model, opts BreakevenOptions) (*Breakeven, error) {
-	c := cloneModel(m)
+	c := m.Clone()
 	if ds := c.Resolve(nil); ds.HasErrors() {
 		return nil, fmt.Errorf("eval: the model has errors: %w", ds.Err())
 	}
@@ -247,39 +247,6 @@ func FindBreakeven(m *tree.Model, opts BreakevenOptions) (*Breakeven, error) {
 		return nil, err
 	}
 	return s.run(opts)
-}
-
-// cloneModel copies everything Resolve writes to, so that the search can
-// resolve again and again without touching the caller's model.
-func cloneModel(m *tree.Model) *tree.Model {
-	c := *m
-	c.Params = make([]*tree.Param, len(m.Params))
-	for i, p := range m.Params {
-		cp := *p
-		c.Params[i] = &cp
-	}
-	c.Uncertainties = make([]*tree.Uncertainty, len(m.Uncertainties))
-	for i, u := range m.Uncertainties {
-		cu := *u
-		cu.States = make([]*tree.State, len(u.States))
-		for j, st := range u.States {
-			cs := *st
-			cu.States[j] = &cs
-		}
-		c.Uncertainties[i] = &cu
-	}
-	c.Tests = make([]*tree.Test, len(m.Tests))
-	for i, t := range m.Tests {
-		ct := *t
-		ct.Readings = make([]*tree.Reading, len(t.Readings))
-		for j, rd := range t.Readings {
-			cr := *rd
-			ct.Readings[j] = &cr
-		}
-		c.Tests[i] = &ct
-	}
-	c.Root = tree.Clone(m.Root)
-	return &c
 }
 
 // search is one breakeven search.

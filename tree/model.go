@@ -331,6 +331,41 @@ func Clone(n *Node) *Node {
 	return out
 }
 
+// Clone returns a copy of the model that shares nothing Resolve writes to
+// (parameters, states, readings, nodes and branches are copied; expressions,
+// which are never changed in place, are shared), so an analysis can resolve
+// the copy again and again without touching the original.
+func (m *Model) Clone() *Model {
+	c := *m
+	c.Params = make([]*Param, len(m.Params))
+	for i, p := range m.Params {
+		cp := *p
+		c.Params[i] = &cp
+	}
+	c.Uncertainties = make([]*Uncertainty, len(m.Uncertainties))
+	for i, u := range m.Uncertainties {
+		cu := *u
+		cu.States = make([]*State, len(u.States))
+		for j, st := range u.States {
+			cs := *st
+			cu.States[j] = &cs
+		}
+		c.Uncertainties[i] = &cu
+	}
+	c.Tests = make([]*Test, len(m.Tests))
+	for i, t := range m.Tests {
+		ct := *t
+		ct.Readings = make([]*Reading, len(t.Readings))
+		for j, rd := range t.Readings {
+			cr := *rd
+			ct.Readings[j] = &cr
+		}
+		c.Tests[i] = &ct
+	}
+	c.Root = Clone(m.Root)
+	return &c
+}
+
 // Decision makes a decision node (builder API).
 func Decision(label string, branches ...*Branch) *Node {
 	return &Node{Kind: KindDecision, Label: label, Branches: branches}
