@@ -22,8 +22,10 @@ import (
 // probability or cash figure), and checked by solving the tree there: equal
 // values make the switch exact. Otherwise the crossing is bracketed and
 // narrowed (secant steps, bisection as a safeguard) to tree.DivisionScale
-// decimal places and marked approximate. A switch and back again inside
-// one grid interval is not seen; Grid sets how fine the grid is.
+// decimal places and marked approximate. Before that, every grid interval
+// across which some option's value is not a straight line is halved until
+// it is (see refine), so a switch and back again inside one interval is
+// found too; Grid sets how fine the first grid is.
 
 // VaryKind says what kind of input a breakeven search varies.
 type VaryKind uint8
@@ -734,11 +736,15 @@ func (s *search) run(opts BreakevenOptions) (*Breakeven, error) {
 		}
 		grid = append(grid, sm)
 	}
-	for i := 0; i+1 < len(grid); i++ {
-		if grid[i].best == grid[i+1].best {
+	cells, err := s.refine(grid)
+	if err != nil {
+		return nil, err
+	}
+	for _, c := range cells {
+		if c.a.best == c.b.best {
 			continue
 		}
-		sw, err := s.between(grid[i], grid[i+1])
+		sw, err := s.between(c.a, c.b)
 		if err != nil {
 			return nil, err
 		}
@@ -754,6 +760,87 @@ func (s *search) run(opts BreakevenOptions) (*Breakeven, error) {
 	seg.To = be.High
 	be.Segments = append(be.Segments, seg)
 	return be, nil
+}
+
+// Refinement limits: how often a grid interval may be halved where the
+// options' values bend, and how many extra tree solves that may cost in all.
+const (
+	maxRefineDepth   = 24
+	maxRefineSamples = 4096
+)
+
+// bendTolerance is how far from a straight line a value may sit and still
+// count as straight: posteriors rounded at DivisionScale leave noise far
+// below it, while any real bend in money is far above it.
+var bendTolerance = decimal.New(1, -30)
+
+type cell struct {
+	a, b  *sample
+	depth int
+}
+
+// refine splits the grid intervals until every option's value is a
+// straight line across each of them (checked at the midpoint), so that a
+// switch and a switch back inside one interval cannot hide: where every
+// option is linear across an interval, an option best at both ends is best
+// throughout. The intervals come back in order.
+func (s *search) refine(grid []*sample) ([]cell, error) {
+	var out []cell
+	work := make([]cell, 0, len(grid))
+	for i := len(grid) - 2; i >= 0; i-- {
+		work = append(work, cell{grid[i], grid[i+1], 0})
+	}
+	extra := 0
+	for len(work) > 0 {
+		c := work[len(work)-1]
+		work = work[:len(work)-1]
+		if c.depth >= maxRefineDepth {
+			// A bend inside an interval this small (the range / 64 / 2^24)
+			// is a kink of some inner decision; nothing fits inside it.
+			out = append(out, c)
+			continue
+		}
+		if extra >= maxRefineSamples {
+			s.noteRefineLimit()
+			out = append(out, c)
+			continue
+		}
+		m, err := s.sample(c.a.x.Add(c.b.x).Mul(half).Round(tree.DivisionScale))
+		if err != nil {
+			return nil, err
+		}
+		extra++
+		if straight(c.a, m, c.b) {
+			out = append(out, c)
+			continue
+		}
+		work = append(work, cell{m, c.b, c.depth + 1}, cell{c.a, m, c.depth + 1})
+	}
+	return out, nil
+}
+
+// straight reports whether every option's value at m is the mean of its
+// values at a and b.
+func straight(a, m, b *sample) bool {
+	for i := range m.values {
+		bend := a.values[i].Add(b.values[i]).Sub(m.values[i].Mul(decimal.NewFromInt(2))).Abs()
+		if bend.GreaterThan(bendTolerance) {
+			return false
+		}
+	}
+	return true
+}
+
+// noteRefineLimit records, once, that the refinement stopped before every
+// interval was straight.
+func (s *search) noteRefineLimit() {
+	const note = "the values bend too often to check every interval; a switch and back within a very small interval may be missed"
+	for _, n := range s.be.Notes {
+		if n == note {
+			return
+		}
+	}
+	s.be.Notes = append(s.be.Notes, note)
 }
 
 // between finds the switches between two samples whose best options

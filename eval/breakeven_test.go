@@ -399,3 +399,29 @@ func TestBreakevenRandomLines(t *testing.T) {
 		}
 	}
 }
+
+// A switch and a switch back inside one grid interval: option A is an inner
+// decision worth max(x, 100.8 − x), at least 50.4, so the sure 50.5 of B is
+// best only for x in (50.3, 50.5), a sliver of one of the 64 grid
+// intervals over 0..100. Worked by hand.
+func TestBreakevenSwitchAndBackInOneInterval(t *testing.T) {
+	x := &tree.Name{Name: "x"}
+	m := &tree.Model{
+		Params: []*tree.Param{{Name: "x", Expr: tree.Num(d("10")), Low: tree.Num(d("0")), High: tree.Num(d("100"))}},
+		Root: tree.Decision("Pick",
+			&tree.Branch{Label: "A", Node: tree.Decision("Inner",
+				&tree.Branch{Label: "up", Cash: x},
+				&tree.Branch{Label: "down", Cash: &tree.Binary{Op: '-', X: tree.Num(d("100.8")), Y: x}})},
+			tree.Choice("B", d("50.5"), nil)),
+	}
+	be := breakeven(t, m, "x", "", "", "")
+	if len(be.Switches) != 2 {
+		t.Fatalf("switches %+v, want two (50.3 and 50.5)", be.Switches)
+	}
+	for i, want := range []string{"50.3", "50.5"} {
+		sw := be.Switches[i]
+		if !sw.Exact || !sw.At.Equal(d(want)) {
+			t.Errorf("switch %d at %s (exact %v), want exactly %s", i, sw.At, sw.Exact, want)
+		}
+	}
+}
