@@ -144,6 +144,9 @@ func (sol *Solution) Value() decimal.Decimal { return sol.Root.Value() }
 // objective's terms; the cash on the branch into the node is not included.
 func (s *Solved) Value() decimal.Decimal { return s.sol.dec(s.v) }
 
+// Solution is the solved tree this node belongs to.
+func (s *Solved) Solution() *Solution { return s.sol }
+
 // Index is the node's position in Solution.Nodes.
 func (s *Solved) Index() int { return int(s.self) }
 
@@ -273,6 +276,24 @@ func (s *Solved) OnPolicy() bool {
 		}
 	}
 	return true
+}
+
+// Reachable reports, for every node in pre-order, whether the optimal policy
+// can reach it: OnPolicy for the whole tree in one forward sweep (OnPolicy
+// walks up to the root, so calling it on every node of a deep tree costs
+// the square of its depth).
+func (sol *Solution) Reachable() []bool {
+	on := make([]bool, len(sol.nodes))
+	for i := range sol.nodes {
+		s := &sol.nodes[i]
+		if s.parent < 0 {
+			on[i] = true
+			continue
+		}
+		p := &sol.nodes[s.parent]
+		on[i] = on[s.parent] && (p.Node.Kind != tree.KindDecision || p.best == s.via)
+	}
+	return on
 }
 
 // Path returns the branches from the root to this node.

@@ -423,9 +423,13 @@ type jsonWriter struct {
 	indent int
 }
 
+// maxJSONIndent caps the indentation, so that a very deep tree is written
+// in linear space (a 100 000-level chain would otherwise need gigabytes).
+const maxJSONIndent = 32
+
 func (j *jsonWriter) nl() {
 	j.w.WriteByte('\n')
-	for i := 0; i < j.indent; i++ {
+	for i := 0; i < min(j.indent, maxJSONIndent); i++ {
 		j.w.WriteString("  ")
 	}
 }

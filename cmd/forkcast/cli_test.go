@@ -188,3 +188,35 @@ func TestWarningsAreCapped(t *testing.T) {
 		t.Errorf("check --warnings -1 showed %d of 7 warnings:\n%s", n, errs)
 	}
 }
+
+// A deep chain prints in space linear in its depth: indentation is capped
+// in the text tree and in the JSON, and the policy list names at most a few
+// conditions per decision. (Probabilities 0 and 1 keep the exact values
+// short: with 0.5 at every level they would rightly carry thousands of
+// digits.)
+func TestDeepChainOutputIsLinear(t *testing.T) {
+	chain := func(depth int) string {
+		var b strings.Builder
+		b.WriteString(`{"root":`)
+		for i := 0; i < depth; i++ {
+			b.WriteString(`{"type":"decision","label":"d","branches":[{"label":"stop"},{"label":"go","cash":1,"node":{"type":"chance","label":"c","branches":[{"label":"x","probability":0},{"label":"y","probability":1,"node":`)
+		}
+		b.WriteString(`{"type":"end"}` + strings.Repeat("}]}}]}", depth) + "}")
+		return writeFile(t, "deep.json", b.String())
+	}
+	short, long := chain(5_000), chain(20_000)
+	for _, flags := range [][]string{nil, {"--json"}} {
+		size := func(p string) int {
+			code, out, errs := forkcast(t, "", append(append([]string{"solve"}, flags...), p)...)
+			if code != 0 {
+				t.Fatalf("exit %d: %s", code, errs[:min(len(errs), 500)])
+			}
+			return len(out)
+		}
+		// Four times the depth: about four times the output if it is
+		// linear, sixteen if it is quadratic.
+		if r := float64(size(long)) / float64(size(short)); r > 5 {
+			t.Errorf("solve %v: output grows %.1f× for 4× the depth", flags, r)
+		}
+	}
+}

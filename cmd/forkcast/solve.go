@@ -4,6 +4,7 @@ import (
 	"bufio"
 	"fmt"
 	"io"
+	"strconv"
 	"strings"
 
 	"github.com/forkcast/forkcast/eval"
@@ -26,7 +27,8 @@ func solveCommand() *cli.Command {
 			"the expected value of the whole tree; the recommended policy, decision by\n" +
 			"decision, with the expected value of every option and the margin of the best\n" +
 			"over the runner-up; and the tree as indented text with each node's expected\n" +
-			"value (* marks the option the policy takes, x one it rejects).\n\n" +
+			"value (* marks the option the policy takes, = one tied with it, x one it\n" +
+			"rejects).\n\n" +
 			"Money is rounded to the currency's minor unit for display; --json carries the\n" +
 			"full exact values. An expected value is a long-run average over many such\n" +
 			"decisions, not the outcome of this one: look at the spread too.",
@@ -139,14 +141,16 @@ func printSolution(w io.Writer, sol *eval.Solution, withTree bool) {
 func printPolicy(p printer, sol *eval.Solution) {
 	w := p.w
 	n := 0
+	reach := sol.Reachable()
+	chanceAbove := nearestChance(sol)
 	for i := range sol.Nodes() {
 		s := &sol.Nodes()[i]
-		if s.Node.Kind != tree.KindDecision || !s.OnPolicy() {
+		if s.Node.Kind != tree.KindDecision || !reach[i] {
 			continue
 		}
 		n++
 		fmt.Fprintf(w, "  %d. %s", n, quoted(s.Node.Display()))
-		if cond := conditions(s); cond != "" {
+		if cond := conditions(sol, chanceAbove, s); cond != "" {
 			fmt.Fprintf(w, "  (if %s)", cond)
 		}
 		fmt.Fprintln(w)
@@ -179,13 +183,45 @@ func printPolicy(p printer, sol *eval.Solution) {
 	}
 }
 
-// conditions is the chance outcomes on the way to s ("Integration = Rework").
-func conditions(s *eval.Solved) string {
-	var parts []string
-	for c := s; c.Parent() != nil; c = c.Parent() {
-		if p := c.Parent(); p.Node.Kind == tree.KindChance {
-			parts = append(parts, fmt.Sprintf("%s = %s", p.Node.Display(), quoted(p.Node.Branches[c.Via()].Label)))
+// chanceLink is, for one node, the nearest chance node above it (node -1
+// when there is none) and the index of that node's branch on the way down.
+type chanceLink struct{ node, via int }
+
+// nearestChance gives every node's chanceLink in pre-order, in one forward
+// sweep, so that a decision's conditions are found without walking up
+// through the decisions between.
+func nearestChance(sol *eval.Solution) []chanceLink {
+	nodes := sol.Nodes()
+	up := make([]chanceLink, len(nodes))
+	for i := range nodes {
+		up[i] = chanceLink{-1, -1}
+		if par := nodes[i].Parent(); par != nil {
+			if par.Node.Kind == tree.KindChance {
+				up[i] = chanceLink{par.Index(), nodes[i].Via()}
+			} else {
+				up[i] = up[par.Index()]
+			}
 		}
+	}
+	return up
+}
+
+// maxConditions is how many chance outcomes a decision's "(if ...)" names,
+// the nearest ones; more would make deep trees print the square of their
+// depth.
+const maxConditions = 4
+
+// conditions is the chance outcomes on the way to s ("Integration = Rework").
+func conditions(sol *eval.Solution, up []chanceLink, s *eval.Solved) string {
+	var parts []string
+	nodes := sol.Nodes()
+	for l := up[s.Index()]; l.node >= 0; l = up[l.node] {
+		if len(parts) == maxConditions {
+			parts = append(parts, "…")
+			break
+		}
+		ch := &nodes[l.node]
+		parts = append(parts, fmt.Sprintf("%s = %s", ch.Node.Display(), quoted(ch.Node.Branches[l.via].Label)))
 	}
 	for i, j := 0, len(parts)-1; i < j; i, j = i+1, j-1 {
 		parts[i], parts[j] = parts[j], parts[i]
@@ -193,7 +229,7 @@ func conditions(s *eval.Solved) string {
 	return strings.Join(parts, ", ")
 }
 
-func quoted(s string) string { return "\"" + s + "\"" }
+func quoted(s string) string { return strconv.Quote(s) }
 
 func quotedList(s *eval.Solved, idx []int) string {
 	q := make([]string, len(idx))
@@ -208,28 +244,32 @@ func printTree(p printer, sol *eval.Solution) {
 	w := p.w
 	fmt.Fprintf(w, "%s  %s\n", describe(sol.Root.Node), p.money(sol.Root.Value())+choiceNote(sol.Root))
 	type item struct {
-		s      *eval.Solved
-		prefix string
+		s     *eval.Solved
+		depth int
 	}
 	var stack []item
-	push := func(s *eval.Solved, prefix string) {
+	push := func(s *eval.Solved, depth int) {
 		kids := s.Kids()
 		for j := len(kids) - 1; j >= 0; j-- {
-			stack = append(stack, item{kids[j], prefix})
+			stack = append(stack, item{kids[j], depth})
 		}
 	}
-	push(sol.Root, "  ")
+	push(sol.Root, 1)
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
+		prefix := treeIndent(it.depth)
 		s := it.s
 		parent := s.Parent()
 		b := parent.Node.Branches[s.Via()]
 		mark := ""
 		if parent.Node.Kind == tree.KindDecision {
-			if parent.IsBest(s.Via()) {
+			switch {
+			case parent.Chosen() == s.Via():
 				mark = "* "
-			} else {
+			case parent.IsBest(s.Via()):
+				mark = "= " // tied with the chosen one
+			default:
 				mark = "x "
 			}
 		}
@@ -243,13 +283,26 @@ func printTree(p printer, sol *eval.Solution) {
 		}
 		line := strings.Join(parts, "  ")
 		if s.Node.Kind == tree.KindEnd {
-			fmt.Fprintf(w, "%s%s  -> %s\n", it.prefix, line, p.money(s.Value().Add(b.C)))
+			fmt.Fprintf(w, "%s%s  -> %s\n", prefix, line, p.money(s.Value().Add(b.C)))
 			continue
 		}
-		fmt.Fprintf(w, "%s%s\n", it.prefix, line)
-		fmt.Fprintf(w, "%s  %s  %s%s\n", it.prefix, describe(s.Node), p.money(s.Value()), choiceNote(s))
-		push(s, it.prefix+"    ")
+		fmt.Fprintf(w, "%s%s\n", prefix, line)
+		fmt.Fprintf(w, "%s  %s  %s%s\n", prefix, describe(s.Node), p.money(s.Value()), choiceNote(s))
+		push(s, it.depth+1)
 	}
+}
+
+// maxTreeIndent is the deepest level the text tree indents; deeper lines
+// say their level instead, so a very deep tree prints in linear space.
+const maxTreeIndent = 20
+
+// treeIndent is the prefix of a branch line at depth d (the root's
+// branches are at depth 1).
+func treeIndent(d int) string {
+	if d <= maxTreeIndent {
+		return "  " + strings.Repeat("    ", d-1)
+	}
+	return "  " + strings.Repeat("    ", maxTreeIndent-1) + fmt.Sprintf("[level %d] ", d)
 }
 
 // choiceNote adds what a decision takes, or a test's cost.

@@ -193,7 +193,7 @@ func printTestValue(w io.Writer, m *tree.Model, tv *eval.TestValue, words voiWor
 	for _, s := range tv.Sites {
 		d := s.Decision
 		fmt.Fprintf(w, "  At decision %s, branch %s (the alternative: %s)", quoted(d.Node.Display()), quoted(d.Node.Branches[s.Branch].Label), quoted(d.Node.Branches[s.Alternative].Label))
-		if cond := conditions(d); cond != "" {
+		if cond := conditions(d.Solution(), nearestChance(d.Solution()), d); cond != "" {
 			fmt.Fprintf(w, ", if %s", cond)
 		}
 		if !s.OnPolicy {
