@@ -153,6 +153,9 @@ func (ds Diagnostics) Error() string {
 	return fmt.Sprintf("%s (and %d more)", ds[0].Error(), len(ds)-1)
 }
 
+// snippetWidth is the most of a source line a diagnostic shows.
+const snippetWidth = 100
+
 // Print writes every diagnostic as "file:line:col: message", followed by
 // the source line, a caret under the column and the hint, when src holds the
 // model's text. src may be nil (a model read from JSON or built in Go).
@@ -167,13 +170,25 @@ func (ds Diagnostics) Print(w io.Writer, file string, src []byte) {
 		}
 		fmt.Fprintln(w, d.Error())
 		if d.Pos.IsValid() && d.Pos.Line <= len(lines) {
-			line := strings.TrimRight(string(lines[d.Pos.Line-1]), "\r")
-			fmt.Fprintf(w, "    %s\n", strings.ReplaceAll(line, "\t", " "))
-			n := d.Len
-			if n < 1 {
-				n = 1
+			line := []rune(strings.ReplaceAll(strings.TrimRight(string(lines[d.Pos.Line-1]), "\r"), "\t", " "))
+			col := max(d.Pos.Col-1, 0)
+			n := min(max(d.Len, 1), snippetWidth/2)
+			// A long line (minified JSON) is cut to a window around the
+			// column, marked with an ellipsis at each cut.
+			from, to := 0, len(line)
+			if len(line) > snippetWidth {
+				from = max(0, min(col-snippetWidth/2, len(line)-snippetWidth))
+				to = min(len(line), from+snippetWidth)
 			}
-			fmt.Fprintf(w, "    %s%s\n", strings.Repeat(" ", max(d.Pos.Col-1, 0)), strings.Repeat("^", n))
+			pre, post := "", ""
+			if from > 0 {
+				pre = "…"
+			}
+			if to < len(line) {
+				post = "…"
+			}
+			fmt.Fprintf(w, "    %s%s%s\n", pre, string(line[from:to]), post)
+			fmt.Fprintf(w, "    %s%s\n", strings.Repeat(" ", len([]rune(pre))+max(col-from, 0)), strings.Repeat("^", n))
 		}
 		if d.Hint != "" {
 			fmt.Fprintf(w, "    hint: %s\n", d.Hint)

@@ -228,6 +228,9 @@ func ReadJSON(src []byte, limit int) (*Model, Diagnostics) {
 	if limit <= 0 {
 		limit = DefaultNodeLimit
 	}
+	// A byte-order mark is accepted, as in the text language; positions
+	// still count from the start of the first line.
+	src = bytes.TrimPrefix(src, []byte("\ufeff"))
 	r := &jsonReader{src: src, limit: limit, cur: cursor{line: 1, col: 1}}
 	if len(bytes.TrimSpace(src)) == 0 {
 		r.ds.Add(Pos{Line: 1, Col: 1}, "a model is an object such as {\"root\": {\"type\": \"decision\", ...}}", "the JSON input is empty")

@@ -158,3 +158,11 @@ func FuzzReadJSON(f *testing.F) {
 		}
 	})
 }
+
+func TestReadJSONByteOrderMark(t *testing.T) {
+	m := load(t, "\ufeff"+oilJSON)
+	sol, err := eval.Solve(m)
+	if err != nil || !sol.Value().Equal(decimal.NewFromInt(100)) {
+		t.Fatalf("with a byte-order mark: %v %v", sol, err)
+	}
+}

@@ -128,6 +128,7 @@ func TestExitCodes(t *testing.T) {
 		{"unknown flag", []string{"solve", "--colour", bad}, 2, "flag provided but not defined: -colour"},
 		{"unknown example", []string{"solve", "example:nothing"}, 2, "no example \"nothing\""},
 		{"unknown command", []string{"sovle"}, 2, "unknown command \"sovle\""},
+		{"flag without its value", []string{"solve", bad, "--max-nodes"}, 2, "flag --max-nodes needs a value"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -49,7 +49,7 @@ func readSource(c *cli.Context, name string) ([]byte, bool, error) {
 			return nil, false, modelErr("reading standard input: %v", err)
 		}
 		// Standard input has no extension: JSON starts with a brace.
-		trimmed := strings.TrimLeft(string(src[:min(len(src), 64)]), " \t\r\n")
+		trimmed := strings.TrimLeft(strings.TrimPrefix(string(src[:min(len(src), 64)]), "\ufeff"), " \t\r\n")
 		return src, strings.HasPrefix(trimmed, "{"), nil
 	case strings.HasPrefix(name, "example:"):
 		ex, ok := examples.Get(strings.TrimPrefix(name, "example:"))

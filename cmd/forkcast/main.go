@@ -72,7 +72,12 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	for _, cmd := range app.Commands {
 		cmd.OnUsageError = app.OnUsageError
 	}
-	err := app.Run(reorder(args, app.Commands))
+	args, err := reorder(args, app.Commands)
+	if err != nil {
+		fmt.Fprintf(stderr, "forkcast: %v\n(run with --help to see how to use it)\n", err)
+		return exitUsage
+	}
+	err = app.Run(args)
 	if err == nil {
 		if len(args) > 1 && app.Command(args[1]) == nil && !strings.HasPrefix(args[1], "-") && args[1] != "help" && args[1] != "h" {
 			return exitUsage
@@ -103,9 +108,9 @@ func modelErr(format string, args ...any) error {
 // reorder moves a command's flags ahead of its arguments, so that
 // `solve m.fork --json` works like `solve --json m.fork` (the flag package
 // stops at the first argument). Everything after "--" stays as it is.
-func reorder(args []string, cmds []*cli.Command) []string {
+func reorder(args []string, cmds []*cli.Command) ([]string, error) {
 	if len(args) < 3 {
-		return args
+		return args, nil
 	}
 	var cmd *cli.Command
 	for _, c := range cmds {
@@ -114,7 +119,7 @@ func reorder(args []string, cmds []*cli.Command) []string {
 		}
 	}
 	if cmd == nil {
-		return args
+		return args, nil
 	}
 	takesValue := map[string]bool{}
 	for _, f := range cmd.Flags {
@@ -134,7 +139,12 @@ func reorder(args []string, cmds []*cli.Command) []string {
 		if len(a) > 1 && a[0] == '-' {
 			flags = append(flags, a)
 			name := strings.TrimLeft(a, "-")
-			if !strings.Contains(name, "=") && takesValue[name] && i+1 < len(rest) {
+			if !strings.Contains(name, "=") && takesValue[name] {
+				if i+1 == len(rest) {
+					// Left as the last word, the flag would take the "--"
+					// added below as its value.
+					return nil, fmt.Errorf("flag %s needs a value", a)
+				}
 				i++
 				flags = append(flags, rest[i])
 			}
@@ -147,5 +157,5 @@ func reorder(args []string, cmds []*cli.Command) []string {
 		out = append(out, "--")
 		out = append(out, pos...)
 	}
-	return out
+	return out, nil
 }
