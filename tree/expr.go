@@ -140,7 +140,11 @@ func Eval(e Expr, lookup func(name string) (Value, bool)) (Value, error) {
 			return Value{x.D.Mul(y.D), exact}, nil
 		case '/':
 			if y.D.IsZero() {
-				return Value{}, &EvalError{Pos: e.Y.Pos(), Msg: "division by zero", Hint: "the divisor " + e.Y.String() + " is 0"}
+				hint := "check the figures that make up the divisor"
+				if _, literal := e.Y.(*Number); !literal {
+					hint = "the divisor " + e.Y.String() + " is 0"
+				}
+				return Value{}, &EvalError{Pos: e.Y.Pos(), Msg: "division by zero", Hint: hint}
 			}
 			return Div(x.D, y.D, exact), nil
 		}

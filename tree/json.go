@@ -398,9 +398,9 @@ type JSONOptions struct {
 	Best func(*Node) []string
 	// Probabilities writes the resolved probability on every chance branch,
 	// including those under uncertainty and test nodes (revised by Bayes'
-	// rule where a test was read). Such output is for reading by people and
-	// programs; ReadJSON refuses it, as those probabilities come from the
-	// declarations.
+	// rule where a test was read). Resolve accepts such a probability when
+	// it equals the one the declarations give there, so the output reads
+	// back.
 	Probabilities bool
 }
 

@@ -559,7 +559,7 @@ func (r *resolver) matchLabels(n *Node, what string, labels []string, set func(b
 	}
 	seen := make([]bool, len(labels))
 	for _, b := range n.Branches {
-		if b.Prob != nil || b.Rest {
+		if b.Rest {
 			r.ds.Add(b.Pos, "remove it: the probability comes from the declaration", "branch %q under %s has a probability of its own", b.Label, what)
 		}
 		i, ok := index[b.Label]
@@ -572,6 +572,14 @@ func (r *resolver) matchLabels(n *Node, what string, labels []string, set func(b
 		}
 		seen[i] = true
 		set(b, i)
+		// A probability written here must be the one the declaration gives
+		// (solved JSON carries them, revised by Bayes' rule, to be read
+		// back); any other is a mistake, never silently replaced.
+		if b.Prob != nil {
+			if v, good := r.eval(b.Prob); good && !v.D.Equal(b.P) {
+				r.ds.Add(b.Prob.Pos(), "remove it: the probability comes from the declaration", "branch %q under %s has probability %s of its own, but the declaration gives %s here", b.Label, what, v.D, b.P)
+			}
+		}
 	}
 	var missing []string
 	for i, s := range seen {

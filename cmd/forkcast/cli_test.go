@@ -120,7 +120,7 @@ func TestExitCodes(t *testing.T) {
 		stderr string
 	}{
 		{"model error", []string{"solve", bad}, 1, "bad.fork:2:13: unknown name \"nope\""},
-		{"check error", []string{"check", bad}, 1, "1 error; nothing was solved"},
+		{"check error", []string{"check", bad}, 1, "bad.fork: 1 error\n"},
 		{"check warning", []string{"check", warn}, 0, "warn.fork:1:5: warning: \"unused\" is defined but never used"},
 		{"no file", []string{"solve"}, 2, "solve needs a model FILE"},
 		{"two files", []string{"solve", bad, warn}, 2, "solve takes one FILE"},
@@ -141,10 +141,12 @@ func TestExitCodes(t *testing.T) {
 }
 
 func TestHelpTeaches(t *testing.T) {
+	// Every command's help shows at least one worked example (an indented
+	// command line under USAGE) and explains itself under DESCRIPTION.
 	for _, cmd := range commands() {
 		code, out, _ := forkcast(t, "", cmd.Name, "--help")
-		if code != 0 || !strings.Contains(out, "forkcast "+cmd.Name) {
-			t.Errorf("%s --help: exit %d, no example in:\n%s", cmd.Name, code, out)
+		if code != 0 || !strings.Contains(out, "\n      forkcast "+cmd.Name+" ") || !strings.Contains(out, "DESCRIPTION:") {
+			t.Errorf("%s --help: exit %d, no example or description in:\n%s", cmd.Name, code, out)
 		}
 	}
 }
@@ -219,5 +221,23 @@ func TestDeepChainOutputIsLinear(t *testing.T) {
 		if r := float64(size(long)) / float64(size(short)); r > 5 {
 			t.Errorf("solve %v: output grows %.1f× for 4× the depth", flags, r)
 		}
+	}
+}
+
+// Solved JSON of a model with a test carries the Bayes-revised
+// probabilities under the readings, and reads back to the same values.
+func TestSolvedJSONWithPosteriorsReadsBack(t *testing.T) {
+	_, first, _ := forkcast(t, "", "solve", "--json", "example:release")
+	if !strings.Contains(first, `"uncertainty": "defect"`) || !strings.Contains(first, `"probability": 0.7377`) {
+		t.Fatalf("no revised probabilities under the readings:\n%s", first)
+	}
+	code, second, errs := forkcast(t, first, "solve", "--json", "-")
+	if code != 0 || second != first {
+		t.Fatalf("exit %d, %s; the solved JSON does not read back to itself", code, errs)
+	}
+	wrong := strings.Replace(first, `"probability": 0.7377`, `"probability": 0.5`, 1)
+	code, _, errs = forkcast(t, wrong, "solve", "-")
+	if code != 1 || !strings.Contains(errs, "of its own, but the declaration gives 0.7377") {
+		t.Fatalf("exit %d; a changed probability under a named node must be refused:\n%s", code, errs)
 	}
 }

@@ -99,6 +99,9 @@ func loadModel(c *cli.Context) (*loaded, error) {
 	if ds.HasErrors() {
 		printLimited(c, ds, shown, src, solveWarningLimit, "fix the errors, then run `forkcast check` to see them all")
 		n := len(ds.Errors())
+		if c.Command.Name == "check" {
+			return nil, modelErr("%s: %d error%s", shown, n, plural(n))
+		}
 		return nil, modelErr("%s: %d error%s; nothing was solved", shown, n, plural(n))
 	}
 	return &loaded{Model: m, Name: shown, Src: src, Diags: ds}, nil

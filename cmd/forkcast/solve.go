@@ -75,6 +75,7 @@ func writeSolvedJSON(w io.Writer, sol *eval.Solution) error {
 			}
 			return labels
 		},
+		Probabilities: true,
 	})
 }
 
