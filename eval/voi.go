@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
@@ -1262,7 +1263,8 @@ func ValueOfInformation(sol *Solution, opts VOIOptions) (*Information, error) {
 	total, err := e.total(opts)
 	switch {
 	case errors.Is(err, ErrTooMuchWork):
-		info.TotalNote = "the total EVPI is not computed: even the named uncertainties alone are over the work budget (" + err.Error() + ")"
+		info.TotalNote = "the total EVPI is not computed: even the named uncertainties alone are over the work budget (" +
+			strings.TrimPrefix(strings.TrimPrefix(err.Error(), ErrTooMuchWork.Error()), ": ") + "); raise --max-scenarios to allow more"
 	case err != nil:
 		return nil, err
 	default:

@@ -99,6 +99,7 @@ type EvalError struct {
 	Pos  Pos
 	Msg  string
 	Hint string
+	Name string // the unknown name, when that is the problem
 }
 
 func (e *EvalError) Error() string { return e.Pos.String() + ": " + e.Msg }
@@ -111,7 +112,7 @@ func Eval(e Expr, lookup func(name string) (Value, bool)) (Value, error) {
 	case *Name:
 		v, ok := lookup(e.Name)
 		if !ok {
-			return Value{}, &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown name %q", e.Name),
+			return Value{}, &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown name %q", e.Name), Name: e.Name,
 				Hint: "define it with `let " + e.Name + " = ...` above this line"}
 		}
 		return v, nil

@@ -75,6 +75,16 @@ func (r *resolver) eval(e Expr) (Value, bool) {
 	}
 	if err != nil {
 		if ee, isEval := err.(*EvalError); isEval {
+			// The evaluation stopped at the first problem: every name in
+			// the expression counts as used, or the others would be
+			// reported as unused too.
+			Names(e, func(n *Name) { r.used[n.Name] = true })
+			if p := r.m.Param(ee.Name); ee.Name != "" && p != nil {
+				// Defined, but further down: say where, and do not also
+				// call it unused.
+				ee.Hint = fmt.Sprintf("%q is defined at %s, below; move that `let` above this line", ee.Name, p.Pos)
+				r.used[ee.Name] = true
+			}
 			r.ds = append(r.ds, Diagnostic{Severity: Error, Pos: ee.Pos, Summary: ee.Msg, Hint: ee.Hint})
 		} else {
 			r.ds.Add(e.Pos(), "", "%v", err)
