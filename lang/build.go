@@ -192,6 +192,12 @@ func (b *builder) add(l *srcLine) {
 	}
 	f := b.place(l, parent)
 	f.indent, f.childIndent, f.line = w, -1, l.num
+	if l.tab {
+		// Its width is unknowable (a tab counts one), so the lines that
+		// seem to nest under it may not: check no structure there, the
+		// tab itself is reported.
+		f.silent = true
+	}
 	if parent != nil {
 		parent.lastChild, parent.lastLine = f, l.num
 		if parent.silent {
