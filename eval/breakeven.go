@@ -552,6 +552,17 @@ func quoteAll(xs []string) string {
 	return strings.Join(q, ", ")
 }
 
+// pathHas reports whether a branch labelled via lies on the path from the
+// root to s.
+func pathHas(s *Solved, via string) bool {
+	for c := s; c.Parent() != nil; c = c.Parent() {
+		if c.Parent().Node.Branches[c.Via()].Label == via {
+			return true
+		}
+	}
+	return false
+}
+
 // decision picks the decision to watch, on the solution at the current
 // value.
 func (s *search) decision(base *Solution, at string) error {
@@ -563,6 +574,22 @@ func (s *search) decision(base *Solution, at string) error {
 		for i := range nodes {
 			if n := nodes[i].Node; n.Kind == tree.KindDecision && n.Label == at {
 				all = append(all, i)
+			}
+		}
+		if len(all) == 0 {
+			// BRANCH/DECISION: the decision with that label reached
+			// through a branch with that label, to tell apart decisions
+			// that share a label (a subtree used in several places).
+			if i := strings.LastIndex(at, "/"); i > 0 {
+				via, errV := unquotePart(at[:i])
+				label, errL := unquotePart(at[i+1:])
+				if errV == nil && errL == nil {
+					for j := range nodes {
+						if n := nodes[j].Node; n.Kind == tree.KindDecision && n.Label == label && pathHas(&nodes[j], via) {
+							all = append(all, j)
+						}
+					}
+				}
 			}
 		}
 		if len(all) == 0 {

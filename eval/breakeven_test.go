@@ -425,3 +425,17 @@ func TestBreakevenSwitchAndBackInOneInterval(t *testing.T) {
 		}
 	}
 }
+
+// Hillier & Lieberman, Introduction to Operations Research, decision
+// analysis chapter: drill and sell break even at prior P(oil) = 0.2375.
+// With the seismic survey in the tree, "Drill or sell" stands three times;
+// --at "No survey/Drill or sell" picks the one reached without the survey.
+func TestBreakevenAtPath(t *testing.T) {
+	be := breakeven(t, oilModel("0.25", true), "p_oil", "0", "1", "No survey/Drill or sell")
+	if len(be.Switches) != 1 || !be.Switches[0].At.Equal(d("0.2375")) || !be.Switches[0].Exact {
+		t.Fatalf("switches %+v, want exactly one, at 0.2375", be.Switches)
+	}
+	if be.Decision.Label != "Drill or sell" || len(be.Path) != 1 || be.Path[0] != "No survey" {
+		t.Errorf("watching %q after %v", be.Decision.Label, be.Path)
+	}
+}

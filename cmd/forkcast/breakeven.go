@@ -42,8 +42,11 @@ func breakevenCommand() *cli.Command {
 			"When a probability moves, the sibling marked `rest` takes up the difference\n" +
 			"(without one, the others are rescaled in proportion); the range is cut where a\n" +
 			"sibling would leave [0, 1], and the output says so.\n\n" +
-			"--at names the decision to watch (default: the root, or the first decision on\n" +
-			"the best path when the root is not a decision).\n\n" +
+			"--at names the decision to watch by its label (default: the root, or the first\n" +
+			"decision on the best path when the root is not a decision). When several\n" +
+			"decisions share the label (a subtree used in several places), the one the\n" +
+			"policy reaches is watched; BRANCH/DECISION picks the one reached through a\n" +
+			"branch of that label, e.g. --at 'No survey/Drill or sell'.\n\n" +
 			"A switch is exact when the two options' values are equal there; otherwise it is\n" +
 			"found to " + fmt.Sprint(tree.DivisionScale) + " decimal places and marked approximate (≈).",
 		Flags: []cli.Flag{
