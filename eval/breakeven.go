@@ -655,7 +655,12 @@ func (s *search) eval(x decimal.Decimal) (*Solution, error) {
 	s.apply(x)
 	s.evals++
 	if ds := s.m.Resolve(s.over); ds.HasErrors() {
-		return nil, fmt.Errorf("with %s = %s the model has errors: %v (narrow the range with --in)", s.be.Vary, x, ds.Errors())
+		first := ds.Errors()[0]
+		where := ""
+		if first.Pos.IsValid() {
+			where = fmt.Sprintf(" at line %d, column %d", first.Pos.Line, first.Pos.Col)
+		}
+		return nil, fmt.Errorf("with %s = %s the model has errors (first%s: %s); narrow the range with --in", s.be.Vary, x, where, first.Summary)
 	}
 	return Solve(s.m)
 }
