@@ -127,7 +127,7 @@ func TestExitCodes(t *testing.T) {
 		{"missing file", []string{"solve", "no/such.fork"}, 2, "no such file: no/such.fork"},
 		{"unknown flag", []string{"solve", "--colour", bad}, 2, "flag provided but not defined: -colour"},
 		{"unknown example", []string{"solve", "example:nothing"}, 2, "no example \"nothing\""},
-		{"unknown command", []string{"sovle"}, 2, "unknown command \"sovle\""},
+		{"unknown command", []string{"sovle"}, 2, "unknown command \"sovle\" (did you mean \"solve\"?)"},
 		{"flag without its value", []string{"solve", bad, "--max-nodes"}, 2, "flag --max-nodes needs a value"},
 	}
 	for _, c := range cases {

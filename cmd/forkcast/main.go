@@ -17,6 +17,7 @@ import (
 	"strings"
 
 	"github.com/urfave/cli/v2"
+	"github.com/xrash/smetrics"
 )
 
 // Exit codes.
@@ -66,7 +67,7 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		},
 		ExitErrHandler: func(*cli.Context, error) {}, // run decides the exit code
 		CommandNotFound: func(c *cli.Context, name string) {
-			fmt.Fprintf(stderr, "forkcast: unknown command %q; run `forkcast help` for the list\n", name)
+			fmt.Fprintf(stderr, "forkcast: unknown command %q%s; run `forkcast help` for the list\n", name, suggest(name, c.App.Commands))
 		},
 	}
 	for _, cmd := range app.Commands {
@@ -158,4 +159,20 @@ func reorder(args []string, cmds []*cli.Command) ([]string, error) {
 		out = append(out, pos...)
 	}
 	return out, nil
+}
+
+// suggest names the command closest to a mistyped one, as
+// ` (did you mean "NAME"?)`, or nothing when none is close. Closeness is
+// the Jaro-Winkler similarity urfave/cli itself uses for its suggestions.
+func suggest(name string, cmds []*cli.Command) string {
+	best, score := "", 0.8 // below this, a suggestion is more noise than help
+	for _, c := range cmds {
+		if s := smetrics.JaroWinkler(name, c.Name, 0.7, 4); s > score {
+			best, score = c.Name, s
+		}
+	}
+	if best == "" {
+		return ""
+	}
+	return fmt.Sprintf(" (did you mean %q?)", best)
 }
