@@ -440,6 +440,9 @@ func (r *resolver) tree() {
 		n := it.n
 		r.m.size++
 		what := strconv.Quote(n.Display())
+		if n.Label == "" && n.Uncertainty == "" && n.Test == "" {
+			what = "(unlabelled)" // a node from JSON or Go; its position says which
+		}
 		n.TestCost = decimal.Zero
 		var childObs []*Observation  // per branch, when a test is read here
 		var childKnown []*knownState // per branch, when an uncertainty is sampled here
@@ -523,7 +526,10 @@ func (r *resolver) tree() {
 				for i, b := range n.Branches {
 					exprs[i], rest[i], pos[i] = b.Prob, b.Rest, b.Pos
 				}
-				ps, ok := r.probs(what, n.Pos, exprs, rest, pos)
+				ps, ok := make([]decimal.Decimal, len(n.Branches)), false
+				if len(n.Branches) >= 2 { // with fewer, the sum is beside the point
+					ps, ok = r.probs(what, n.Pos, exprs, rest, pos)
+				}
 				for i, b := range n.Branches {
 					b.P = ps[i]
 					// A zero is only news when the probabilities are sound.
