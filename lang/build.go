@@ -903,6 +903,16 @@ func (b *builder) finish() {
 	}
 	for _, p := range b.cash {
 		p.b.Cash = combineCash(b.m.Objective, p.gain, p.cost, p.gainFirst)
+		for _, c := range []struct {
+			word, other string
+			e           tree.Expr
+		}{{"gain", "cost", p.gain}, {"cost", "gain", p.cost}} {
+			if u, neg := c.e.(*tree.Unary); neg && u.Op == '-' {
+				// Amounts are written positive; the word gives the sign.
+				b.ds.Warn(u.Pos(), fmt.Sprintf("write `%s %s` if that is meant", c.other, u.X),
+					"a negative %s: `%s %s` counts as %s %s", c.word, c.word, u, c.other, u.X)
+			}
+		}
 	}
 	b.checkRefs()
 	for _, d := range b.subOrder {
