@@ -8,7 +8,6 @@ import (
 	"path/filepath"
 	"strings"
 
-	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/render/graphviz"
 	"github.com/urfave/cli/v2"
@@ -72,14 +71,9 @@ func drawAction(c *cli.Context) error {
 	if out == "-" && format == drawFormat(graphviz.PNG) && isTerminal(c.App.Writer) {
 		return usageErr("will not write a PNG to a terminal; give -o FILE.png or redirect the output")
 	}
-	l, err := loadModel(c)
+	l, sol, err := loadAndSolve(c)
 	if err != nil {
 		return err
-	}
-	l.printWarnings(c)
-	sol, err := eval.Solve(l.Model)
-	if err != nil {
-		return modelErr("%v", err)
 	}
 	opts := render.Options{PolicyOnly: c.Bool("policy-only"), MaxDepth: c.Int("depth"), WrapWidth: c.Int("wrap")}
 	dot, err := render.DOT(sol, opts)

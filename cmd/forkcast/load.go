@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/examples"
 	"github.com/forkcast/forkcast/lang"
 	"github.com/forkcast/forkcast/tree"
@@ -105,6 +106,21 @@ func loadModel(c *cli.Context) (*loaded, error) {
 		return nil, modelErr("%s: %d error%s; nothing was solved", shown, n, plural(n))
 	}
 	return &loaded{Model: m, Name: shown, Src: src, Diags: ds}, nil
+}
+
+// loadAndSolve is what every analysis command starts with: read FILE,
+// report its first warnings, and roll the tree back.
+func loadAndSolve(c *cli.Context) (*loaded, *eval.Solution, error) {
+	l, err := loadModel(c)
+	if err != nil {
+		return nil, nil, err
+	}
+	l.printWarnings(c)
+	sol, err := eval.Solve(l.Model)
+	if err != nil {
+		return nil, nil, modelErr("%v", err)
+	}
+	return l, sol, nil
 }
 
 // solveWarningLimit is how many warnings an analysis command shows before

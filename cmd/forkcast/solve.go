@@ -38,14 +38,9 @@ func solveCommand() *cli.Command {
 			maxNodesFlag,
 		},
 		Action: func(c *cli.Context) error {
-			l, err := loadModel(c)
+			_, sol, err := loadAndSolve(c)
 			if err != nil {
 				return err
-			}
-			l.printWarnings(c)
-			sol, err := eval.Solve(l.Model)
-			if err != nil {
-				return modelErr("%v", err)
 			}
 			if c.Bool("json") {
 				return writeSolvedJSON(c.App.Writer, sol)

@@ -46,14 +46,9 @@ func voiCommand() *cli.Command {
 			maxNodesFlag,
 		},
 		Action: func(c *cli.Context) error {
-			l, err := loadModel(c)
+			_, sol, err := loadAndSolve(c)
 			if err != nil {
 				return err
-			}
-			l.printWarnings(c)
-			sol, err := eval.Solve(l.Model)
-			if err != nil {
-				return modelErr("%v", err)
 			}
 			info, err := eval.ValueOfInformation(sol, eval.VOIOptions{MaxScenarios: c.Int("max-scenarios")})
 			if err != nil {
