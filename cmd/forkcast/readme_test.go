@@ -49,3 +49,28 @@ func TestREADMEOutputs(t *testing.T) {
 		t.Errorf("only %d command blocks found in the README", blocks)
 	}
 }
+
+// The model shown in the README's language tour reads without errors or
+// warnings.
+func TestREADMEModel(t *testing.T) {
+	readme, err := os.ReadFile("../../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	found := false
+	for i, block := range strings.Split(string(readme), "```") {
+		// Odd pieces are inside fences; a model's fence has no language.
+		if i%2 == 0 || !strings.HasPrefix(block, "\n") || !strings.Contains(block, "\ndecision ") || strings.Contains(block, "$ forkcast") {
+			continue
+		}
+		found = true
+		p := writeFile(t, "readme.fork", strings.TrimLeft(block, "\n"))
+		code, out, errs := forkcast(t, "", "check", p)
+		if code != 0 || errs != "" || !strings.Contains(out, "0 warnings") {
+			t.Errorf("the README's model: exit %d\n%s%s", code, out, errs)
+		}
+	}
+	if !found {
+		t.Error("no model found in the README")
+	}
+}
