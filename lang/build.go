@@ -395,7 +395,9 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 	case *gCurrency:
 		return b.header(l, parent, quiet, "the currency line", func() {
 			if g.Code == nil {
-				b.errAt(tokPos(g.Kw), tokWidth(l.lx, g.Kw), "write the currency's code after it, such as currency EUR", "the currency line has no currency")
+				if !l.lx.lexErr { // a stray character (€) is reported already
+					b.errAt(tokPos(g.Kw), tokWidth(l.lx, g.Kw), "write the currency's code after it, such as currency EUR", "the currency line has no currency")
+				}
 				return
 			}
 			code := g.Code.Value

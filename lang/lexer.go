@@ -3,6 +3,7 @@ package lang
 import (
 	"fmt"
 	"io"
+	"strings"
 	"unicode"
 	"unicode/utf8"
 
@@ -266,6 +267,9 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 		switch r {
 		case '$', '€', '£', '¥', '₹':
 			hint = "write amounts as plain numbers; set the currency once with a `currency` line"
+			if strings.HasPrefix(strings.TrimSpace(s), "currency") {
+				hint = "write the currency's code, such as currency EUR, or quote the symbol: currency \"" + string(r) + "\""
+			}
 		case ':':
 			hint = "no colon is needed: write the label, then the probability or amount"
 		case '\u00a0':
