@@ -15,18 +15,6 @@ import (
 	"github.com/shopspring/decimal"
 )
 
-func solve(t testing.TB, m *tree.Model) *eval.Solution {
-	t.Helper()
-	if ds := m.Resolve(nil); ds.HasErrors() {
-		t.Fatalf("resolve: %v", ds)
-	}
-	sol, err := eval.Solve(m)
-	if err != nil {
-		t.Fatalf("solve: %v", err)
-	}
-	return sol
-}
-
 func TestCash(t *testing.T) {
 	for _, c := range []struct {
 		c    string
@@ -79,7 +67,7 @@ func TestDOTErrors(t *testing.T) {
 	if _, err := DOT(&eval.Solution{}, Options{}); !errors.Is(err, ErrNoTree) {
 		t.Errorf("DOT(empty) = %v, want ErrNoTree", err)
 	}
-	sol := solve(t, fixtures.Tie())
+	sol := fixtures.Solve(t, fixtures.Tie())
 	for _, o := range []Options{{MaxDepth: -1}, {WrapWidth: -3}} {
 		if _, err := DOT(sol, o); err == nil {
 			t.Errorf("DOT with %+v: no error", o)
@@ -131,7 +119,7 @@ func TestDOT(t *testing.T) {
 			}
 		})
 	}
-	dot, err := DOT(solve(t, fixtures.Odd()), Options{})
+	dot, err := DOT(fixtures.Solve(t, fixtures.Odd()), Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -148,7 +136,7 @@ func TestDOT(t *testing.T) {
 }
 
 func BenchmarkDOT(b *testing.B) {
-	sol := solve(b, fixtures.Generated(1000))
+	sol := fixtures.Solve(b, fixtures.Generated(1000))
 	for b.Loop() {
 		if _, err := DOT(sol, Options{}); err != nil {
 			b.Fatal(err)

@@ -16,7 +16,7 @@ import (
 // process, before the benchmark starts.
 func BenchmarkDraw(b *testing.B) {
 	for _, n := range []int{200, 1000} {
-		sol := solve(b, fixtures.Generated(n))
+		sol := fixtures.Solve(b, fixtures.Generated(n))
 		b.Run(fmt.Sprintf("DOT/%d", n), func(b *testing.B) {
 			for b.Loop() {
 				if _, err := render.DOT(sol, render.Options{}); err != nil {

@@ -60,19 +60,6 @@ func renderer(t testing.TB) *Renderer {
 	return shared
 }
 
-// solve resolves and solves a model, failing the test on any error.
-func solve(t testing.TB, m *tree.Model) *eval.Solution {
-	t.Helper()
-	if ds := m.Resolve(nil); ds.HasErrors() {
-		t.Fatalf("resolve: %v", ds)
-	}
-	sol, err := eval.Solve(m)
-	if err != nil {
-		t.Fatalf("solve: %v", err)
-	}
-	return sol
-}
-
 func loadExample(t testing.TB, name string) *eval.Solution {
 	t.Helper()
 	ex, ok := examples.Get(name)
@@ -497,10 +484,10 @@ var optionSets = []struct {
 
 func TestDrawStructure(t *testing.T) {
 	models := map[string]func(t *testing.T) *eval.Solution{
-		"tie":       func(t *testing.T) *eval.Solution { return solve(t, fixtures.Tie()) },
-		"cost":      func(t *testing.T) *eval.Solution { return solve(t, fixtures.Cost()) },
-		"odd":       func(t *testing.T) *eval.Solution { return solve(t, fixtures.Odd()) },
-		"generated": func(t *testing.T) *eval.Solution { return solve(t, fixtures.Generated(60)) },
+		"tie":       func(t *testing.T) *eval.Solution { return fixtures.Solve(t, fixtures.Tie()) },
+		"cost":      func(t *testing.T) *eval.Solution { return fixtures.Solve(t, fixtures.Cost()) },
+		"odd":       func(t *testing.T) *eval.Solution { return fixtures.Solve(t, fixtures.Odd()) },
+		"generated": func(t *testing.T) *eval.Solution { return fixtures.Solve(t, fixtures.Generated(60)) },
 	}
 	for _, name := range examples.Names() {
 		models["example:"+name] = func(t *testing.T) *eval.Solution { return loadExample(t, name) }
@@ -538,7 +525,7 @@ func TestExamplesDeterministic(t *testing.T) {
 }
 
 func TestTieAndPruning(t *testing.T) {
-	sol := solve(t, fixtures.Tie())
+	sol := fixtures.Solve(t, fixtures.Tie())
 	// Road: -100 + (0.5·400 + 0.5·200) = 200 ties with Rail (200).
 	if !sol.Root.Tied() {
 		t.Fatal("the tie model must tie")
@@ -575,7 +562,7 @@ func TestTieAndPruning(t *testing.T) {
 
 func TestCostWords(t *testing.T) {
 	// Under min the drawing says cost for a positive figure.
-	sol := solve(t, fixtures.Cost())
+	sol := fixtures.Solve(t, fixtures.Cost())
 	groups := parseSVG(t, drawSVG(t, sol, Options{}))
 	hasText(t, groups[fmt.Sprintf("b%d", sol.Root.Kid(1).Index())], "cost 50,000 JPY")
 	hasText(t, groups["n0"], "expected cost 50,000 JPY")
@@ -636,7 +623,7 @@ func TestBadInput(t *testing.T) {
 
 func TestPNG(t *testing.T) {
 	var buf bytes.Buffer
-	if err := renderer(t).Draw(context.Background(), solve(t, fixtures.Tie()), Options{}, PNG, &buf); err != nil {
+	if err := renderer(t).Draw(context.Background(), fixtures.Solve(t, fixtures.Tie()), Options{}, PNG, &buf); err != nil {
 		t.Fatal(err)
 	}
 	if !bytes.HasPrefix(buf.Bytes(), []byte("\x89PNG\r\n\x1a\n")) {
@@ -651,11 +638,11 @@ func TestPNG(t *testing.T) {
 			tree.Choice("Stop", decimal.Zero, nil))
 	}
 	buf.Reset()
-	err := renderer(t).Draw(context.Background(), solve(t, &tree.Model{Root: root}), Options{}, PNG, &buf)
+	err := renderer(t).Draw(context.Background(), fixtures.Solve(t, &tree.Model{Root: root}), Options{}, PNG, &buf)
 	if err == nil || !strings.Contains(err.Error(), "too big") || buf.Len() != 0 {
 		t.Errorf("a huge PNG: err %v, %d bytes written", err, buf.Len())
 	}
-	if err := renderer(t).Draw(context.Background(), solve(t, fixtures.Tie()), Options{}, PNG, io.Discard); err != nil {
+	if err := renderer(t).Draw(context.Background(), fixtures.Solve(t, fixtures.Tie()), Options{}, PNG, io.Discard); err != nil {
 		t.Errorf("a PNG after a refused one: %v", err)
 	}
 }
@@ -668,7 +655,7 @@ func TestConcurrent(t *testing.T) {
 		t.Fatal(err)
 	}
 	defer other.Close()
-	sol := solve(t, fixtures.Generated(40))
+	sol := fixtures.Solve(t, fixtures.Generated(40))
 	want := drawSVG(t, sol, Options{})
 	var wg sync.WaitGroup
 	errs := make(chan error, 8)
