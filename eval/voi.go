@@ -261,36 +261,8 @@ func newEngine(sol *Solution) (*engine, error) {
 // posteriorExact reports whether Bayes' rule after the readings in obs
 // divides exactly for uncertainty u.
 func posteriorExact(u *tree.Uncertainty, obs *tree.Observation) bool {
-	joint := make([]decimal.Decimal, len(u.States))
-	seen := false
-	for i, s := range u.States {
-		joint[i] = s.P
-	}
-	for o := obs; o != nil; o = o.Prev {
-		if o.Test.On != u.Name {
-			continue
-		}
-		seen = true
-		for i := range joint {
-			joint[i] = joint[i].Mul(o.Test.Readings[o.Reading].L[i])
-		}
-	}
-	if !seen {
-		return true
-	}
-	sum := decimal.Zero
-	for _, j := range joint {
-		sum = sum.Add(j)
-	}
-	if sum.IsZero() {
-		return true
-	}
-	for _, j := range joint {
-		if !tree.Div(j, sum, true).Exact {
-			return false
-		}
-	}
-	return true
+	_, _, exact := tree.Posterior(u, obs)
+	return exact
 }
 
 // g turns a value in the objective's terms into goodness (higher is better).

@@ -324,33 +324,24 @@ type Observation struct {
 // computed in one step from the prior and the product of the likelihoods
 // (the readings are taken to be independent given the state, as is usual
 // for repeated tests). marginal is P(the readings); when it is 0 the prior is
-// returned.
-func Posterior(u *Uncertainty, obs *Observation) (post []decimal.Decimal, marginal decimal.Decimal) {
+// returned. exact reports whether every division came out exact (no
+// rounding at DivisionScale).
+func Posterior(u *Uncertainty, obs *Observation) (post []decimal.Decimal, marginal decimal.Decimal, exact bool) {
 	joint, marginal := jointOf(u, obs)
 	if marginal.IsZero() {
 		prior := make([]decimal.Decimal, len(u.States))
 		for i, s := range u.States {
 			prior[i] = s.P
 		}
-		return prior, marginal
+		return prior, marginal, true
 	}
 	post = make([]decimal.Decimal, len(joint))
+	exact = true
 	for i, j := range joint {
-		post[i] = Div(j, marginal, true).D
+		q := Div(j, marginal, true)
+		post[i], exact = q.D, exact && q.Exact
 	}
-	return post, marginal
-}
-
-// posteriorExact reports whether every posterior of u given obs is an exact
-// decimal (no rounding at DivisionScale).
-func posteriorExact(post []decimal.Decimal, u *Uncertainty, obs *Observation) bool {
-	joint, marginal := jointOf(u, obs)
-	for i := range post {
-		if !post[i].Mul(marginal).Equal(joint[i]) {
-			return false
-		}
-	}
-	return true
+	return post, marginal, exact
 }
 
 func jointOf(u *Uncertainty, obs *Observation) ([]decimal.Decimal, decimal.Decimal) {
@@ -413,8 +404,8 @@ func (r *resolver) posterior(u *Uncertainty, obs *Observation, known *knownState
 	if p, ok := obs.post[u.Name]; ok {
 		return p
 	}
-	p, _ := Posterior(u, obs)
-	if !posteriorExact(p, u, obs) {
+	p, _, exact := Posterior(u, obs)
+	if !exact {
 		r.inexact = true
 	}
 	if obs.post == nil {
