@@ -32,7 +32,8 @@ func drawCommand() *cli.Command {
 			"OUT defaults to FILE's base name with the format's extension, in the current\n" +
 			"directory (standard output when FILE is -); -o - writes to standard output.\n" +
 			"The format comes from --format, else from OUT's extension (.svg, .png, .dot\n" +
-			"or .gv), else SVG.\n\n" +
+			"or .gv), else SVG. Another extension needs --format; an extension that names\n" +
+			"another format than --format is refused.\n\n" +
 			"For big trees, --policy-only folds the options each decision rejects into one\n" +
 			"stub, and --depth N draws N levels and sums up each deeper subtree in a stub.\n" +
 			"Drawing stops at " + render.Grouped(fmt.Sprint(render.DefaultMaxDrawn)) + " nodes; PNG at 32,768 pixels a side.",
@@ -104,8 +105,21 @@ func drawAction(c *cli.Context) error {
 	if err := os.WriteFile(out, pic.Bytes(), 0o644); err != nil {
 		return modelErr("%v", err)
 	}
-	fmt.Fprintf(c.App.ErrWriter, "wrote %s\n", out)
+	fmt.Fprintf(c.App.ErrWriter, "wrote %s\n", shown(out))
 	return nil
+}
+
+// extFormat is the format an extension of OUT names, if draw knows it.
+func extFormat(ext string) (drawFormat, bool) {
+	switch strings.ToLower(ext) {
+	case ".svg":
+		return drawFormat(graphviz.SVG), true
+	case ".png":
+		return drawFormat(graphviz.PNG), true
+	case ".dot", ".gv":
+		return formatDOT, true
+	}
+	return "", false
 }
 
 // drawTarget works out where the picture goes and in which format.
@@ -119,12 +133,18 @@ func drawTarget(c *cli.Context, name string) (out string, format drawFormat, err
 			return "", "", usageErr("--format %q: choose svg, png or dot", f)
 		}
 	}
-	if format == "" && out != "" && out != "-" {
-		switch strings.ToLower(filepath.Ext(out)) {
-		case ".png":
-			format = drawFormat(graphviz.PNG)
-		case ".dot", ".gv":
-			format = formatDOT
+	if out != "" && out != "-" {
+		ext := filepath.Ext(out)
+		byExt, known := extFormat(ext)
+		switch {
+		case ext == "":
+			// No extension: the format flag, else SVG.
+		case !known && format == "":
+			return "", "", usageErr("-o %s: draw writes SVG (.svg), PNG (.png) or Graphviz DOT (.dot, .gv), not %s; use one of those extensions, or give --format", shown(out), shown(ext))
+		case known && format == "":
+			format = byExt
+		case known && byExt != format:
+			return "", "", usageErr("-o %s is %s by its extension, but --format says %s; make them agree", shown(out), strings.ToUpper(string(byExt)), strings.ToUpper(string(format)))
 		}
 	}
 	if format == "" {

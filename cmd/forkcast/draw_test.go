@@ -88,7 +88,9 @@ func TestDrawDefaultOutput(t *testing.T) {
 
 func TestDrawErrors(t *testing.T) {
 	bad := writeFile(t, "bad.fork", "decision \"d\"\n  \"a\"  cost nope\n")
-	out := filepath.Join(t.TempDir(), "x.svg")
+	dir := t.TempDir()
+	out := filepath.Join(dir, "x.svg")
+	jpg, png, ctl := filepath.Join(dir, "out.jpg"), filepath.Join(dir, "out.png"), filepath.Join(dir, "\x1b[2J.jpg")
 	for _, c := range []struct {
 		name   string
 		args   []string
@@ -100,6 +102,9 @@ func TestDrawErrors(t *testing.T) {
 		{"bad format", []string{"draw", "example:sourcing", "--format", "gif"}, 2, `--format "gif": choose svg, png or dot`},
 		{"bad depth", []string{"draw", "example:sourcing", "--depth", "-2"}, 2, "--depth -2"},
 		{"bad wrap", []string{"draw", "example:sourcing", "--wrap", "0"}, 2, "--wrap 0"},
+		{"unsupported extension", []string{"draw", "example:sourcing", "-o", jpg}, 2, "draw writes SVG (.svg), PNG (.png) or Graphviz DOT (.dot, .gv), not .jpg"},
+		{"extension against format", []string{"draw", "example:sourcing", "--format", "svg", "-o", png}, 2, "is PNG by its extension, but --format says SVG"},
+		{"control characters in OUT", []string{"draw", "example:sourcing", "-o", ctl}, 2, `\x1b[2J.jpg`},
 		{"missing dir", []string{"draw", "example:sourcing", "-o", filepath.Join(t.TempDir(), "no", "such", "x.svg")}, 1, "no such file or directory"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -107,9 +112,13 @@ func TestDrawErrors(t *testing.T) {
 			if code != c.code || !strings.Contains(errs, c.stderr) {
 				t.Fatalf("exit %d, stderr:\n%s\nwant exit %d and %q", code, errs, c.code, c.stderr)
 			}
+			if strings.Contains(errs, "\x1b") {
+				t.Errorf("a control character reached standard error: %q", errs)
+			}
 		})
 	}
-	if _, err := os.Stat(out); err == nil {
-		t.Error("a picture was written for a model with errors")
+	// Nothing at all is written when draw refuses.
+	if left, _ := os.ReadDir(dir); len(left) > 0 {
+		t.Errorf("files written by refused draws: %v", left)
 	}
 }

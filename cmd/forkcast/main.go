@@ -14,7 +14,9 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"strconv"
 	"strings"
+	"unicode"
 
 	"github.com/urfave/cli/v2"
 	"github.com/xrash/smetrics"
@@ -104,6 +106,18 @@ func usageErr(format string, args ...any) error {
 // modelErr is a problem with the model, already reported: exit status 1.
 func modelErr(format string, args ...any) error {
 	return cli.Exit(fmt.Sprintf(format, args...), exitModel)
+}
+
+// shown is a name the user gave (a path, an extension) as it is safe to
+// print: unchanged when every character is printable, else Go-quoted, so
+// that no control sequence in it reaches a terminal.
+func shown(s string) string {
+	for _, r := range s {
+		if !unicode.IsPrint(r) && r != ' ' {
+			return strconv.Quote(s)
+		}
+	}
+	return s
 }
 
 // reorder moves a command's flags ahead of its arguments, so that
