@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/forkcast/forkcast/internal/atomicfile"
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/render/graphviz"
 	"github.com/urfave/cli/v2"
@@ -33,7 +34,9 @@ func drawCommand() *cli.Command {
 			"directory (standard output when FILE is -); -o - writes to standard output.\n" +
 			"The format comes from --format, else from OUT's extension (.svg, .png, .dot\n" +
 			"or .gv), else SVG. Another extension needs --format; an extension that names\n" +
-			"another format than --format is refused.\n\n" +
+			"another format than --format is refused. The picture is written to a\n" +
+			"temporary file beside OUT and renamed into place, so OUT is never left half\n" +
+			"written; a symbolic link at OUT is refused, not followed.\n\n" +
 			"For big trees, --policy-only folds the options each decision rejects into one\n" +
 			"stub, and --depth N draws N levels and sums up each deeper subtree in a stub.\n" +
 			"Drawing stops at " + render.Grouped(fmt.Sprint(render.DefaultMaxDrawn)) + " nodes; PNG at 32,768 pixels a side.",
@@ -102,8 +105,8 @@ func drawAction(c *cli.Context) error {
 		_, err := c.App.Writer.Write(pic.Bytes())
 		return err
 	}
-	if err := os.WriteFile(out, pic.Bytes(), 0o644); err != nil {
-		return modelErr("%v", err)
+	if err := atomicfile.Write(out, pic.Bytes(), 0o644); err != nil {
+		return modelErr("%s", shown(err.Error()))
 	}
 	fmt.Fprintf(c.App.ErrWriter, "wrote %s\n", shown(out))
 	return nil

@@ -2,9 +2,13 @@ package main
 
 import (
 	"bytes"
+	"encoding/xml"
+	"fmt"
+	"io"
 	"os"
 	"path/filepath"
 	"strings"
+	"sync"
 	"testing"
 )
 
@@ -120,5 +124,66 @@ func TestDrawErrors(t *testing.T) {
 	// Nothing at all is written when draw refuses.
 	if left, _ := os.ReadDir(dir); len(left) > 0 {
 		t.Errorf("files written by refused draws: %v", left)
+	}
+}
+
+// TestDrawConcurrentSamePath has several draws write the same file at
+// once: each says it wrote it, and what is left is one whole picture.
+func TestDrawConcurrentSamePath(t *testing.T) {
+	dir := t.TempDir()
+	out := filepath.Join(dir, "same.svg")
+	var wg sync.WaitGroup
+	errs := make(chan string, 8)
+	for k := range 8 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			ex := []string{"example:sourcing", "example:release"}[k%2]
+			var o, e bytes.Buffer
+			if code := run([]string{"forkcast", "draw", ex, "-o", out}, strings.NewReader(""), &o, &e); code != 0 {
+				errs <- fmt.Sprintf("exit %d: %s", code, e.String())
+			}
+		}()
+	}
+	wg.Wait()
+	close(errs)
+	for e := range errs {
+		t.Error(e)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := xml.NewDecoder(bytes.NewReader(b))
+	for {
+		_, err := d.Token()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			t.Fatalf("the SVG left is not well-formed: %v", err)
+		}
+	}
+	if entries, _ := os.ReadDir(dir); len(entries) != 1 {
+		t.Errorf("files left: %v", entries)
+	}
+}
+
+func TestDrawRefusesSymlink(t *testing.T) {
+	dir := t.TempDir()
+	target := filepath.Join(dir, "precious.txt")
+	if err := os.WriteFile(target, []byte("keep"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	link := filepath.Join(dir, "tree.svg")
+	if err := os.Symlink(target, link); err != nil {
+		t.Skipf("no symbolic links: %v", err)
+	}
+	code, _, errs := forkcast(t, "", "draw", "example:sourcing", "-o", link)
+	if code != 1 || !strings.Contains(errs, "is a symbolic link") {
+		t.Fatalf("exit %d, stderr %q; want exit 1 and a symbolic-link refusal", code, errs)
+	}
+	if b, _ := os.ReadFile(target); string(b) != "keep" {
+		t.Errorf("the link's target was written: %q", b)
 	}
 }
