@@ -3,12 +3,11 @@ package main
 import (
 	"bytes"
 	"encoding/xml"
-	"fmt"
 	"io"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strings"
-	"sync"
 	"testing"
 )
 
@@ -127,28 +126,29 @@ func TestDrawErrors(t *testing.T) {
 	}
 }
 
-// TestDrawConcurrentSamePath has several draws write the same file at
-// once: each says it wrote it, and what is left is one whole picture.
+// TestDrawConcurrentSamePath has several forkcast processes draw to the
+// same file at once: each says it wrote it, and what is left is one whole
+// picture.
 func TestDrawConcurrentSamePath(t *testing.T) {
 	dir := t.TempDir()
 	out := filepath.Join(dir, "same.svg")
-	var wg sync.WaitGroup
-	errs := make(chan string, 8)
-	for k := range 8 {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			ex := []string{"example:sourcing", "example:release"}[k%2]
-			var o, e bytes.Buffer
-			if code := run([]string{"forkcast", "draw", ex, "-o", out}, strings.NewReader(""), &o, &e); code != 0 {
-				errs <- fmt.Sprintf("exit %d: %s", code, e.String())
-			}
-		}()
+	var cmds []*exec.Cmd
+	for k := range 6 {
+		ex := []string{"example:sourcing", "example:release"}[k%2]
+		cmd := command("draw", ex, "-o", out)
+		cmds = append(cmds, cmd)
 	}
-	wg.Wait()
-	close(errs)
-	for e := range errs {
-		t.Error(e)
+	outs := make([]bytes.Buffer, len(cmds))
+	for k, cmd := range cmds {
+		cmd.Stderr = &outs[k]
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for k, cmd := range cmds {
+		if err := cmd.Wait(); err != nil || !strings.Contains(outs[k].String(), "wrote ") {
+			t.Errorf("draw %d: %v: %s", k, err, outs[k].String())
+		}
 	}
 	b, err := os.ReadFile(out)
 	if err != nil {
