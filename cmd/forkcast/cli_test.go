@@ -124,9 +124,18 @@ func TestExitCodes(t *testing.T) {
 		{"check warning", []string{"check", warn}, 0, "warn.fork:1:5: warning: \"unused\" is defined but never used"},
 		{"no file", []string{"solve"}, 2, "solve needs a model FILE"},
 		{"two files", []string{"solve", bad, warn}, 2, "solve takes one FILE"},
-		{"missing file", []string{"solve", "no/such.fork"}, 2, "no such file: no/such.fork"},
+		// A missing file, a directory and an unknown example are inputs
+		// that cannot be used: 1, as documented in the README and --help.
+		{"missing file", []string{"solve", "no/such.fork"}, 1, "no such file: no/such.fork"},
+		{"directory", []string{"solve", t.TempDir()}, 1, "is a directory; give a model file"},
 		{"unknown flag", []string{"solve", "--colour", bad}, 2, "flag provided but not defined: -colour"},
-		{"unknown example", []string{"solve", "example:nothing"}, 2, "no example \"nothing\""},
+		{"unknown example", []string{"solve", "example:nothing"}, 1, "no example \"nothing\""},
+		{"help for no such command", []string{"help", "nosuch"}, 2, `unknown command "nosuch"`},
+		{"negative max-nodes", []string{"solve", "--max-nodes", "-5", "example:sourcing"}, 2, "--max-nodes -5: give a number of at least 1"},
+		{"zero max-nodes", []string{"check", "example:sourcing", "--max-nodes=0"}, 2, "--max-nodes 0: give a number of at least 1"},
+		{"negative max-scenarios", []string{"voi", "--max-scenarios", "-1", "example:release"}, 2, "--max-scenarios -1: give a number of at least 1"},
+		{"warnings below -1", []string{"check", "--warnings", "-2", "example:release"}, 2, "--warnings -2: give a number of at least 0, or -1 for all"},
+		{"negative depth", []string{"draw", "--depth", "-1", "example:release"}, 2, "--depth -1: give a number of at least 0"},
 		{"unknown command", []string{"sovle"}, 2, "unknown command \"sovle\" (did you mean \"solve\"?)"},
 		{"flag without its value", []string{"solve", bad, "--max-nodes"}, 2, "flag --max-nodes needs a value"},
 	}

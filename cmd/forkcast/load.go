@@ -55,16 +55,21 @@ func readSource(c *cli.Context, name string) ([]byte, bool, error) {
 	case strings.HasPrefix(name, "example:"):
 		ex, ok := examples.Get(strings.TrimPrefix(name, "example:"))
 		if !ok {
-			return nil, false, usageErr("no example %q; the examples are: %s", strings.TrimPrefix(name, "example:"), strings.Join(examples.Names(), ", "))
+			return nil, false, modelErr("no example %q; the examples are: %s", strings.TrimPrefix(name, "example:"), strings.Join(examples.Names(), ", "))
 		}
 		return ex.Source, false, nil
+	}
+	// A missing file and a directory are both inputs that cannot be
+	// read: exit status 1, as for a model with errors (see main.go).
+	if st, err := os.Stat(name); err == nil && st.IsDir() {
+		return nil, false, modelErr("%s is a directory; give a model file (.fork or .json)", shown(name))
 	}
 	src, err := os.ReadFile(name)
 	if err != nil {
 		if os.IsNotExist(err) {
-			return nil, false, usageErr("no such file: %s", name)
+			return nil, false, modelErr("no such file: %s", shown(name))
 		}
-		return nil, false, modelErr("%v", err)
+		return nil, false, modelErr("%s", shown(err.Error()))
 	}
 	return src, isJSON, nil
 }

@@ -22,15 +22,39 @@ import (
 	"github.com/xrash/smetrics"
 )
 
-// Exit codes.
+// Exit codes. A missing FILE, a directory given as FILE, an unknown
+// example:NAME and an output that cannot be written are input/output
+// problems (1), like a model with errors: the command line was understood,
+// what it points to cannot be used. 2 is kept for words of the command
+// line itself that are wrong, so that a script can tell the two apart.
 const (
-	exitOK    = 0
-	exitModel = 1 // the model has errors
-	exitUsage = 2 // the command line is wrong
+	exitOK       = 0
+	exitModel    = 1 // the model, or a file named, cannot be used
+	exitUsage    = 2 // the command line is wrong
+	exitInternal = 3 // a bug in forkcast: a panic caught at the top
 )
 
+// exitStatusHelp is the exit status paragraph of `forkcast --help`.
+const exitStatusHelp = "Exit status: 0 success; 1 the model has errors, or a file named cannot be\n" +
+	"read or written (missing, a directory, a symbolic link as output); 2 the\n" +
+	"command line is wrong (unknown command or flag, a flag value out of range,\n" +
+	"a missing FILE argument); 3 an internal error in forkcast (please report it)."
+
 func main() {
-	os.Exit(run(os.Args, os.Stdin, os.Stdout, os.Stderr))
+	os.Exit(guard(os.Stderr, func() int { return run(os.Args, os.Stdin, os.Stdout, os.Stderr) }))
+}
+
+// guard runs the command and turns a panic, which is always a bug, into an
+// internal-error message and exit status 3, instead of a goroutine dump
+// and the usage status 2 the Go runtime would give.
+func guard(stderr io.Writer, f func() int) (code int) {
+	defer func() {
+		if r := recover(); r != nil {
+			fmt.Fprintf(stderr, "forkcast: internal error: %s\nThis is a bug in forkcast; please report it with the command and the model that caused it.\n", shown(fmt.Sprint(r)))
+			code = exitInternal
+		}
+	}()
+	return f()
 }
 
 // commands lists every command, in the order `forkcast help` shows them.
@@ -47,6 +71,7 @@ func commands() []*cli.Command {
 
 // run is main without the process: tests call it with their own streams.
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	notFound := false // an unknown command was named, also as `help NAME`
 	app := &cli.App{
 		Name:  "forkcast",
 		Usage: "decision trees with exact expected monetary value",
@@ -56,8 +81,8 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 			"Start with:  forkcast examples            (the models built in)\n" +
 			"             forkcast solve example:sourcing\n" +
 			"             forkcast check my-model.fork\n\n" +
-			"FILE may be a path, - for standard input, or example:NAME.\n" +
-			"Exit status: 0 success, 1 the model has errors, 2 the command line is wrong.",
+			"FILE may be a path, - for standard input, or example:NAME.\n\n" +
+			exitStatusHelp,
 		Commands:        commands(),
 		Reader:          stdin,
 		Writer:          stdout,
@@ -69,11 +94,13 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		},
 		ExitErrHandler: func(*cli.Context, error) {}, // run decides the exit code
 		CommandNotFound: func(c *cli.Context, name string) {
+			notFound = true
 			fmt.Fprintf(stderr, "forkcast: unknown command %q%s; run `forkcast help` for the list\n", name, suggest(name, c.App.Commands))
 		},
 	}
 	for _, cmd := range app.Commands {
 		cmd.OnUsageError = app.OnUsageError
+		cmd.Before = checkCounts
 	}
 	args, err := reorder(args, app.Commands)
 	if err != nil {
@@ -82,7 +109,7 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	err = app.Run(args)
 	if err == nil {
-		if len(args) > 1 && app.Command(args[1]) == nil && !strings.HasPrefix(args[1], "-") && args[1] != "help" && args[1] != "h" {
+		if notFound {
 			return exitUsage
 		}
 		return exitOK
@@ -96,6 +123,47 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	}
 	fmt.Fprintln(stderr, "forkcast: "+err.Error())
 	return exitUsage
+}
+
+// checkCounts refuses a count or limit flag given out of its range (a
+// usage error), so that a negative --max-nodes is not quietly taken for
+// the default.
+func checkCounts(c *cli.Context) error {
+	for _, f := range c.Command.Flags {
+		if _, ok := f.(*cli.IntFlag); !ok {
+			continue
+		}
+		name := f.Names()[0]
+		if !c.IsSet(name) {
+			continue
+		}
+		if v, least := c.Int(name), leastCount(name); v < least {
+			return usageErr("--%s %d: %s", name, v, countRule(least))
+		}
+	}
+	return nil
+}
+
+// leastCount is the smallest value an integer flag takes. A count is
+// never negative; a limit is at least 1; --warnings takes -1 for all.
+func leastCount(name string) int {
+	switch name {
+	case "warnings":
+		return -1
+	case "max-nodes", "max-scenarios", "wrap":
+		return 1
+	}
+	return 0
+}
+
+func countRule(least int) string {
+	switch least {
+	case -1:
+		return "give a number of at least 0, or -1 for all"
+	case 0:
+		return "give a number of at least 0"
+	}
+	return fmt.Sprintf("give a number of at least %d", least)
 }
 
 // usageErr is a command-line mistake: exit status 2.
@@ -150,6 +218,11 @@ func reorder(args []string, cmds []*cli.Command) ([]string, error) {
 		if a == "--" {
 			pos = append(pos, rest[i+1:]...)
 			break
+		}
+		if a == "-h" || a == "--help" || a == "-help" {
+			// Help asked for: the command's help, whatever else is there
+			// (urfave would take a FILE after it for a subcommand name).
+			return []string{args[0], args[1], "--help"}, nil
 		}
 		if len(a) > 1 && a[0] == '-' {
 			flags = append(flags, a)
