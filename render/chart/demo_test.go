@@ -40,3 +40,69 @@ func demoSpider() Spider {
 		},
 	}
 }
+
+// demoSweep: three options against the chance of a slip, linear in it:
+// build 520,000 − 600,000·p, buy 360,000 (flat), lease 250,000 + 300,000·p
+// (invented). Build and buy meet at p = 160,000 / 600,000 = 0.2667; buy
+// and lease at p = 110,000 / 300,000 = 0.3667.
+func demoSweep() Sweep {
+	s := Sweep{
+		Title: "Each option's value as the chance of a slip changes",
+		Input: Axis{Label: "Chance of a slip", Percent: true},
+		Value: Axis{Label: "Expected value (EUR)"},
+		Switches: []Mark{
+			{At: 160_000.0 / 600_000, Label: "26.7%: Build → Buy"},
+			{At: 110_000.0 / 300_000, Label: "36.7%: Buy → Lease"},
+		},
+	}
+	build, buy, lease := Curve{Label: "Build in house"}, Curve{Label: "Buy a licence"}, Curve{Label: "Lease per depot"}
+	for k := 0; k <= 10; k++ {
+		p := 0.15 + 0.03*float64(k)
+		s.X = append(s.X, p)
+		build.Values = append(build.Values, 520_000-600_000*p)
+		buy.Values = append(buy.Values, 360_000)
+		lease.Values = append(lease.Values, 250_000+300_000*p)
+	}
+	s.Options = []Curve{build, buy, lease}
+	return s
+}
+
+// demoMap: the best option over the chance of a slip p and the licence
+// fee L, with build 520,000 − 600,000·p, buy 600,000 − L and lease
+// 250,000 + 300,000·p (invented). Build = buy on L = 80,000 + 600,000·p,
+// buy = lease on L = 350,000 − 300,000·p, build = lease on p = 0.3; all
+// three meet at (0.3, 260,000).
+func demoMap(nx, ny int) StrategyMap {
+	m := StrategyMap{
+		Title:   "Best option by chance of a slip and licence fee",
+		X:       Axis{Label: "Chance of a slip", Percent: true},
+		Y:       Axis{Label: "Licence fee (EUR)"},
+		Options: []string{"Build in house", "Buy a licence", "Lease per depot"},
+		Boundaries: []Segment{
+			{Point{0.2, 200_000}, Point{0.3, 260_000}},
+			{Point{0.3, 260_000}, Point{0.45, 215_000}},
+			{Point{0.3, 260_000}, Point{0.3, 300_000}},
+		},
+	}
+	for i := 0; i < nx; i++ {
+		m.XValues = append(m.XValues, 0.15+0.30*float64(i)/float64(nx-1))
+	}
+	for j := 0; j < ny; j++ {
+		m.YValues = append(m.YValues, 200_000+100_000*float64(j)/float64(ny-1))
+	}
+	for _, l := range m.YValues {
+		var row []int
+		for _, p := range m.XValues {
+			v := []float64{520_000 - 600_000*p, 600_000 - l, 250_000 + 300_000*p}
+			best := 0
+			for k := range v {
+				if v[k] > v[best] {
+					best = k
+				}
+			}
+			row = append(row, best)
+		}
+		m.Best = append(m.Best, row)
+	}
+	return m
+}

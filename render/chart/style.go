@@ -124,7 +124,7 @@ const (
 // fills is the i-th area style. Tones and textures cycle with lengths 4 and
 // 6, so the first 12 differ; areas 0–5 all have distinct textures.
 func fills(i int) fillStyle {
-	tones := []color.Color{color.Gray{Y: 0xf2}, color.Gray{Y: 0xc4}, paper, color.Gray{Y: 0xa2}}
+	tones := []color.Color{color.Gray{Y: 0xe6}, color.Gray{Y: 0xc4}, paper, color.Gray{Y: 0xa2}}
 	textures := []hatch{hatchNone, hatchRising, hatchLevel, hatchNone, hatchFalling, hatchCross}
 	return fillStyle{fill: tones[i%len(tones)], hatch: textures[i%len(textures)]}
 }

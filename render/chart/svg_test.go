@@ -119,6 +119,19 @@ func (d svgDoc) text(t *testing.T, s string) svgText {
 	return svgText{}
 }
 
+// last is the last text reading exactly s (the legend comes first, the
+// data after it).
+func (d svgDoc) last(t *testing.T, s string) svgText {
+	t.Helper()
+	for i := len(d.texts) - 1; i >= 0; i-- {
+		if d.texts[i].s == s {
+			return d.texts[i]
+		}
+	}
+	t.Fatalf("no text %q in the chart; texts: %v", s, d.strings())
+	return svgText{}
+}
+
 func (d svgDoc) strings() []string {
 	var out []string
 	for _, tx := range d.texts {
