@@ -159,10 +159,14 @@ type drawer struct {
 	cur  string
 	wrap int
 	buf  bytes.Buffer
-	// nodes is the solution's pre-order; on and ends are indexed alike.
-	nodes []eval.Solved
-	on    []bool                // reached by the optimal policy
-	ends  map[int]eval.EndPoint // end nodes by index
+	// nodes is the solution's pre-order; the slices below are indexed
+	// alike. They are worked out once, in one sweep, so that drawing a
+	// node costs the same however many siblings or ancestors it has.
+	nodes  []eval.Solved
+	on     []bool                // reached by the optimal policy
+	depth  []int32               // branches from the root
+	chosen []int32               // at a decision, the index of the node its policy takes; else -1
+	ends   map[int]eval.EndPoint // end nodes by index
 }
 
 // index works out which nodes the policy reaches and the end points.
@@ -181,11 +185,19 @@ func (d *drawer) index() error {
 		}
 	}
 	d.on = make([]bool, len(d.nodes))
+	d.depth = make([]int32, len(d.nodes))
+	d.chosen = make([]int32, len(d.nodes))
 	d.on[0] = true
+	d.chosen[0] = -1
 	for i := 1; i < len(d.nodes); i++ {
 		s := &d.nodes[i]
 		p := s.Parent()
 		d.on[i] = d.on[p.Index()] && d.takes(p, s.Via())
+		d.depth[i] = d.depth[p.Index()] + 1
+		d.chosen[i] = -1
+		if p.Node.Kind == tree.KindDecision && p.Chosen() == s.Via() {
+			d.chosen[p.Index()] = int32(i)
+		}
 	}
 	d.ends = map[int]eval.EndPoint{}
 	for _, e := range d.sol.Ends() {
@@ -197,6 +209,45 @@ func (d *drawer) index() error {
 // takes reports whether the policy, once at s, follows branch j.
 func (d *drawer) takes(s *eval.Solved, j int) bool {
 	return s.Node.Kind != tree.KindDecision || s.Chosen() == j
+}
+
+// optionValue is the value of the option at a decision that leads to s:
+// the cash on the branch into s plus the value of s.
+func (d *drawer) optionValue(s *eval.Solved) decimal.Decimal {
+	return s.Parent().Node.Branches[s.Via()].C.Add(s.Value())
+}
+
+// tiesChosen reports whether s, under a decision, is reached by an option
+// as good as the one its policy takes (true for that option itself).
+func (d *drawer) tiesChosen(s *eval.Solved) bool {
+	p := s.Parent()
+	c := d.chosen[p.Index()]
+	if c < 0 {
+		return false
+	}
+	return int(c) == s.Index() || (p.Tied() && d.optionValue(s).Equal(d.optionValue(&d.nodes[c])))
+}
+
+// runnerUp is, at a decision with at least two options, the best option
+// it does not take (the first such in model order), found in one pass
+// over the options; ok is false when there is none.
+func (d *drawer) runnerUp(s *eval.Solved) (kid *eval.Solved, ok bool) {
+	c := d.chosen[s.Index()]
+	if s.Node.Kind != tree.KindDecision || len(s.Node.Branches) < 2 || c < 0 {
+		return nil, false
+	}
+	min := d.m.Objective == tree.Min
+	var best decimal.Decimal
+	for _, k := range s.Kids() {
+		if k.Index() == int(c) {
+			continue
+		}
+		v := d.optionValue(k)
+		if kid == nil || (!min && v.GreaterThan(best)) || (min && v.LessThan(best)) {
+			kid, best = k, v
+		}
+	}
+	return kid, kid != nil
 }
 
 func (d *drawer) graph(steps []step) {
@@ -260,7 +311,7 @@ type step struct {
 
 // cut reports whether MaxDepth stops the drawing at s.
 func (d *drawer) cut(s *eval.Solved) bool {
-	return d.opts.MaxDepth > 0 && s.Depth() >= d.opts.MaxDepth
+	return d.opts.MaxDepth > 0 && int(d.depth[s.Index()]) >= d.opts.MaxDepth
 }
 
 // plan lists what is drawn, in pre-order (without recursion): each node's
@@ -279,7 +330,7 @@ func (d *drawer) plan() []step {
 		}
 		kids := s.Kids()
 		if d.opts.PolicyOnly && s.Node.Kind == tree.KindDecision && len(kids) > 0 {
-			if _, _, ok := s.Margin(); ok {
+			if _, ok := d.runnerUp(s); ok {
 				stack = append(stack, step{i: st.i, others: true})
 			}
 			if c := s.Chosen(); c >= 0 && c < len(kids) {
@@ -403,7 +454,7 @@ func (d *drawer) branchLabel(s *eval.Solved) labelSpec {
 		} else {
 			lines[0] = pruneMark + " " + lines[0]
 		}
-		if p.IsBest(s.Via()) {
+		if d.tiesChosen(s) {
 			lines[len(lines)-1] += " (tie)"
 		}
 	}
@@ -638,7 +689,7 @@ func (d *drawer) depthStub(i int) placed {
 // of them, with its value.
 func (d *drawer) othersLabel(i int) labelSpec {
 	s := &d.nodes[i]
-	margin, runnerUp, _ := s.Margin()
+	runnerUp, found := d.runnerUp(s)
 	others := len(s.Node.Branches) - 1
 	above := []string{fmt.Sprintf("%s %s other %s", pruneMark, Grouped(strconv.Itoa(others)), plural(others, "option", "options"))}
 	lead := "best: "
@@ -646,10 +697,10 @@ func (d *drawer) othersLabel(i int) labelSpec {
 		lead = ""
 	}
 	var below []string
-	if runnerUp >= 0 {
-		below = wrapText(lead+clean(s.Node.Branches[runnerUp].Label), d.wrap)
-		v := d.valueText(s.BranchValue(runnerUp))
-		if margin.IsZero() {
+	if found {
+		below = wrapText(lead+clean(s.Node.Branches[runnerUp.Via()].Label), d.wrap)
+		v := d.valueText(d.optionValue(runnerUp))
+		if d.tiesChosen(runnerUp) {
 			v += " (tie)"
 		}
 		below = append(below, v)
@@ -756,29 +807,43 @@ func clean(s string) string {
 
 // wrapText breaks s at spaces into lines of at most width characters; a
 // word longer than width is broken within. Empty input gives no lines.
+// It reads s once: its time is linear in the length of s whatever the
+// width or the words.
 func wrapText(s string, width int) []string {
+	if width < 1 {
+		width = 1
+	}
 	var lines []string
 	var cur strings.Builder
-	n := 0
-	for _, w := range strings.Fields(s) {
-		for utf8.RuneCountInString(w) > width {
-			if n > 0 {
-				lines = append(lines, cur.String())
-				cur.Reset()
-				n = 0
-			}
-			r := []rune(w)
-			lines = append(lines, string(r[:width]))
-			w = string(r[width:])
-		}
-		wl := utf8.RuneCountInString(w)
-		if wl == 0 {
-			continue
-		}
-		if n > 0 && n+1+wl > width {
+	n := 0 // characters in cur
+	flush := func() {
+		if n > 0 {
 			lines = append(lines, cur.String())
 			cur.Reset()
 			n = 0
+		}
+	}
+	for w := range strings.FieldsSeq(s) {
+		wl := utf8.RuneCountInString(w)
+		if n > 0 && n+1+wl > width {
+			flush()
+		}
+		if wl > width {
+			// Too long for any line: chunks of width characters, the
+			// last one carried on like a word of its own.
+			flush()
+			for wl > width {
+				cut := 0
+				for range width {
+					_, size := utf8.DecodeRuneInString(w[cut:])
+					cut += size
+				}
+				lines = append(lines, w[:cut])
+				w, wl = w[cut:], wl-width
+			}
+		}
+		if wl == 0 {
+			continue
 		}
 		if n > 0 {
 			cur.WriteByte(' ')
@@ -787,9 +852,7 @@ func wrapText(s string, width int) []string {
 		cur.WriteString(w)
 		n += wl
 	}
-	if n > 0 {
-		lines = append(lines, cur.String())
-	}
+	flush()
 	return lines
 }
 

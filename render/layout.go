@@ -85,10 +85,10 @@ func (d *drawer) layout(steps []step) []*item {
 		case st.others:
 			it.parent = byNode[st.i]
 			labels[k] = d.othersLabel(st.i)
-			it.col = 2 * (s.Depth() + 1)
+			it.col = 2 * (int(d.depth[st.i]) + 1)
 		default:
 			byNode[st.i] = it
-			it.col = 2 * s.Depth()
+			it.col = 2 * int(d.depth[st.i])
 			if d.cut(s) && s.Size() > 1 {
 				it.node = d.depthStub(st.i)
 			} else {
