@@ -106,3 +106,21 @@ func demoMap(nx, ny int) StrategyMap {
 	}
 	return m
 }
+
+// demoProfiles: the payoffs of the three sourcing routes (invented): build
+// pays 1,150,000 − 380,000 = 770,000 on time (55%), 900,000 − 380,000 =
+// 520,000 if it slips (30%), −380,000 if abandoned (15%); buy pays
+// 1,000,000 − 240,000 = 760,000 (80%) or 780,000 − 240,000 = 540,000
+// (20%); lease pays 12 × 61,000 = 732,000 for sure.
+func demoProfiles() Profiles {
+	return Profiles{
+		Title: "Risk profiles of the sourcing routes",
+		Value: Axis{Label: "Payoff (EUR)"},
+		Options: []Distribution{
+			{Label: "Build in house", Outcomes: []Outcome{{770_000, 0.55}, {520_000, 0.30}, {-380_000, 0.15}}},
+			{Label: "Buy a licence", Outcomes: []Outcome{{760_000, 0.8}, {540_000, 0.2}}},
+			{Label: "Lease per depot", Outcomes: []Outcome{{732_000, 1}}},
+		},
+		References: []Mark{{At: 0, Label: "Loss below 0"}},
+	}
+}

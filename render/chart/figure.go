@@ -28,6 +28,9 @@ type panel struct {
 	// aware are the panel's plotters that need the data area's width
 	// before they are drawn.
 	aware []widthAware
+	// extra is height the panel needs beyond an equal share (for an axis
+	// label the others lack), so that all panels' data areas match.
+	extra vg.Length
 }
 
 // legendItem is one line of a legend: a sample of the style and its name.
@@ -78,11 +81,17 @@ func (f *figure) draw(c draw.Canvas) {
 	}
 
 	n := vg.Length(len(f.panels))
-	each := (area.Size().Y - panelGap*(n-1)) / n
-	for i, p := range f.panels {
+	free := area.Size().Y - panelGap*(n-1)
+	for _, p := range f.panels {
+		free -= p.extra
+	}
+	each := free / n
+	top := area.Max.Y
+	for _, p := range f.panels {
 		pc := area
-		pc.Max.Y = area.Max.Y - vg.Length(i)*(each+panelGap)
-		pc.Min.Y = pc.Max.Y - each
+		pc.Max.Y = top
+		pc.Min.Y = top - each - p.extra
+		top = pc.Min.Y - panelGap
 		if p.heading != "" {
 			sty := textStyle(headSize, true, ink)
 			sty.XAlign, sty.YAlign = draw.XLeft, draw.YTop

@@ -100,6 +100,8 @@ type guides struct {
 	line  draw.LineStyle
 	style text.Style
 	width vg.Length
+	// silent draws the lines and leaves the labels' room empty.
+	silent bool
 }
 
 // widthAware is a plotter whose glyphs depend on the data area's width.
@@ -165,9 +167,12 @@ func (g *guides) Plot(c draw.Canvas, p *plot.Plot) {
 		}
 		c.StrokeLine2(g.line, x, c.Min.Y, x, c.Max.Y)
 		// A thin leader joins a label lifted to a higher row to its line.
-		if b := boxes[i]; b.Min.Y > guideLift {
+		if b := boxes[i]; b.Min.Y > guideLift && !g.silent {
 			c.StrokeLine2(leader, x, c.Max.Y, x, c.Max.Y+b.Min.Y)
 		}
+	}
+	if g.silent {
+		return
 	}
 	// Labels last, each on a paper ground that hides any leader behind it.
 	for i, it := range g.items {
