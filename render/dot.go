@@ -64,6 +64,7 @@ const DefaultWrapWidth = 24
 // options a decision rejects are dashed and carry a double bar.
 const (
 	fontFamily = "Helvetica,Arial,sans-serif"
+	padPt      = 21.6 // margin around the picture, points (0.3 inch)
 
 	colInk      = "#1f1f1f" // text on the optimal path, titles
 	colInkSoft  = "#595959" // text elsewhere (7:1 on white)
@@ -119,6 +120,28 @@ var ErrNoTree = errors.New("render: no solved tree to draw")
 //
 // The output depends only on its inputs.
 func DOT(sol *eval.Solution, opts Options) ([]byte, error) {
+	p, err := Layout(sol, opts)
+	if err != nil {
+		return nil, err
+	}
+	return p.DOT, nil
+}
+
+// Picture is a solved tree laid out for drawing: the DOT text Graphviz
+// draws (as DOT describes it) and the size of the picture that makes.
+type Picture struct {
+	DOT []byte
+	// Width and Height are the picture's size in points (1/72 inch),
+	// margins and heading included, worked out from the layout before
+	// anything is drawn: a program can refuse a picture too big to paint
+	// without painting it. Text is measured with estimated font metrics,
+	// so the picture drawn may differ by a few points.
+	Width, Height float64
+}
+
+// Layout lays the solved tree out: the DOT text of DOT, and the size of
+// the picture. Its errors are DOT's.
+func Layout(sol *eval.Solution, opts Options) (*Picture, error) {
 	if sol == nil || sol.Root == nil || sol.Model == nil {
 		return nil, ErrNoTree
 	}
@@ -147,8 +170,8 @@ func DOT(sol *eval.Solution, opts Options) ([]byte, error) {
 	if len(steps) > limit {
 		return nil, &TooBigError{Nodes: len(steps), Limit: limit}
 	}
-	d.graph(steps)
-	return d.buf.Bytes(), nil
+	w, h := d.graph(steps)
+	return &Picture{DOT: d.buf.Bytes(), Width: w, Height: h}, nil
 }
 
 // drawer writes one graph.
@@ -250,18 +273,24 @@ func (d *drawer) runnerUp(s *eval.Solved) (kid *eval.Solved, ok bool) {
 	return kid, kid != nil
 }
 
-func (d *drawer) graph(steps []step) {
+// graph writes the graph and returns the size of its picture in points.
+func (d *drawer) graph(steps []step) (width, height float64) {
 	b := &d.buf
 	name := d.m.Title
 	if name == "" {
 		name = "Decision tree"
 	}
 	items := d.layout(steps)
+	title, tw, th := d.titleLabel()
+	w, h := extent(items)
+	// Graphviz keeps 8 points clear around what it draws, besides the pad
+	// (measured against its pictures: within a few points).
+	width, height = max(w, tw)+2*padPt+16, h+th+2*padPt+14
 	fmt.Fprintf(b, "digraph %s {\n", quote(name))
 	// layout=nop2: the positions below are final (see layout); Graphviz
 	// only sizes the labels and draws.
-	fmt.Fprintf(b, "\tgraph [layout=nop2 splines=true pad=0.3 bgcolor=%q class=\"forkcast\" fontname=%q labelloc=t labeljust=l label=<%s>]\n",
-		colPaper, fontFamily, d.titleLabel())
+	fmt.Fprintf(b, "\tgraph [layout=nop2 splines=true pad=%g bgcolor=%q class=\"forkcast\" fontname=%q labelloc=t labeljust=l label=<%s>]\n",
+		padPt/72, colPaper, fontFamily, title)
 	fmt.Fprintf(b, "\tnode [fontname=%q fontsize=%g fontcolor=%q fixedsize=shape penwidth=%s color=%q]\n",
 		fontFamily, fontNode, colInk, penNode, colNode)
 	fmt.Fprintf(b, "\tedge [arrowhead=none penwidth=%s color=%q]\n", penOther, colOther)
@@ -300,6 +329,7 @@ func (d *drawer) graph(steps []step) {
 		}
 	}
 	b.WriteString("}\n")
+	return width, height
 }
 
 // step is one thing to draw: node i with the branch into it, or (others)
@@ -346,13 +376,15 @@ func (d *drawer) plan() []step {
 }
 
 // titleLabel is the graph's heading, flush left: the title, the answer
-// and a key to the drawing.
-func (d *drawer) titleLabel() string {
+// and a key to the drawing; with its estimated width and height in points.
+func (d *drawer) titleLabel() (label string, width, height float64) {
 	var h htmlText
 	row := func(size float64, color string, bold bool, text string) {
 		h.raw(`<TR><TD ALIGN="LEFT" CELLPADDING="1">`)
 		h.font(size, color, bold, text)
 		h.raw(`</TD></TR>`)
+		width = max(width, textWidth(text, size, bold)+2)
+		height += size*1.2 + 2
 	}
 	h.raw(`<TABLE BORDER="0" CELLBORDER="0" CELLSPACING="0" CELLPADDING="0">`)
 	if d.m.Title != "" {
@@ -373,7 +405,7 @@ func (d *drawer) titleLabel() string {
 	}
 	row(fontEdge, colInkSoft, false, key)
 	h.raw(`<TR><TD CELLPADDING="1" HEIGHT="8"></TD></TR></TABLE>`)
-	return h.String()
+	return h.String(), width, height + 10
 }
 
 // look is how one branch is drawn.

@@ -181,6 +181,25 @@ func (d *drawer) layout(steps []step) []*item {
 	return items
 }
 
+// extent is the width and height, in points, of what the items cover.
+func extent(items []*item) (w, h float64) {
+	x0, x1, y0, y1 := math.Inf(1), math.Inf(-1), math.Inf(1), math.Inf(-1)
+	for _, it := range items {
+		if !it.st.others {
+			x0, x1 = min(x0, it.x-it.node.left), max(x1, it.x+it.node.right)
+			y0, y1 = min(y0, it.y-it.node.up), max(y1, it.y+it.node.down)
+		}
+		if l := it.label; l != nil {
+			x0, x1 = min(x0, l.x-l.w/2), max(x1, l.x+l.w/2)
+			y0, y1 = min(y0, it.y-l.h/2), max(y1, it.y+l.h/2)
+		}
+	}
+	if x0 > x1 {
+		return 0, 0
+	}
+	return x1 - x0, y1 - y0
+}
+
 // xy is a position in DOT: points, y upwards.
 func xy(x, y float64) string {
 	return num(x) + "," + num(-y)

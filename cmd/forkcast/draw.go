@@ -80,7 +80,7 @@ func drawAction(c *cli.Context) error {
 		return err
 	}
 	opts := render.Options{PolicyOnly: c.Bool("policy-only"), MaxDepth: c.Int("depth"), WrapWidth: c.Int("wrap")}
-	dot, err := render.DOT(sol, opts)
+	laid, err := render.Layout(sol, opts)
 	if err != nil {
 		var big *render.TooBigError
 		if errors.As(err, &big) {
@@ -88,16 +88,24 @@ func drawAction(c *cli.Context) error {
 		}
 		return modelErr("%s: %v", l.Name, err)
 	}
+	// A PNG too big to paint is refused from the layout's size, before
+	// any drawing; like a drawing of too many nodes, that asks for other
+	// words on the command line (SVG, or less of the tree).
+	if format == drawFormat(graphviz.PNG) {
+		if err := graphviz.CheckPNG(laid); err != nil {
+			return usageErr("%s: %v (--policy-only, --depth N)", l.Name, err)
+		}
+	}
 	var pic bytes.Buffer
 	if format == formatDOT {
-		pic.Write(dot)
+		pic.Write(laid.DOT)
 	} else {
 		r, err := graphviz.NewRenderer(c.Context)
 		if err != nil {
 			return modelErr("%v", err)
 		}
 		defer r.Close()
-		if err := r.Render(c.Context, dot, graphviz.Format(format), &pic); err != nil {
+		if err := r.RenderPicture(c.Context, laid, graphviz.Format(format), &pic); err != nil {
 			return modelErr("%s: %v", l.Name, err)
 		}
 	}

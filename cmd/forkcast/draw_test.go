@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/xml"
+	"fmt"
 	"io"
 	"os"
 	"os/exec"
@@ -91,6 +92,12 @@ func TestDrawDefaultOutput(t *testing.T) {
 
 func TestDrawErrors(t *testing.T) {
 	bad := writeFile(t, "bad.fork", "decision \"d\"\n  \"a\"  cost nope\n")
+	var many strings.Builder
+	many.WriteString("decision \"Many options\"\n")
+	for i := range 1200 {
+		fmt.Fprintf(&many, "  \"Option %d\"  gain %d\n", i, i)
+	}
+	tall := writeFile(t, "tall.fork", many.String())
 	dir := t.TempDir()
 	out := filepath.Join(dir, "x.svg")
 	jpg, png, ctl := filepath.Join(dir, "out.jpg"), filepath.Join(dir, "out.png"), filepath.Join(dir, "\x1b[2J.jpg")
@@ -108,6 +115,7 @@ func TestDrawErrors(t *testing.T) {
 		{"unsupported extension", []string{"draw", "example:sourcing", "-o", jpg}, 2, "draw writes SVG (.svg), PNG (.png) or Graphviz DOT (.dot, .gv), not .jpg"},
 		{"extension against format", []string{"draw", "example:sourcing", "--format", "svg", "-o", png}, 2, "is PNG by its extension, but --format says SVG"},
 		{"control characters in OUT", []string{"draw", "example:sourcing", "-o", ctl}, 2, `\x1b[2J.jpg`},
+		{"png too big", []string{"draw", tall, "-o", filepath.Join(dir, "tall.png")}, 2, "pixels is too big (at most 32768 a side)"},
 		{"missing dir", []string{"draw", "example:sourcing", "-o", filepath.Join(t.TempDir(), "no", "such", "x.svg")}, 1, "no such file or directory"},
 	} {
 		t.Run(c.name, func(t *testing.T) {

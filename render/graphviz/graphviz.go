@@ -15,6 +15,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"strings"
 
 	"github.com/forkcast/forkcast/eval"
@@ -36,6 +37,29 @@ const (
 // PNGDPI is the resolution of PNG output: twice the 72 dpi of the layout,
 // sharp on high-density screens and in print.
 const PNGDPI = 144
+
+// MaxPNGSide is the longest side, in pixels, of a PNG a Renderer draws:
+// 32,768, about 5.8 m at PNGDPI.
+const MaxPNGSide = gv.MaxPixels
+
+// PNGTooBigError is the refusal of a PNG with a side longer than
+// MaxPNGSide (Width and Height are in pixels).
+type PNGTooBigError = gv.TooBigError
+
+// PNGSize is the size in pixels of the PNG of a laid-out picture.
+func PNGSize(p *render.Picture) (width, height int) {
+	return int(math.Ceil(p.Width * PNGDPI / 72)), int(math.Ceil(p.Height * PNGDPI / 72))
+}
+
+// CheckPNG returns a *PNGTooBigError when the PNG of the picture would
+// have a side longer than MaxPNGSide. It works from the layout's size
+// alone: nothing is laid out by Graphviz or painted.
+func CheckPNG(p *render.Picture) error {
+	if w, h := PNGSize(p); w > MaxPNGSide || h > MaxPNGSide {
+		return &PNGTooBigError{Width: w, Height: h}
+	}
+	return nil
+}
 
 // ParseFormat reads a format name, "svg" or "png" (any case).
 func ParseFormat(s string) (Format, error) {
@@ -90,11 +114,24 @@ func (r *Renderer) Render(ctx context.Context, dot []byte, format Format, w io.W
 	return r.c.Render(ctx, dot, string(format), dpi, w)
 }
 
-// Draw is render.DOT followed by Render: the solved tree as a picture.
+// RenderPicture writes a picture laid out by render.Layout in the
+// format. A PNG too big to paint is refused from the layout's size (a
+// *PNGTooBigError) before Graphviz is called.
+func (r *Renderer) RenderPicture(ctx context.Context, p *render.Picture, format Format, w io.Writer) error {
+	if format == PNG {
+		if err := CheckPNG(p); err != nil {
+			return err
+		}
+	}
+	return r.Render(ctx, p.DOT, format, w)
+}
+
+// Draw is render.Layout followed by RenderPicture: the solved tree as a
+// picture.
 func (r *Renderer) Draw(ctx context.Context, sol *eval.Solution, opts render.Options, format Format, w io.Writer) error {
-	dot, err := render.DOT(sol, opts)
+	p, err := render.Layout(sol, opts)
 	if err != nil {
 		return err
 	}
-	return r.Render(ctx, dot, format, w)
+	return r.RenderPicture(ctx, p, format, w)
 }

@@ -6,6 +6,7 @@ import (
 	"encoding/xml"
 	"errors"
 	"fmt"
+	"image/png"
 	"io"
 	"math"
 	"os"
@@ -638,12 +639,58 @@ func TestPNG(t *testing.T) {
 			tree.Choice("Stop", decimal.Zero, nil))
 	}
 	buf.Reset()
-	err := renderer(t).Draw(context.Background(), fixtures.Solve(t, &tree.Model{Root: root}), Options{}, PNG, &buf)
-	if err == nil || !strings.Contains(err.Error(), "too big") || buf.Len() != 0 {
+	// The refusal comes from the layout's size, before any painting: a
+	// renderer of its own counts the pages its PNG painter begins.
+	own, err := NewRenderer(context.Background())
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer own.Close()
+	huge := fixtures.Solve(t, &tree.Model{Root: root})
+	err = own.Draw(context.Background(), huge, Options{}, PNG, &buf)
+	var big *PNGTooBigError
+	if !errors.As(err, &big) || big.Width <= MaxPNGSide || !strings.Contains(err.Error(), "too big") || buf.Len() != 0 {
 		t.Errorf("a huge PNG: err %v, %d bytes written", err, buf.Len())
 	}
-	if err := renderer(t).Draw(context.Background(), fixtures.Solve(t, fixtures.Tie()), Options{}, PNG, io.Discard); err != nil {
+	if n := own.c.PNGPages(); n != 0 {
+		t.Errorf("the PNG painter began %d pages before the refusal", n)
+	}
+	// DOT from elsewhere has no layout size: the painter refuses it at
+	// its first page (a box 300 inches wide is 43,200 pixels at 144 dpi),
+	// and paints nothing.
+	if err := own.Render(context.Background(), []byte("digraph { a [shape=box width=300 height=1] }"), PNG, &buf); !errors.As(err, &big) || buf.Len() != 0 {
+		t.Errorf("a huge PNG from DOT: err %v, %d bytes written", err, buf.Len())
+	}
+	if err := own.Draw(context.Background(), fixtures.Solve(t, fixtures.Tie()), Options{}, PNG, io.Discard); err != nil {
 		t.Errorf("a PNG after a refused one: %v", err)
+	}
+}
+
+// The size the layout predicts is the size of the PNG drawn, to within a
+// few points, so that the refusal from it is the right one.
+func TestPNGSizeFromLayout(t *testing.T) {
+	sols := []*eval.Solution{fixtures.Solve(t, fixtures.Tie()), fixtures.Solve(t, fixtures.Odd()), fixtures.Solve(t, fixtures.Generated(60))}
+	for _, name := range examples.Names() {
+		sols = append(sols, loadExample(t, name))
+	}
+	for _, sol := range sols {
+		pic, err := render.Layout(sol, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var buf bytes.Buffer
+		if err := renderer(t).RenderPicture(context.Background(), pic, PNG, &buf); err != nil {
+			t.Fatal(err)
+		}
+		cfg, err := png.DecodeConfig(&buf)
+		if err != nil {
+			t.Fatal(err)
+		}
+		w, h := PNGSize(pic)
+		// 8 points at 144 dpi are 16 pixels.
+		if math.Abs(float64(w-cfg.Width)) > 16 || math.Abs(float64(h-cfg.Height)) > 16 {
+			t.Errorf("%q: the layout predicts %d × %d pixels, the PNG is %d × %d", sol.Model.Title, w, h, cfg.Width, cfg.Height)
+		}
 	}
 }
 

@@ -140,6 +140,13 @@ func (c *Context) render(ctx context.Context, dot []byte, format string, dpi flo
 	return nil
 }
 
+// PNGPages is how many pages the PNG painter has begun in this context.
+func (c *Context) PNGPages() int {
+	mu.Lock()
+	defer mu.Unlock()
+	return c.png.pages
+}
+
 func recoverInto(err *error) {
 	if r := recover(); r != nil {
 		*err = fmt.Errorf("graphviz failed: %v", r)

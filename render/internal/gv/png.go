@@ -33,6 +33,9 @@ type pngEngine struct {
 	// callback into Go leaves go-graphviz's WebAssembly in a bad state, so
 	// the engine draws nothing instead and Render reports err.
 	err error
+	// pages counts the pages begun, for tests that check a refusal came
+	// before any painting.
+	pages int
 }
 
 func newPNGEngine() *pngEngine {
@@ -54,8 +57,17 @@ func plugins(ctx context.Context) ([]gvc.Plugin, *pngEngine, error) {
 	return []gvc.Plugin{render, device}, engine, nil
 }
 
-// maxPixels is the longest side of a PNG drawn.
-const maxPixels = 1 << 15
+// MaxPixels is the longest side of a PNG drawn.
+const MaxPixels = 1 << 15
+
+// TooBigError is the refusal of a PNG with a side longer than MaxPixels.
+type TooBigError struct {
+	Width, Height int // pixels
+}
+
+func (e *TooBigError) Error() string {
+	return fmt.Sprintf("a PNG of %d × %d pixels is too big (at most %d a side); draw SVG, or less of the tree", e.Width, e.Height, MaxPixels)
+}
 
 func (e *pngEngine) x(job *gvc.Job, v float64) float64 { return job.Scale().X() * v }
 func (e *pngEngine) y(job *gvc.Job, v float64) float64 { return job.Scale().Y() * -v }
@@ -64,8 +76,11 @@ func (e *pngEngine) y(job *gvc.Job, v float64) float64 { return job.Scale().Y() 
 func (e *pngEngine) BeginPage(_ context.Context, job *gvc.Job) error {
 	w, h := int(job.Width()), int(job.Height())
 	e.err = nil
-	if w <= 0 || h <= 0 || w > maxPixels || h > maxPixels {
-		e.err = fmt.Errorf("a PNG of %d × %d pixels is too big (at most %d a side); draw SVG, or less of the tree", w, h, maxPixels)
+	e.pages++
+	if w <= 0 || h <= 0 || w > MaxPixels || h > MaxPixels {
+		// A last line of defence for DOT from elsewhere: a picture laid
+		// out by package render is refused before Graphviz is called.
+		e.err = &TooBigError{Width: w, Height: h}
 		w, h = 1, 1
 	}
 	e.gc = gg.NewContext(w, h)
@@ -194,8 +209,11 @@ const htmlBold = 1
 // TextSpan draws one span of text: p is on its baseline, at its left end,
 // centre or right end as the span is justified.
 func (e *pngEngine) TextSpan(_ context.Context, job *gvc.Job, p *gvc.PointFloat, span *gvc.TextSpan) error {
+	if e.err != nil {
+		return nil
+	}
 	c, ok := rgba(job.Object().PenColor())
-	if !ok || e.err != nil {
+	if !ok {
 		return nil
 	}
 	f := span.Font()
