@@ -94,13 +94,6 @@ type useRef struct {
 // model.
 const kindUse tree.Kind = 0xff
 
-// nodeRef is a node that names an uncertainty or a test.
-type nodeRef struct {
-	n     *tree.Node
-	pos   tree.Pos // of the name
-	width int
-}
-
 // pendingCash is a branch's gain and cost, combined into Branch.Cash once
 // the objective is known (the objective line may come last).
 type pendingCash struct {
@@ -110,20 +103,29 @@ type pendingCash struct {
 }
 
 type builder struct {
-	limit      int
-	m          *tree.Model
-	ds         tree.Diagnostics
-	stack      []*frame
-	headers    map[lineKind]int
-	subs       map[string]*subtreeDef
-	subOrder   []*subtreeDef
-	uses       []*useRef
-	useAt      map[*tree.Node]*useRef // placeholder → its use line
-	refs       []nodeRef              // chance NAME and test NAME nodes, checked in finish
-	cash       []pendingCash
-	rootLine   int
-	sawNodeTop bool
-	firstLine  int
+	limit    int
+	m        *tree.Model
+	ds       tree.Diagnostics
+	stack    []*frame
+	headers  map[lineKind]int
+	subs     map[string]*subtreeDef
+	subOrder []*subtreeDef
+	uses     []*useRef
+	useAt    map[*tree.Node]*useRef // placeholder → its use line
+	refs     []declRef              // chance NAME, test NAME and on NAME, checked in finish
+	lets     declared               // every let, uncertainty and test declared in the file
+	uncs     declared
+	tests    declared
+	// pendingNames are the names met in expressions before any let defined
+	// them; percentLets are the lets that add a bare percentage.
+	pendingNames []nameRef
+	percentLets  map[string]*percentLet
+	chances      []plainChance // plain chance nodes as written
+	strays       map[*frame][]strayItem
+	cash         []pendingCash
+	rootLine     int
+	sawNodeTop   bool
+	firstLine    int
 }
 
 func (b *builder) errAt(p tree.Pos, n int, hint, format string, args ...any) {
@@ -173,6 +175,7 @@ func (b *builder) add(l *srcLine) {
 	}
 	w := l.indent
 	for len(b.stack) > 0 && b.stack[len(b.stack)-1].indent >= w {
+		b.closeFrame(b.stack[len(b.stack)-1])
 		b.stack = b.stack[:len(b.stack)-1]
 	}
 	var parent *frame
@@ -246,6 +249,7 @@ func (b *builder) place(l *srcLine, parent *frame) *frame {
 	if parent == nil && (l.kind == kDecision || l.kind == kChance || l.kind == kUse || l.kind == kTest && !isTestDecl(l)) {
 		b.sawNodeTop = true
 	}
+	b.declare(l)
 	first := l.first()
 	switch l.kind {
 	case kUnknown:
@@ -426,9 +430,16 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 		}
 		p := &tree.Param{Name: g.Name.Value, Pos: tokPos(g.Name)}
 		p.Expr = b.expr(g.Value, ctxLet, l.lx)
+		if pa := findPercentAdded(g.Value, l.lx); pa != nil && !quiet {
+			if b.percentLets == nil {
+				b.percentLets = map[string]*percentLet{}
+			}
+			b.percentLets[p.Name] = &percentLet{name: p.Name, p: pa}
+		}
 		if g.In != nil {
 			p.Low = b.expr(g.Low, ctxLet, l.lx)
 			p.High = b.expr(g.High, ctxLet, l.lx)
+			b.rangePercent(p.Name, g.Value, g.Low, g.High, l.lx)
 		}
 		if !quiet {
 			b.m.Params = append(b.m.Params, p)
@@ -449,6 +460,7 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 		return &frame{kind: fUnc, what: "uncertainty " + u.Name, unc: u}
 	case *gTest:
 		if g.On != nil {
+			b.refs = append(b.refs, declRef{name: g.Unc.Value, pos: tokPos(*g.Unc), width: tokWidth(l.lx, *g.Unc), kind: refOn, test: g.Name.Value})
 			if !quiet && parent != nil {
 				b.errAt(l.pos(), l.firstWidth(), "declare the test at the top level; in the tree, run it with `test "+g.Name.Value+"`",
 					"a test is declared at the top level, not under %s", parent.desc())
@@ -460,6 +472,9 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 			}
 			if g.Cost != nil {
 				t.Cost = b.expr(g.Cost, ctxCash, l.lx)
+				if pa := findPercentAdded(g.Cost, l.lx); pa != nil {
+					b.warnPercentAdded(pa, "cost ")
+				}
 			}
 			if quiet {
 				return brokenFrame(owner)
@@ -468,7 +483,7 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 			return &frame{kind: fTestDecl, what: "test " + t.Name, test: t}
 		}
 		n := &tree.Node{Kind: tree.KindChance, Test: g.Name.Value, Pos: tokPos(g.Kw)}
-		b.refs = append(b.refs, nodeRef{n, tokPos(g.Name), tokWidth(l.lx, g.Name)})
+		b.refs = append(b.refs, declRef{name: g.Name.Value, pos: tokPos(g.Name), width: tokWidth(l.lx, g.Name), kind: refTest})
 		if g.Label != nil {
 			n.Label = b.labelTok(l, *g.Label)
 		}
@@ -501,7 +516,7 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 		n := &tree.Node{Kind: tree.KindChance, Pos: tokPos(g.Kw)}
 		if g.Name != nil {
 			n.Uncertainty = g.Name.Value
-			b.refs = append(b.refs, nodeRef{n, tokPos(*g.Name), tokWidth(l.lx, *g.Name)})
+			b.refs = append(b.refs, declRef{name: g.Name.Value, pos: tokPos(*g.Name), width: tokWidth(l.lx, *g.Name), kind: refChance})
 		}
 		if g.Label != nil {
 			n.Label = b.labelTok(l, *g.Label)
@@ -586,6 +601,13 @@ func (b *builder) placeNode(l *srcLine, parent *frame, n *tree.Node, noun, name 
 		f.detached = true
 		return f
 	}
+	if n.Kind == tree.KindChance && n.Uncertainty == "" && n.Test == "" {
+		defer func() {
+			if !f.detached {
+				b.chances = append(b.chances, plainChance{n: n, line: l.num, width: l.lx.endCol - l.first().Pos.Column})
+			}
+		}()
+	}
 	if parent == nil {
 		if b.m.Root == nil && b.rootLine == 0 {
 			b.m.Root, b.rootLine = n, l.num
@@ -659,8 +681,8 @@ func (b *builder) placeItem(l *srcLine, g *gItem, parent *frame, role itemRole, 
 		b.reading(l, g, label, parent)
 		return &frame{kind: fLeaf, noun: "reading", label: label, hasLabel: true}
 	case fBranch:
-		b.errAt(lp, lw, fmt.Sprintf("a branch leads to a node; put a decision or chance line under %s and indent the branches under it", parent.desc()),
-			"a branch where a node is expected")
+		b.addStray(parent, strayItem{pos: lp, width: lw, indent: l.indent, label: label,
+			prob: g.tail().Amount != nil, afterNode: parent.hasNode})
 	case fSubtree:
 		b.errAt(lp, lw, "a subtree holds one node: put a decision or chance line under the subtree line, and the branches under that",
 			"a branch where a node is expected")
@@ -706,6 +728,9 @@ func (b *builder) branch(l *srcLine, g *gItem, label string) *tree.Branch {
 	p.b = br
 	for _, c := range g.tail().Cash {
 		e := b.expr(c.Amount, ctxCash, l.lx)
+		if pa := findPercentAdded(c.Amount, l.lx); pa != nil {
+			b.warnPercentAdded(pa, c.Kind.Value+" ")
+		}
 		slot := &p.gain
 		if c.Kind.Value == "cost" {
 			slot = &p.cost
@@ -829,19 +854,20 @@ const (
 )
 
 func (b *builder) expr(e exprValue, c exprCtx, lx lexed) tree.Expr {
-	x, _ := b.lowerExpr(e, c, lx)
+	x, _ := b.lowerExpr(e, c, lx, true)
 	return x
 }
 
 func (b *builder) primary(p primaryValue, c exprCtx, lx lexed) tree.Expr {
-	x, _ := b.lowerExpr(p, c, lx)
+	x, _ := b.lowerExpr(p, c, lx, true)
 	return x
 }
 
 // lowerExpr turns a parsed expression into a tree.Expr; it also returns
 // where the expression starts (for a parenthesised one, at the parenthesis).
-// It recurses along the expression, whose nesting the lexer bounds.
-func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed) (tree.Expr, tree.Pos) {
+// It recurses along the expression, whose nesting the lexer bounds. top
+// says that e is a whole term of the expression's sum (parentheses aside).
+func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed, top bool) (tree.Expr, tree.Pos) {
 	switch e := e.(type) {
 	case *eNum:
 		at := tokPos(e.Tok)
@@ -866,28 +892,30 @@ func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed) (tree.Expr, tree.P
 		return &tree.Number{At: at, Value: decimal.Zero, Text: "rest"}, at
 	case *eName:
 		at := tokPos(e.Tok)
+		b.useName(e.Tok, lx, c, top)
 		return &tree.Name{At: at, Name: e.Tok.Value}, at
 	case *eCall:
 		at := tokPos(e.Name)
 		args := make([]tree.Expr, len(e.Args))
 		for i, a := range e.Args {
-			args[i], _ = b.lowerExpr(a, c, lx)
+			args[i], _ = b.lowerExpr(a, c, lx, false)
 		}
 		return &tree.Call{At: at, Func: e.Name.Value, Args: args}, at
 	case *eParen:
 		at := tokPos(e.Open)
-		x, _ := b.lowerExpr(e.X, c, lx)
+		x, _ := b.lowerExpr(e.X, c, lx, top)
 		if bin, ok := x.(*tree.Binary); ok {
 			bin.At = at
 		}
 		return x, at
 	case *eNeg:
 		at := tokPos(e.Tok)
-		x, _ := b.lowerExpr(e.X, c, lx)
+		x, _ := b.lowerExpr(e.X, c, lx, false)
 		return &tree.Unary{At: at, Op: '-', X: x}, at
 	case *eBin:
-		x, at := b.lowerExpr(e.X, c, lx)
-		y, _ := b.lowerExpr(e.Y, c, lx)
+		sum := top && (e.Op.Value == "+" || e.Op.Value == "-")
+		x, at := b.lowerExpr(e.X, c, lx, sum)
+		y, _ := b.lowerExpr(e.Y, c, lx, sum)
 		return &tree.Binary{At: at, Op: e.Op.Value[0], X: x, Y: y}, at
 	}
 	return &tree.Number{Value: decimal.Zero}, tree.Pos{}
@@ -895,6 +923,10 @@ func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed) (tree.Expr, tree.P
 
 // finish runs the checks that need the whole file.
 func (b *builder) finish() {
+	for i := len(b.stack) - 1; i >= 0; i-- {
+		b.closeFrame(b.stack[i])
+	}
+	b.stack = nil
 	switch {
 	case b.firstLine == 0 && len(b.ds) == 0:
 		b.errAt(tree.Pos{Line: 1, Col: 1}, 1, "a model needs at least a tree: a `decision` line with its options indented beneath it",
@@ -916,7 +948,14 @@ func (b *builder) finish() {
 			}
 		}
 	}
+	b.checkNames()
 	b.checkRefs()
+	for _, pl := range b.percentLets {
+		if pl.money {
+			b.warnPercentAdded(pl.p, "let "+pl.name+" = ")
+		}
+	}
+	b.repeatedChance()
 	for _, d := range b.subOrder {
 		if d.root == nil && b.subs[d.name] == d {
 			d.broken = true
@@ -925,21 +964,6 @@ func (b *builder) finish() {
 		}
 	}
 	b.expand()
-}
-
-// checkRefs catches a test run with `chance` and an uncertainty run with
-// `test`: names Resolve would only call unknown.
-func (b *builder) checkRefs() {
-	for _, r := range b.refs {
-		switch n := r.n; {
-		case n.Uncertainty != "" && b.m.Uncertainty(n.Uncertainty) == nil && b.m.TestNamed(n.Uncertainty) != nil:
-			b.errAt(r.pos, r.width, "a node that runs a test is written `test "+n.Uncertainty+"`; its branches are the test's readings",
-				"%q is a test, not an uncertainty", n.Uncertainty)
-		case n.Test != "" && b.m.TestNamed(n.Test) == nil && b.m.Uncertainty(n.Test) != nil:
-			b.errAt(r.pos, r.width, "a chance node on an uncertainty is written `chance "+n.Test+"`; its branches are the uncertainty's states",
-				"%q is an uncertainty, not a test", n.Test)
-		}
-	}
 }
 
 // combineCash turns gain and cost into one amount in the objective's terms:

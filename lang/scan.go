@@ -2,6 +2,7 @@ package lang
 
 import (
 	"bytes"
+	"fmt"
 
 	"github.com/alecthomas/participle/v2/lexer"
 	"github.com/forkcast/forkcast/tree"
@@ -37,6 +38,10 @@ func scan(src []byte) []*srcLine {
 	var out []*srcLine
 	a := &arena{toks: make([]lexer.Token, 0, len(src)/8+16), width: make([]int, 0, len(src)/8+16)}
 	num := 0
+	// A file indented with tabs has them on most lines: the first is
+	// reported, and the others counted in a note on it.
+	var firstTab *srcLine
+	moreTabs, nextTab, lastTab := 0, 0, 0
 	for len(src) > 0 || num == 0 {
 		num++
 		var raw []byte
@@ -59,11 +64,19 @@ func scan(src []byte) []*srcLine {
 			continue
 		}
 		l := &srcLine{num: num, indent: n, tab: tabAt >= 0}
-		if l.tab {
+		switch {
+		case l.tab && firstTab == nil:
 			l.diags.Add(tree.Pos{Line: num, Col: tabAt + 1},
 				"indent with spaces only (two per level is usual); most editors can be set to insert spaces for the Tab key",
 				"tab character in the indentation")
 			l.diags[len(l.diags)-1].Len = 1
+			firstTab = l
+		case l.tab:
+			moreTabs++
+			if nextTab == 0 {
+				nextTab = num
+			}
+			lastTab = num
 		}
 		l.lx = a.lexLine(string(content), num, n+1, &l.diags)
 		if len(l.lx.toks) == 0 {
@@ -75,6 +88,12 @@ func scan(src []byte) []*srcLine {
 			continue
 		}
 		out = append(out, l)
+	}
+	switch {
+	case moreTabs == 1:
+		firstTab.diags[0].Note = fmt.Sprintf("1 more line is indented with a tab: line %d", nextTab)
+	case moreTabs > 1:
+		firstTab.diags[0].Note = fmt.Sprintf("%d more lines are indented with tabs, from line %d to line %d", moreTabs, nextTab, lastTab)
 	}
 	return out
 }

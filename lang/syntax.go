@@ -191,6 +191,15 @@ func syntaxError(err error, k lineKind, role itemRole, lx lexed) tree.Diagnostic
 	exp := expectedPhrase(ute.Message())
 	found := describe(t)
 	prevNumber := idx > 0 && (lx.toks[idx-1].Type == tokNumber || lx.toks[idx-1].Type == tokIdent || lx.toks[idx-1].Value == ")")
+	if num, from, to, ok := strayPercent(lx, idx); ok {
+		d.Pos, d.Len = tokPos(lx.toks[from]), lx.toks[to].Pos.Column+lx.width[to]-lx.toks[from].Pos.Column
+		d.Summary = "a space between the number and its percent sign"
+		if from == idx {
+			d.Summary = "the percent sign comes before the number"
+		}
+		d.Hint = "write the percent sign right after the number: " + strings.TrimSuffix(num, "%") + "%"
+		return d
+	}
 	switch {
 	case k == kLet && exp == "`..` between the low and high ends of the range":
 		d.Summary = fmt.Sprintf("expected `..` between the low and high ends of the range, found %s", the(found))
@@ -234,6 +243,24 @@ func syntaxError(err error, k lineKind, role itemRole, lx lexed) tree.Diagnostic
 		}
 	}
 	return d
+}
+
+// strayPercent recognises a % written before its number (%65) or apart
+// from it (65 %) at token idx; it returns the number and the span of
+// tokens to mark.
+func strayPercent(lx lexed, idx int) (num string, from, to int, ok bool) {
+	if idx < 0 || lx.toks[idx].Type != tokPunct || lx.toks[idx].Value != "%" {
+		return "", 0, 0, false
+	}
+	next := idx+1 < len(lx.toks) && lx.toks[idx+1].Type == tokNumber
+	prev := idx > 0 && lx.toks[idx-1].Type == tokNumber
+	switch {
+	case next && adjacent(lx, idx, idx+1), next && !prev:
+		return lx.toks[idx+1].Value, idx, idx + 1, true
+	case prev:
+		return lx.toks[idx-1].Value, idx - 1, idx, true
+	}
+	return "", 0, 0, false
 }
 
 func tokenIndex(lx lexed, t lexer.Token) int {
@@ -292,12 +319,15 @@ func suggest(w string, list []string) string {
 	return best
 }
 
-// distance is the Levenshtein distance between two short words.
+// distance is the edit distance between two short words, counting a swap
+// of two neighbouring letters as one edit (the usual typo: rets for rest).
 func distance(a, b string) int {
 	ra, rb := []rune(a), []rune(b)
 	if len(ra) > 64 || len(rb) > 64 {
 		return 99
 	}
+	// Three rows: the one before the previous is needed for swaps.
+	prev2 := make([]int, len(rb)+1)
 	prev := make([]int, len(rb)+1)
 	cur := make([]int, len(rb)+1)
 	for j := range prev {
@@ -311,8 +341,11 @@ func distance(a, b string) int {
 				c = 0
 			}
 			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+c)
+			if i > 1 && j > 1 && ra[i-1] == rb[j-2] && ra[i-2] == rb[j-1] {
+				cur[j] = min(cur[j], prev2[j-2]+1)
+			}
 		}
-		prev, cur = cur, prev
+		prev2, prev, cur = prev, cur, prev2
 	}
 	return prev[len(rb)]
 }

@@ -58,6 +58,10 @@ type Diagnostic struct {
 	Len      int    // how many characters it spans on that line (0: just Pos)
 	Summary  string // what is wrong, one line, no trailing period
 	Hint     string // what to do about it; may be empty
+	// Note is one more line printed after the hint, for what the
+	// diagnostic stands for beyond its own position (the same mistake on
+	// other lines, say); may be empty.
+	Note string
 }
 
 // Error formats the diagnostic as "line:col: message" (warnings say so).
@@ -192,6 +196,9 @@ func (ds Diagnostics) Print(w io.Writer, file string, src []byte) {
 		}
 		if d.Hint != "" {
 			fmt.Fprintf(w, "    hint: %s\n", d.Hint)
+		}
+		if d.Note != "" {
+			fmt.Fprintf(w, "    note: %s\n", d.Note)
 		}
 	}
 }
