@@ -815,26 +815,44 @@ func pts(v float64) string {
 	return strconv.Itoa(int(v + 0.999))
 }
 
-// quote makes a DOT quoted string. DOT's only escape is \" and a trailing
-// backslash would escape the closing quote, so backslashes become slashes.
+// quote makes a DOT quoted string of the graph's name. DOT's only escape
+// is \" and a trailing backslash would escape the closing quote, so
+// backslashes become slashes. Graphviz writes the name into the SVG's
+// <title> escaping <, > and quotes but keeping anything that looks like
+// an entity ("&#0;" would make the SVG ill-formed), so & is escaped here.
 func quote(s string) string {
 	s = clean(s)
 	s = strings.ReplaceAll(s, `\`, "/")
+	s = strings.ReplaceAll(s, "&", "&amp;")
 	s = strings.ReplaceAll(s, `"`, `\"`)
 	return `"` + s + `"`
 }
 
-// clean makes a label safe to show: valid UTF-8, control characters (line
-// breaks included) turned into spaces, runs of spaces folded.
+// clean makes a label safe to show in a picture, in a terminal and in
+// XML: valid UTF-8; control characters (line breaks included), the
+// bidirectional embedding, override and isolate controls (which can make
+// text read in another order than it is stored) and the two characters
+// XML forbids (U+FFFE, U+FFFF) turned into spaces; runs of spaces folded.
 func clean(s string) string {
 	s = strings.ToValidUTF8(s, "\uFFFD")
 	s = strings.Map(func(r rune) rune {
-		if unicode.IsControl(r) || r == '\u2028' || r == '\u2029' {
+		if unsafeRune(r) {
 			return ' '
 		}
 		return r
 	}, s)
 	return strings.Join(strings.Fields(s), " ")
+}
+
+// unsafeRune reports whether clean replaces r.
+func unsafeRune(r rune) bool {
+	switch {
+	case unicode.IsControl(r), r == '\u2028', r == '\u2029', r == 0xFFFE, r == 0xFFFF:
+		return true
+	case r >= '\u202a' && r <= '\u202e', r >= '\u2066' && r <= '\u2069':
+		return true
+	}
+	return false
 }
 
 // wrapText breaks s at spaces into lines of at most width characters; a

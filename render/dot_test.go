@@ -35,6 +35,23 @@ func TestCash(t *testing.T) {
 	}
 }
 
+// A currency code from a model can hold anything: what Money prints is
+// safe for a terminal (no control character, no bidirectional override).
+func TestMoneyCodeIsSafe(t *testing.T) {
+	for _, c := range []struct{ code, want string }{
+		{"EUR", "1,234.50 EUR"},
+		{"", "1,234.50"},
+		{"E\x1b[2JUR", "1,234.50 E [2JUR"},
+		{"\u202eRUE\x00", "1,234.50 RUE"},
+		{"\x07", "1,234.50"},
+		{"€ euro", "1,234.50 € euro"},
+	} {
+		if got := Money(decimal.RequireFromString("1234.5"), c.code); got != c.want {
+			t.Errorf("Money(1234.5, %q) = %q, want %q", c.code, got, c.want)
+		}
+	}
+}
+
 func TestWrapText(t *testing.T) {
 	for _, c := range []struct {
 		in    string

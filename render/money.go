@@ -29,12 +29,27 @@ func MinorUnit(currency string) int32 {
 // Money formats an amount rounded half away from zero to the currency's
 // minor unit, with thousands separators and the code after it:
 // "1,234,567.89 EUR". A negative amount starts with a minus sign.
+//
+// The code is shown as it is safe to print: a code from a model file can
+// hold anything, and control characters in it (a terminal escape
+// sequence) are turned into spaces, as in labels.
 func Money(d decimal.Decimal, currency string) string {
 	s := Amount(d, currency)
-	if currency != "" {
-		s += " " + currency
+	if c := safeCode(currency); c != "" {
+		s += " " + c
 	}
 	return s
+}
+
+// safeCode is a currency code as Money shows it: itself when it is
+// printable ASCII (every real code), else cleaned as labels are.
+func safeCode(c string) string {
+	for i := 0; i < len(c); i++ {
+		if c[i] <= ' ' || c[i] >= 0x7f {
+			return clean(c)
+		}
+	}
+	return c
 }
 
 // Amount is Money without the currency code.
