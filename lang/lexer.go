@@ -147,6 +147,7 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 			// are reported and read as straight ones.
 			j, n := i+size, 1
 			end, closed, curly := len(s), false, r != '"'
+			control := false // reported once a label
 			for j < len(s) {
 				q, qs := utf8.DecodeRuneInString(s[j:])
 				if q == '\\' && j+1 < len(s) && (s[j+1] == '"' || s[j+1] == '\\') {
@@ -163,6 +164,12 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 				if q == utf8.RuneError && qs == 1 && !badUTF8 {
 					errAt(col+n, 1, "save the file as UTF-8 text", "invalid UTF-8 in a label")
 					badUTF8 = true
+				}
+				if unicode.IsControl(q) && !control {
+					// NUL, ESC, BEL and the like: invisible, and a terminal
+					// that prints the label would obey them.
+					errAt(col+n, 1, controlHint(q), "%s in a label", controlName(q))
+					control = true
 				}
 				j += qs
 				n++
@@ -274,6 +281,10 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 			hint = "no colon is needed: write the label, then the probability or amount"
 		case '\u00a0':
 			hint = "a non-breaking space crept in (often pasted from a document); retype it as a plain space"
+		default:
+			if unicode.IsControl(r) {
+				hint = controlHint(r)
+			}
 		case '–', '—':
 			hint = "a range is written LOW .. HIGH; a subtraction uses the plain minus sign -"
 		case '‘', '’', '\'':
@@ -305,4 +316,21 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 		minusRun = 0
 	}
 	return out
+}
+
+// controlName names a control character in a message: "the control
+// character ESC (U+001B)".
+func controlName(r rune) string {
+	names := map[rune]string{0: "NUL", 7: "BEL", 8: "BS", 9: "TAB", 0x0b: "VT", 0x0c: "FF", 0x1b: "ESC", 0x7f: "DEL"}
+	if n, ok := names[r]; ok {
+		return fmt.Sprintf("the control character %s (U+%04X)", n, r)
+	}
+	return fmt.Sprintf("the control character U+%04X", r)
+}
+
+func controlHint(r rune) string {
+	if r == '\t' {
+		return "write a space instead of the tab"
+	}
+	return "remove it: it is invisible, and a terminal showing the text would act on it (it often comes with text copied from a terminal or another program)"
 }

@@ -74,7 +74,7 @@ func (d Diagnostic) Error() string {
 	if d.Severity == Warning {
 		b.WriteString("warning: ")
 	}
-	b.WriteString(d.Summary)
+	b.WriteString(Printable(d.Summary))
 	return b.String()
 }
 
@@ -163,42 +163,149 @@ const snippetWidth = 100
 // Print writes every diagnostic as "file:line:col: message", followed by
 // the source line, a caret under the column and the hint, when src holds the
 // model's text. src may be nil (a model read from JSON or built in Go).
+//
+// Everything printed that may come from the input (the file name, the
+// source line, labels quoted in messages) goes through [Printable], so no
+// control sequence in a model reaches the terminal that shows the message.
 func (ds Diagnostics) Print(w io.Writer, file string, src []byte) {
 	var lines [][]byte
 	if src != nil {
-		lines = bytes.Split(src, []byte("\n"))
+		lines = SplitLines(src)
 	}
+	file = Printable(file)
+	// Diagnostics come sorted by position, so several on one line (a
+	// minified JSON model is one line) share its decoding.
+	cached, cachedLine := []rune(nil), 0
 	for _, d := range ds {
 		if file != "" {
 			fmt.Fprintf(w, "%s:", file)
 		}
 		fmt.Fprintln(w, d.Error())
 		if d.Pos.IsValid() && d.Pos.Line <= len(lines) {
-			line := []rune(strings.ReplaceAll(strings.TrimRight(string(lines[d.Pos.Line-1]), "\r"), "\t", " "))
-			col := max(d.Pos.Col-1, 0)
-			n := min(max(d.Len, 1), snippetWidth/2)
-			// A long line (minified JSON) is cut to a window around the
-			// column, marked with an ellipsis at each cut.
-			from, to := 0, len(line)
-			if len(line) > snippetWidth {
-				from = max(0, min(col-snippetWidth/2, len(line)-snippetWidth))
-				to = min(len(line), from+snippetWidth)
+			if cachedLine != d.Pos.Line {
+				cached, cachedLine = []rune(string(lines[d.Pos.Line-1])), d.Pos.Line
 			}
-			pre, post := "", ""
-			if from > 0 {
-				pre = "…"
-			}
-			if to < len(line) {
-				post = "…"
-			}
-			fmt.Fprintf(w, "    %s%s%s\n", pre, string(line[from:to]), post)
-			fmt.Fprintf(w, "    %s%s\n", strings.Repeat(" ", len([]rune(pre))+max(col-from, 0)), strings.Repeat("^", n))
+			snippet, caret := excerpt(cached, max(d.Pos.Col-1, 0), min(max(d.Len, 1), snippetWidth/2))
+			fmt.Fprintf(w, "    %s\n    %s\n", snippet, caret)
 		}
 		if d.Hint != "" {
-			fmt.Fprintf(w, "    hint: %s\n", d.Hint)
+			fmt.Fprintf(w, "    hint: %s\n", Printable(d.Hint))
 		}
 		if d.Note != "" {
-			fmt.Fprintf(w, "    note: %s\n", d.Note)
+			fmt.Fprintf(w, "    note: %s\n", Printable(d.Note))
 		}
 	}
+}
+
+// excerpt returns the part of line shown for a diagnostic at column col
+// (0-based, in characters) spanning n characters, and the caret line under
+// it. A long line (minified JSON) is cut to a window around the column,
+// marked with an ellipsis at each cut. A tab shows as one space (it counts
+// one column); a control character as its escape, with the caret widened
+// to match.
+func excerpt(line []rune, col, n int) (snippet, caret string) {
+	from, to := 0, len(line)
+	if len(line) > snippetWidth {
+		from = max(0, min(col-snippetWidth/2, len(line)-snippetWidth))
+		to = min(len(line), from+snippetWidth)
+	}
+	var text strings.Builder
+	pad, marks := 0, 0
+	if from > 0 {
+		text.WriteString("…")
+		pad++
+	}
+	for i := from; i < to; i++ {
+		r := line[i]
+		shown := 1
+		switch {
+		case r == '\t':
+			text.WriteByte(' ')
+		case needsEscape(r):
+			e := escapeRune(r)
+			text.WriteString(e)
+			shown = len(e)
+		default:
+			text.WriteRune(r)
+		}
+		switch {
+		case i < col:
+			pad += shown
+		case i < col+n:
+			marks += shown
+		}
+	}
+	if to < len(line) {
+		text.WriteString("…")
+	}
+	// A caret past the end of the line (where something is missing).
+	pad += max(col-max(to, from), 0)
+	marks += max(col+n-max(to, col), 0)
+	return text.String(), strings.Repeat(" ", pad) + strings.Repeat("^", max(marks, 1))
+}
+
+// SplitLines splits a model's text into lines as positions count them:
+// a line ends at LF, CRLF or a lone CR, and a byte-order mark at the start
+// is not part of the first line. The line ends are not included.
+func SplitLines(src []byte) [][]byte {
+	src = bytes.TrimPrefix(src, []byte("\ufeff"))
+	out := make([][]byte, 0, bytes.Count(src, []byte("\n"))+1)
+	for {
+		i := bytes.IndexAny(src, "\r\n")
+		if i < 0 {
+			return append(out, src)
+		}
+		out = append(out, src[:i])
+		if src[i] == '\r' && i+1 < len(src) && src[i+1] == '\n' {
+			i++
+		}
+		src = src[i+1:]
+	}
+}
+
+// Printable returns s with every control character (C0, DEL and C1, such
+// as NUL, BEL and the ESC that starts a terminal control sequence) and
+// every bidirectional formatting character written as a visible escape
+// (\x1b, \u202e), so that text from a model cannot move the cursor, clear
+// the screen, retitle the window or reorder the line it is printed on.
+func Printable(s string) string {
+	clean := true
+	for _, r := range s {
+		if needsEscape(r) {
+			clean = false
+			break
+		}
+	}
+	if clean {
+		return s
+	}
+	var b strings.Builder
+	for _, r := range s {
+		if needsEscape(r) {
+			b.WriteString(escapeRune(r))
+		} else {
+			b.WriteRune(r)
+		}
+	}
+	return b.String()
+}
+
+// needsEscape reports whether r must not reach a terminal as it is.
+func needsEscape(r rune) bool {
+	switch {
+	case r < 0x20, r >= 0x7f && r < 0xa0:
+		return true
+	case r == 0x200e, r == 0x200f, r >= 0x202a && r <= 0x202e, r >= 0x2066 && r <= 0x2069:
+		// Left-to-right and right-to-left marks, embeddings, overrides
+		// and isolates: invisible, and they reorder what follows.
+		return true
+	}
+	return false
+}
+
+func escapeRune(r rune) string {
+	if r < 0x80 {
+		return fmt.Sprintf("\\x%02x", r)
+	}
+	return fmt.Sprintf("\\u%04x", r)
 }
