@@ -63,8 +63,8 @@ const DefaultWrapWidth = 24
 // mid-grey), so it survives greyscale print and colour-blind readers; the
 // options a decision rejects are dashed and carry a double bar.
 const (
-	fontFamily = "Helvetica,Arial,sans-serif"
-	padPt      = 21.6 // margin around the picture, points (0.3 inch)
+	fontFamily = "Helvetica" // one name: Graphviz then measures text with its Helvetica metrics (a list makes it fall back to Times, too narrow) and writes font-family="Helvetica,sans-Serif" in SVG
+	padPt      = 21.6        // margin around the picture, points (0.3 inch)
 
 	colInk      = "#1f1f1f" // text on the optimal path, titles
 	colInkSoft  = "#595959" // text elsewhere (7:1 on white)
@@ -97,9 +97,12 @@ var ErrNoTree = errors.New("render: no solved tree to draw")
 
 // DOT writes the solved tree as a graph in the Graphviz DOT language,
 // drawn left to right: decisions as squares, chance nodes as circles, end
-// nodes as triangles, every node with its expected value, every branch with
-// its label, probability and cash flow (as a gain or a cost), and every end
-// node with its cumulative payoff and path probability. The optimal policy
+// nodes as triangles, every branch with its label, probability and cash
+// flow (as a gain or a cost). Every figure says what it counts: a node's
+// value is "from here" (what follows it, not the cash on the branch into
+// it); each option of a decision has its "option" value, its own cash
+// included, which is what the decision compares; every end node has its
+// path's total and probability. The optimal policy
 // is thick and dark blue; the options a decision rejects are dashed and
 // marked ‖.
 //
@@ -391,7 +394,7 @@ func (d *drawer) titleLabel() (label string, width, height float64) {
 		row(fontTitle, colInk, true, clean(d.m.Title))
 	}
 	root := d.sol.Root
-	line := d.valueText(root.Value())
+	line := d.totalText(root.Value())
 	if root.Node.Kind == tree.KindDecision && root.Chosen() >= 0 {
 		line = "Best: " + clean(root.Node.Branches[root.Chosen()].Label) + " · " + line
 	}
@@ -404,6 +407,7 @@ func (d *drawer) titleLabel() (label string, width, height float64) {
 		key += fmt.Sprintf(" · cut at depth %d", d.opts.MaxDepth)
 	}
 	row(fontEdge, colInkSoft, false, key)
+	row(fontEdge, colInkSoft, false, d.figuresKey())
 	h.raw(`<TR><TD CELLPADDING="1" HEIGHT="8"></TD></TR></TABLE>`)
 	return h.String(), width, height + 10
 }
@@ -500,6 +504,11 @@ func (d *drawer) branchLabel(s *eval.Solved) labelSpec {
 	var below []string
 	if len(figs) > 0 {
 		below = []string{strings.Join(figs, " · ")}
+	}
+	if p.Node.Kind == tree.KindDecision {
+		// What the decision compares: the option with its own cash, so
+		// that no option reads better than another for a cash left out.
+		below = append(below, d.optionText(d.optionValue(s)))
 	}
 	return labelSpec{id: fmt.Sprintf("b%d", i), look: st, above: lines, below: below}
 }
@@ -598,7 +607,7 @@ func (d *drawer) innerLabel(s *eval.Solved, side float64, on bool, ink string) (
 	if on {
 		col = colPolicy
 	}
-	return stacked(above, []textLine{{d.valueText(s.Value()), col, on}}, side*72)
+	return stacked(above, []textLine{{d.fromHereText(s.Value()), col, on}}, side*72)
 }
 
 // stacked sets lines above and below a shape side points wide, all ending
@@ -646,7 +655,7 @@ func (d *drawer) endLabel(i int, ink string) (string, placed) {
 	e := d.ends[i]
 	lines := wrapText(d.endTitle(s.Node), d.wrap)
 	first := d.payoffText(e.Payoff)
-	second := "p = " + Percent(e.Prob, 2)
+	second := "path probability " + Percent(e.Prob, 2)
 	w := max(textWidth(first, fontNode, true), textWidth(second, fontNode, false))
 	for _, l := range lines {
 		w = max(w, textWidth(l, fontNode, false))
@@ -688,7 +697,7 @@ func (d *drawer) depthStub(i int) placed {
 	}
 	title := wrapText(d.nodeTitle(s.Node), d.wrap)
 	count := fmt.Sprintf("%s %s not drawn", Grouped(strconv.Itoa(s.Size())), plural(s.Size(), "node", "nodes"))
-	value := d.valueText(s.Value())
+	value := d.fromHereText(s.Value())
 	w := max(textWidth(count, fontEdge, false), textWidth(value, fontNode, on))
 	for _, l := range title {
 		w = max(w, textWidth(l, fontNode, false))
@@ -731,7 +740,7 @@ func (d *drawer) othersLabel(i int) labelSpec {
 	var below []string
 	if found {
 		below = wrapText(lead+clean(s.Node.Branches[runnerUp.Via()].Label), d.wrap)
-		v := d.valueText(d.optionValue(runnerUp))
+		v := d.optionText(d.optionValue(runnerUp))
 		if d.tiesChosen(runnerUp) {
 			v += " (tie)"
 		}
@@ -764,20 +773,52 @@ func (d *drawer) nodeTitle(n *tree.Node) string {
 // endTitle is an end node's own label, if it has one.
 func (d *drawer) endTitle(n *tree.Node) string { return clean(n.Label) }
 
-// valueText is a node's expected value as the picture shows it.
-func (d *drawer) valueText(v decimal.Decimal) string {
+// The figures of the picture, each named for what it is, so that none is
+// taken for another: a node's value counts only what follows the node
+// ("from here"), an option's value at its decision also the cash on its
+// own branch, and an end's total everything along its path.
+
+// totalText is the whole tree's value, in the heading.
+func (d *drawer) totalText(v decimal.Decimal) string {
 	if d.m.Objective == tree.Min {
 		return "expected cost " + Money(v, d.cur)
 	}
 	return "EV " + Money(v, d.cur)
 }
 
-// payoffText is an end node's cumulative payoff.
+// fromHereText is a node's value: what follows it, without the cash on
+// the branch into it.
+func (d *drawer) fromHereText(v decimal.Decimal) string {
+	if d.m.Objective == tree.Min {
+		return "expected cost from here " + Money(v, d.cur)
+	}
+	return "EV from here " + Money(v, d.cur)
+}
+
+// optionText is the value of taking an option at its decision: the cash
+// on its branch plus the value of what follows. These are the figures the
+// decision compares.
+func (d *drawer) optionText(v decimal.Decimal) string {
+	if d.m.Objective == tree.Min {
+		return "option expected cost " + Money(v, d.cur)
+	}
+	return "option EV " + Money(v, d.cur)
+}
+
+// payoffText is an end node's cumulative payoff: the path's total.
 func (d *drawer) payoffText(v decimal.Decimal) string {
 	if d.m.Objective == tree.Min {
-		return "total cost " + Money(v, d.cur)
+		return "path total cost " + Money(v, d.cur)
 	}
-	return "net " + Money(v, d.cur)
+	return "path total " + Money(v, d.cur)
+}
+
+// figuresKey says in the heading what each kind of figure counts.
+func (d *drawer) figuresKey() string {
+	if d.m.Objective == tree.Min {
+		return "expected cost from here: what follows a node, not the cash on the branch into it · option expected cost: an option at its decision, its own cash included · path total cost: all the cash along the path"
+	}
+	return "EV from here: what follows a node, not the cash on the branch into it · option EV: an option at its decision, its own cash included · path total: all the cash along the path"
 }
 
 // cash is a branch's cash flow in the objective's terms, written as people

@@ -25,11 +25,18 @@ func drawCommand() *cli.Command {
 			"   forkcast draw big.json --policy-only --depth 4 -o big.svg\n" +
 			"   forkcast draw model.fork -o - | gzip > tree.svgz",
 		Description: "Solves the model and draws the tree left to right: decisions as squares,\n" +
-			"chance nodes as circles, end nodes as triangles. Every node shows its expected\n" +
-			"value, every branch its label, probability and cash flow (gain or cost), every\n" +
-			"end node its total payoff and the probability of the path to it. The optimal\n" +
-			"policy is thick and dark blue; options a decision rejects are dashed and\n" +
-			"marked ‖. In SVG, everything on the optimal policy has the class \"optimal\".\n\n" +
+			"chance nodes as circles, end nodes as triangles. Every branch shows its label,\n" +
+			"probability and cash flow (gain or cost). Each figure says what it counts:\n" +
+			"  EV from here        at a node: what follows it, not the cash on the branch\n" +
+			"                      into it\n" +
+			"  option EV           at each option of a decision: the option's value with\n" +
+			"                      its own cash; these are the figures a decision compares\n" +
+			"  path total          at an end: all the cash along the path, with the path's\n" +
+			"                      probability\n" +
+			"(under objective min: expected cost from here, option expected cost, path\n" +
+			"total cost). The optimal policy is thick and dark blue; options a decision\n" +
+			"rejects are dashed and marked ‖. In SVG, everything on the optimal policy has\n" +
+			"the class \"optimal\".\n\n" +
 			"OUT defaults to FILE's base name with the format's extension, in the current\n" +
 			"directory (standard output when FILE is -); -o - writes to standard output.\n" +
 			"The format comes from --format, else from OUT's extension (.svg, .png, .dot\n" +

@@ -279,11 +279,20 @@ func checkDrawing(t *testing.T, sol *eval.Solution, opts Options, svg []byte) {
 			t.Errorf("%d %s nodes drawn, want %d", counts[k], k, want[k])
 		}
 	}
+	// A node's value is what follows it ("from here"); an option's value
+	// at its decision includes the cash on its branch; an end shows its
+	// path's total.
 	value := func(v decimal.Decimal) string {
 		if sol.Model.Objective == tree.Min {
-			return "expected cost " + Money(v, cur)
+			return "expected cost from here " + Money(v, cur)
 		}
-		return "EV " + Money(v, cur)
+		return "EV from here " + Money(v, cur)
+	}
+	option := func(v decimal.Decimal) string {
+		if sol.Model.Objective == tree.Min {
+			return "option expected cost " + Money(v, cur)
+		}
+		return "option EV " + Money(v, cur)
 	}
 	for i := range nodes {
 		s := &nodes[i]
@@ -330,12 +339,12 @@ func checkDrawing(t *testing.T, sol *eval.Solution, opts Options, svg []byte) {
 				t.Errorf("%s: the triangle must point right: %v", id, g.polygons[0])
 			}
 			ep := ends[i]
-			word := "net "
+			word := "path total "
 			if sol.Model.Objective == tree.Min {
-				word = "total cost "
+				word = "path total cost "
 			}
 			hasText(t, g, word+Money(ep.Payoff, cur))
-			hasText(t, g, "p = "+Percent(ep.Prob, 2))
+			hasText(t, g, "path probability "+Percent(ep.Prob, 2))
 		}
 		if i > 0 {
 			for _, f := range []string{"b%d", "e%d", "f%d"} {
@@ -347,6 +356,9 @@ func checkDrawing(t *testing.T, sol *eval.Solution, opts Options, svg []byte) {
 			b := s.Parent().Node.Branches[s.Via()]
 			if s.Parent().Node.Kind == tree.KindChance {
 				hasText(t, groups[fmt.Sprintf("b%d", i)], Percent(b.P, 2))
+			}
+			if s.Parent().Node.Kind == tree.KindDecision {
+				hasText(t, groups[fmt.Sprintf("b%d", i)], option(s.Parent().BranchValue(s.Via())))
 			}
 		}
 	}
@@ -558,7 +570,7 @@ func TestTieAndPruning(t *testing.T) {
 	}
 	hasText(t, stub, pruneMark+" 2 other options")
 	hasText(t, stub, "best: Rail")
-	hasText(t, stub, "EV 200.00 EUR (tie)")
+	hasText(t, stub, "option EV 200.00 EUR (tie)")
 }
 
 func TestCostWords(t *testing.T) {
@@ -566,7 +578,54 @@ func TestCostWords(t *testing.T) {
 	sol := fixtures.Solve(t, fixtures.Cost())
 	groups := parseSVG(t, drawSVG(t, sol, Options{}))
 	hasText(t, groups[fmt.Sprintf("b%d", sol.Root.Kid(1).Index())], "cost 50,000 JPY")
-	hasText(t, groups["n0"], "expected cost 50,000 JPY")
+	hasText(t, groups["n0"], "expected cost from here 50,000 JPY")
+}
+
+// An option rejected for the cost on its own branch must not read as the
+// cheaper one: its chance node's expected cost from here (159,000) is
+// below the chosen option's (455,500) only because the 300,000 paid on
+// the way in is left out. The figures the decision compares are the
+// options' own, with that cost in: 459,000 against 455,500. (Invented
+// figures; the arithmetic is in the comments.)
+func TestOptionsCompareWithTheirOwnCash(t *testing.T) {
+	m := &tree.Model{
+		Title: "Supplier for the depot scanners", Currency: "EUR", Objective: tree.Min,
+		Root: tree.Decision("Supplier",
+			// 300,000 + (0.5 · 18,000 + 0.5 · 300,000) = 300,000 + 159,000
+			tree.Choice("Low bid, setup fee", decimal.NewFromInt(300_000), tree.Chance("Low bidder's delivery",
+				tree.Outcome("Smooth", decimal.RequireFromString("0.5"), decimal.NewFromInt(18_000), nil),
+				tree.RestOutcome("Troubled", decimal.NewFromInt(300_000), nil))),
+			// 0.5 · 411,000 + 0.5 · 500,000 = 455,500
+			tree.Choice("Established vendor", decimal.Zero, tree.Chance("Vendor's delivery",
+				tree.Outcome("Smooth", decimal.RequireFromString("0.5"), decimal.NewFromInt(411_000), nil),
+				tree.RestOutcome("Troubled", decimal.NewFromInt(500_000), nil))),
+		),
+	}
+	sol := fixtures.Solve(t, m)
+	if sol.Root.Chosen() != 1 {
+		t.Fatalf("the established vendor (455,500) must beat the low bid (459,000)")
+	}
+	for _, opts := range []Options{{}, {PolicyOnly: true}} {
+		groups := parseSVG(t, drawSVG(t, sol, opts))
+		low, vendor := sol.Root.Kids()[0], sol.Root.Kids()[1]
+		hasText(t, groups[fmt.Sprintf("b%d", vendor.Index())], "option expected cost 455,500.00 EUR")
+		hasText(t, groups[fmt.Sprintf("n%d", vendor.Index())], "expected cost from here 455,500.00 EUR")
+		if opts.PolicyOnly {
+			hasText(t, groups["b0x"], "option expected cost 459,000.00 EUR")
+			continue
+		}
+		hasText(t, groups[fmt.Sprintf("b%d", low.Index())], "option expected cost 459,000.00 EUR")
+		hasText(t, groups[fmt.Sprintf("n%d", low.Index())], "expected cost from here 159,000.00 EUR")
+		// No figure in the tree is a bare "expected cost": each says
+		// whether it is from a node on, an option's or a path's total.
+		for id, g := range groups {
+			for _, text := range g.texts {
+				if strings.HasPrefix(text, "expected cost ") && !strings.HasPrefix(text, "expected cost from here ") {
+					t.Errorf("%s: %q does not say what it counts", id, text)
+				}
+			}
+		}
+	}
 }
 
 func TestBadInput(t *testing.T) {
