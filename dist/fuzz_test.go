@@ -117,3 +117,29 @@ func FuzzDiscrete(f *testing.F) {
 		}
 	})
 }
+
+func FuzzCorrelation(f *testing.F) {
+	f.Add(0.5, -0.3, 0.2, 1.0)
+	f.Add(0.9, 0.9, -0.9, 1.0)
+	f.Add(1.0, 0.0, 0.0, 1.0)
+	f.Add(math.NaN(), 0.0, 0.0, 0.5)
+	f.Fuzz(func(t *testing.T, a, b, c, diag float64) {
+		m := [][]float64{{1, a, b}, {a, diag, c}, {b, c, 1}}
+		target, err := NewCorrelation(nil, m)
+		if err != nil {
+			return
+		}
+		u, _ := NewUniform(0, 1)
+		cols := make([][]float64, 3)
+		src := rand.NewPCG(1, 2)
+		for j := range cols {
+			cols[j] = make([]float64, 50)
+			for i := range cols[j] {
+				cols[j][i] = u.Rand(src)
+			}
+		}
+		if err := ImanConover(cols, target, src); err != nil {
+			t.Fatalf("valid target %v rejected by ImanConover: %v", m, err)
+		}
+	})
+}
