@@ -525,10 +525,34 @@ func TestLineEndings(t *testing.T) {
 	if a.Title != b.Title || tree.Count(a.Root) != tree.Count(b.Root) || a.Root.Branches[0].Pos != b.Root.Branches[0].Pos {
 		t.Error("CRLF and BOM read differently")
 	}
+	// Lone CRs (old Mac files), alone or mixed with the others, starting
+	// with a comment: the same model, the same positions.
+	withComment := "# sourcing\n" + unix
+	want := load(t, withComment)
+	for _, src := range []string{
+		strings.ReplaceAll(withComment, "\n", "\r"),
+		"# sourcing\r" + strings.ReplaceAll(unix, "\n", "\r\n"),
+		"# sourcing\r\ntitle \"T\"\rdecision \"D\"\n  \"a\"  gain 1\r  \"b\"",
+	} {
+		m, ds := Load([]byte(src), Options{})
+		if ds.HasErrors() || m.Title != want.Title || tree.Count(m.Root) != tree.Count(want.Root) ||
+			m.Root.Branches[1].Pos != want.Root.Branches[1].Pos {
+			t.Errorf("%q: read differently: %v", src, ds)
+		}
+	}
+	// Positions in diagnostics count lone CRs as line ends too, and the
+	// printed line is the one they point at.
+	src := []byte("# c\rdecision \"D\"\r  \"a\"  gain nope\r")
+	_, ds := Load(src, Options{})
+	var out strings.Builder
+	ds.Print(&out, "f", src)
+	if len(ds) != 1 || ds[0].Pos != (tree.Pos{Line: 3, Col: 13}) || !strings.Contains(out.String(), "\n      \"a\"  gain nope\n") {
+		t.Errorf("got %v:\n%s", ds, out.String())
+	}
 }
 
 func TestEmpty(t *testing.T) {
-	for _, src := range []string{"", "\n\n", "# only a comment\n   # indented comment\n"} {
+	for _, src := range []string{"", "\n\n", "# only a comment\n   # indented comment\n", "# only\r# comments\r\r"} {
 		m, ds := Load([]byte(src), Options{})
 		if len(ds) != 1 || !strings.HasPrefix(ds[0].Summary, "the model is empty") || m == nil || m.Root != nil {
 			t.Errorf("%q: %v", src, ds)

@@ -42,15 +42,30 @@ func scan(src []byte) []*srcLine {
 	// reported, and the others counted in a note on it.
 	var firstTab *srcLine
 	moreTabs, nextTab, lastTab := 0, 0, 0
-	for len(src) > 0 || num == 0 {
+	// A line ends at LF, CRLF or a lone CR, as tree.SplitLines has it. nl
+	// is the offset of the next LF at or after pos (-1: none left), kept
+	// across lines so that a file of lone CRs is read in linear time.
+	pos, nl := 0, -2
+	for pos < len(src) || num == 0 {
 		num++
-		var raw []byte
-		if i := bytes.IndexByte(src, '\n'); i >= 0 {
-			raw, src = src[:i], src[i+1:]
-		} else {
-			raw, src = src, nil
+		if nl != -1 && nl < pos {
+			if nl = bytes.IndexByte(src[pos:], '\n'); nl >= 0 {
+				nl += pos
+			}
 		}
-		raw = bytes.TrimSuffix(raw, []byte("\r"))
+		end := len(src)
+		if nl >= 0 {
+			end = nl
+		}
+		var raw []byte
+		if k := bytes.IndexByte(src[pos:end], '\r'); k >= 0 {
+			raw, pos = src[pos:pos+k], pos+k+1
+			if pos < len(src) && src[pos] == '\n' {
+				pos++
+			}
+		} else {
+			raw, pos = src[pos:end], end+1
+		}
 		n := 0
 		tabAt := -1
 		for n < len(raw) && (raw[n] == ' ' || raw[n] == '\t') {
@@ -109,12 +124,12 @@ func fillLen(src []byte, ds tree.Diagnostics) {
 			continue
 		}
 		if lines == nil {
-			lines = bytes.Split(bytes.TrimPrefix(src, []byte("\ufeff")), []byte("\n"))
+			lines = tree.SplitLines(src)
 		}
 		if d.Pos.Line > len(lines) {
 			continue
 		}
-		raw := bytes.TrimSuffix(lines[d.Pos.Line-1], []byte("\r"))
+		raw := lines[d.Pos.Line-1]
 		n := 0
 		for n < len(raw) && (raw[n] == ' ' || raw[n] == '\t') {
 			n++

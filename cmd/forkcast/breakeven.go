@@ -9,6 +9,7 @@ import (
 	"strings"
 
 	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/lang"
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
@@ -95,8 +96,8 @@ func breakevenCommand() *cli.Command {
 	}
 }
 
-// parseRange reads LOW..HIGH: decimals with optional _ separators and a
-// trailing % each.
+// parseRange reads LOW..HIGH, each bound a number written as in a model
+// (lang.ParseNumber: 1_000 separators, 25%, a leading minus sign).
 func parseRange(s string) (lo, hi decimal.Decimal, err error) {
 	parts := strings.Split(s, "..")
 	if len(parts) != 2 {
@@ -113,17 +114,12 @@ func parseRange(s string) (lo, hi decimal.Decimal, err error) {
 }
 
 func parseNumber(s string) (decimal.Decimal, error) {
-	t := strings.ReplaceAll(strings.TrimSpace(s), "_", "")
-	pct := strings.HasSuffix(t, "%")
-	t = strings.TrimSuffix(t, "%")
-	d, err := decimal.NewFromString(t)
-	if err != nil || t == "" || strings.ContainsAny(t, "eE") {
-		return d, fmt.Errorf("%q is not a number", strings.TrimSpace(s))
+	d, err := lang.ParseNumber(strings.TrimSpace(s))
+	var ne *lang.NumberError
+	if errors.As(err, &ne) {
+		return d, fmt.Errorf("%q %s (%s)", ne.Text, ne.Problem, ne.Hint)
 	}
-	if pct {
-		d = d.Shift(-2)
-	}
-	return d, nil
+	return d, err
 }
 
 // beFormat shows values of the varied input: a probability as a percent,
