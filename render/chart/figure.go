@@ -87,7 +87,9 @@ func (f *figure) draw(c draw.Canvas) {
 	}
 	each := free / n
 	top := area.Max.Y
-	for _, p := range f.panels {
+	areas := make([]draw.Canvas, len(f.panels))
+	rows := 0
+	for i, p := range f.panels {
 		pc := area
 		pc.Max.Y = top
 		pc.Min.Y = top - each - p.extra
@@ -98,13 +100,28 @@ func (f *figure) draw(c draw.Canvas) {
 			pc.FillText(sty, vg.Point{X: pc.Min.X, Y: pc.Max.Y}, p.heading)
 			pc.Max.Y -= sty.Height(p.heading) + headingGap
 		}
+		areas[i] = pc
 		if len(p.aware) > 0 {
 			data := p.plot.DataCanvas(pc)
 			for _, a := range p.aware {
 				a.setDataWidth(data.Size().X)
+				if g, ok := a.(*guides); ok {
+					rows = max(rows, g.rowCount(p.plot))
+				}
 			}
 		}
-		p.plot.Draw(pc)
+	}
+	// Every panel keeps room for as many rows of guide labels as the
+	// fullest one, so that all panels' data areas are the same height.
+	for _, p := range f.panels {
+		for _, a := range p.aware {
+			if g, ok := a.(*guides); ok {
+				g.minRows = rows
+			}
+		}
+	}
+	for i, p := range f.panels {
+		p.plot.Draw(areas[i])
 	}
 }
 

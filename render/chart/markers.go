@@ -175,6 +175,9 @@ func fillRects(c *draw.Canvas, fs fillStyle, rects []vg.Rectangle) {
 
 // hatchRect adds to p the segments of a hatch family inside r.
 func hatchRect(p *vg.Path, h hatch, r vg.Rectangle) {
+	if !(r.Size().X < 1e5 && r.Size().Y < 1e5) {
+		return // not a rectangle on any page; nothing to hatch
+	}
 	seg := func(a, b vg.Point) {
 		p.Move(a)
 		p.Line(b)

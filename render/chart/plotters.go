@@ -88,6 +88,9 @@ func (r refLine) Plot(c draw.Canvas, p *plot.Plot) {
 type guide struct {
 	at    float64
 	label string
+	// line, when it has a width, is this guide's own pen instead of the
+	// shared one.
+	line draw.LineStyle
 }
 
 // guides draws vertical guide lines and places their labels in rows above
@@ -102,6 +105,18 @@ type guides struct {
 	width vg.Length
 	// silent draws the lines and leaves the labels' room empty.
 	silent bool
+	// minRows is the fewest rows of labels to leave room for.
+	minRows int
+}
+
+// rowCount is the number of rows the labels take.
+func (g *guides) rowCount(p *plot.Plot) int {
+	row, _ := g.rows(p)
+	n := 0
+	for _, r := range row {
+		n = max(n, r+1)
+	}
+	return n
 }
 
 // widthAware is a plotter whose glyphs depend on the data area's width.
@@ -165,7 +180,11 @@ func (g *guides) Plot(c draw.Canvas, p *plot.Plot) {
 		if !c.ContainsX(x) {
 			continue
 		}
-		c.StrokeLine2(g.line, x, c.Min.Y, x, c.Max.Y)
+		pen := g.line
+		if it.line.Width > 0 {
+			pen = it.line
+		}
+		c.StrokeLine2(pen, x, c.Min.Y, x, c.Max.Y)
 		// A thin leader joins a label lifted to a higher row to its line.
 		if b := boxes[i]; b.Min.Y > guideLift && !g.silent {
 			c.StrokeLine2(leader, x, c.Max.Y, x, c.Max.Y+b.Min.Y)
@@ -194,6 +213,12 @@ func (g *guides) GlyphBoxes(p *plot.Plot) []plot.GlyphBox {
 	out := make([]plot.GlyphBox, len(boxes))
 	for i, b := range boxes {
 		out[i] = plot.GlyphBox{X: p.X.Norm(g.items[i].at), Y: 1, Rectangle: b}
+	}
+	if used := g.rowCount(p); used < g.minRows {
+		// An empty box as high as a label in the top row would reach.
+		h := g.style.Height("Xg")
+		top := guideLift + vg.Length(g.minRows-1)*(h+guideRowGap) + g.style.Rectangle("Xg").Max.Y
+		out = append(out, plot.GlyphBox{X: 0.5, Y: 1, Rectangle: vg.Rectangle{Max: vg.Point{Y: top}}})
 	}
 	return out
 }

@@ -218,8 +218,8 @@ func (pr Profiles) check() ([]Distribution, error) {
 		return nil, fmt.Errorf("chart: risk profile: %d reference lines, more than the limit of %d", len(pr.References), MaxMarks)
 	}
 	for _, m := range pr.References {
-		if !finite(m.At) {
-			return nil, fmt.Errorf("chart: risk profile: a reference line at %v, not a finite number", m.At)
+		if !drawable(m.At) {
+			return nil, fmt.Errorf("chart: risk profile: a reference line at %v, not a drawable number", m.At)
 		}
 	}
 	out := make([]Distribution, len(pr.Options))
@@ -234,7 +234,7 @@ func (pr Profiles) check() ([]Distribution, error) {
 		}
 		sum := 0.0
 		for _, o := range d.Outcomes {
-			if !finite(o.Value, o.Probability) || o.Probability < 0 || o.Probability > 1 {
+			if !drawable(o.Value, o.Probability) || o.Probability < 0 || o.Probability > 1 {
 				return nil, fmt.Errorf("chart: risk profile: option %q has the outcome %v with probability %v; a probability is a number from 0 to 1", d.Label, o.Value, o.Probability)
 			}
 			sum += o.Probability

@@ -123,8 +123,8 @@ func (s Spider) check() error {
 		return fmt.Errorf("chart: spider: %d lines, more than the limit of %d", len(s.Lines), MaxSeries)
 	case s.Change != PercentOfBase && s.Change != PercentOfRange:
 		return fmt.Errorf("chart: spider: unknown way of measuring change (%d)", int(s.Change))
-	case !finite(s.Base):
-		return fmt.Errorf("chart: spider: the base value is %v, not a finite number", s.Base)
+	case !drawable(s.Base):
+		return fmt.Errorf("chart: spider: the base value is %v, not a drawable number", s.Base)
 	}
 	marks := 0
 	for i, l := range s.Lines {
@@ -135,8 +135,8 @@ func (s Spider) check() error {
 		if err := checkPoints("spider", name, l.Points); err != nil {
 			return err
 		}
-		if !finite(l.Base, l.Low, l.High) || !finite(l.Switches...) {
-			return fmt.Errorf("chart: spider: %s has a base, range or switch that is not a finite number", name)
+		if !drawable(l.Base, l.Low, l.High) || !drawable(l.Switches...) {
+			return fmt.Errorf("chart: spider: %s has a base, range or switch that is not a drawable number", name)
 		}
 		switch {
 		case s.Change == PercentOfBase && l.Base == 0:
@@ -162,8 +162,8 @@ func checkPoints(chart, name string, pts []Point) error {
 		return fmt.Errorf("chart: %s: %s has %d points, more than the limit of %d", chart, name, len(pts), MaxPoints)
 	}
 	for _, pt := range pts {
-		if !finite(pt.X, pt.Y) {
-			return fmt.Errorf("chart: %s: %s has the point (%v, %v), not a pair of finite numbers", chart, name, pt.X, pt.Y)
+		if !drawable(pt.X, pt.Y) {
+			return fmt.Errorf("chart: %s: %s has the point (%v, %v), not a pair of drawable numbers", chart, name, pt.X, pt.Y)
 		}
 	}
 	return nil

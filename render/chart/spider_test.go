@@ -68,7 +68,7 @@ func TestSpiderRefusesBadData(t *testing.T) {
 		{"no lines", Spider{}, "no lines"},
 		{"no label", Spider{Lines: []SpiderLine{{Base: 1, Points: pts}}}, "line 1 has no label"},
 		{"one point", Spider{Lines: []SpiderLine{{Label: "a", Base: 1, Points: pts[:1]}}}, `line "a" has 1 points`},
-		{"NaN point", Spider{Lines: []SpiderLine{{Label: "a", Base: 1, Points: []Point{{1, 1}, {math.NaN(), 2}}}}}, "not a pair of finite numbers"},
+		{"NaN point", Spider{Lines: []SpiderLine{{Label: "a", Base: 1, Points: []Point{{1, 1}, {math.NaN(), 2}}}}}, "not a pair of drawable numbers"},
 		{"zero base", Spider{Lines: []SpiderLine{{Label: "a", Points: pts}}}, "base value of 0"},
 		{"empty range", Spider{Change: PercentOfRange, Lines: []SpiderLine{{Label: "a", Low: 2, High: 2, Points: pts}}}, "needs high above low"},
 		{"bad change", Spider{Change: 7, Lines: []SpiderLine{{Label: "a", Points: pts}}}, "unknown way"},

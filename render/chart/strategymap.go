@@ -137,8 +137,8 @@ func (m StrategyMap) check() error {
 		}
 	}
 	for _, s := range m.Boundaries {
-		if !finite(s.From.X, s.From.Y, s.To.X, s.To.Y) {
-			return fmt.Errorf("chart: strategy map: a boundary from (%v, %v) to (%v, %v) is not made of finite numbers", s.From.X, s.From.Y, s.To.X, s.To.Y)
+		if !drawable(s.From.X, s.From.Y, s.To.X, s.To.Y) {
+			return fmt.Errorf("chart: strategy map: a boundary from (%v, %v) to (%v, %v) is not made of drawable numbers", s.From.X, s.From.Y, s.To.X, s.To.Y)
 		}
 	}
 	return nil

@@ -94,7 +94,7 @@ func TestStrategyMapRefusesBadData(t *testing.T) {
 		{"negative", func(m *StrategyMap) { m.Best[0][0] = -2 }, "names option -2"},
 		{"descending", func(m *StrategyMap) { m.YValues = []float64{1, 0} }, "vertical input value 2 (0) is not above"},
 		{"no name", func(m *StrategyMap) { m.Options[1] = "" }, "option 2 has no name"},
-		{"boundary", func(m *StrategyMap) { m.Boundaries = []Segment{{To: Point{X: nan()}}} }, "not made of finite numbers"},
+		{"boundary", func(m *StrategyMap) { m.Boundaries = []Segment{{To: Point{X: nan()}}} }, "not made of drawable numbers"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			m := good()

@@ -114,13 +114,13 @@ func (s Sweep) check() error {
 			return fmt.Errorf("chart: sweep: option %d has no label", i+1)
 		case len(o.Values) != len(s.X):
 			return fmt.Errorf("chart: sweep: option %q has %d values for %d input values", o.Label, len(o.Values), len(s.X))
-		case !finite(o.Values...):
-			return fmt.Errorf("chart: sweep: option %q has a value that is not a finite number", o.Label)
+		case !drawable(o.Values...):
+			return fmt.Errorf("chart: sweep: option %q has a value that is not a drawable number", o.Label)
 		}
 	}
 	for _, m := range s.Switches {
-		if !finite(m.At) {
-			return fmt.Errorf("chart: sweep: a switch at %v, not a finite number", m.At)
+		if !drawable(m.At) {
+			return fmt.Errorf("chart: sweep: a switch at %v, not a drawable number", m.At)
 		}
 	}
 	return nil
@@ -129,8 +129,8 @@ func (s Sweep) check() error {
 // checkGrid checks that grid values are finite and strictly ascending.
 func checkGrid(chart, what string, xs []float64) error {
 	for k, x := range xs {
-		if !finite(x) {
-			return fmt.Errorf("chart: %s: %s %d is %v, not a finite number", chart, what, k+1, x)
+		if !drawable(x) {
+			return fmt.Errorf("chart: %s: %s %d is %v, not a drawable number", chart, what, k+1, x)
 		}
 		if k > 0 && !(x > xs[k-1]) {
 			return fmt.Errorf("chart: %s: %s %d (%v) is not above the one before (%v); they must ascend", chart, what, k+1, x, xs[k-1])

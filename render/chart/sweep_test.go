@@ -108,7 +108,7 @@ func TestSweepRefusesBadData(t *testing.T) {
 		{"repeated", Sweep{X: []float64{1, 1}, Options: one}, "is not above"},
 		{"short", Sweep{X: []float64{1, 2, 3}, Options: one}, `option "a" has 2 values for 3 input values`},
 		{"no label", Sweep{X: []float64{1, 2}, Options: []Curve{{Values: []float64{1, 2}}}}, "option 1 has no label"},
-		{"NaN", Sweep{X: []float64{1, 2}, Options: []Curve{{Label: "a", Values: []float64{1, math.NaN()}}}}, "not a finite number"},
+		{"NaN", Sweep{X: []float64{1, 2}, Options: []Curve{{Label: "a", Values: []float64{1, math.NaN()}}}}, "not a drawable number"},
 		{"bad switch", Sweep{X: []float64{1, 2}, Options: one, Switches: []Mark{{At: math.Inf(1)}}}, "switch at +Inf"},
 	} {
 		t.Run(c.name, func(t *testing.T) {

@@ -34,7 +34,9 @@ func (t numberTicks) Ticks(lo, hi float64) []plot.Tick {
 	step := tickStep(lo, hi, t.target)
 	first := math.Ceil(lo/step - 1e-9)
 	last := math.Floor(hi/step + 1e-9)
-	if last-first > 1000 {
+	if !(last-first <= 1000) || math.Abs(first) > 1e15 || math.Abs(last) > 1e15 {
+		// A span too narrow for its size: its ticks could not be told
+		// apart (and counting them in float64 would not advance).
 		return nil
 	}
 	scale := 1.0
@@ -43,8 +45,8 @@ func (t numberTicks) Ticks(lo, hi float64) []plot.Tick {
 	}
 	decimals := decimalsFor(step * scale)
 	var ticks []plot.Tick
-	for k := first; k <= last; k++ {
-		v := k * step
+	for i := 0; i <= int(last-first); i++ {
+		v := (first + float64(i)) * step
 		if math.Abs(v) < step*1e-9 {
 			v = 0
 		}

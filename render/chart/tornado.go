@@ -195,20 +195,20 @@ func (t Tornado) check() error {
 		return fmt.Errorf("chart: tornado: no bars to draw")
 	case len(t.Bars) > MaxBars:
 		return fmt.Errorf("chart: tornado: %d bars, more than the limit of %d", len(t.Bars), MaxBars)
-	case !finite(t.Base):
-		return fmt.Errorf("chart: tornado: the base value is %v, not a finite number", t.Base)
+	case !drawable(t.Base):
+		return fmt.Errorf("chart: tornado: the base value is %v, not a drawable number", t.Base)
 	}
 	marks := 0
 	for i, b := range t.Bars {
 		if b.Label == "" {
 			return fmt.Errorf("chart: tornado: bar %d has no label", i+1)
 		}
-		if !finite(b.Start, b.End) {
-			return fmt.Errorf("chart: tornado: bar %q has an end that is not a finite number (%v, %v)", b.Label, b.Start, b.End)
+		if !drawable(b.Start, b.End) {
+			return fmt.Errorf("chart: tornado: bar %q has an end that is not a drawable number (%v, %v)", b.Label, b.Start, b.End)
 		}
 		for _, m := range b.Marks {
-			if !finite(m.At) {
-				return fmt.Errorf("chart: tornado: bar %q has a mark at %v, not a finite number", b.Label, m.At)
+			if !drawable(m.At) {
+				return fmt.Errorf("chart: tornado: bar %q has a mark at %v, not a drawable number", b.Label, m.At)
 			}
 		}
 		marks += len(b.Marks)
@@ -219,10 +219,17 @@ func (t Tornado) check() error {
 	return nil
 }
 
-// finite reports whether every value is a number other than ±Inf.
-func finite(vs ...float64) bool {
+// maxMagnitude is the largest size of a value a chart draws: far beyond
+// any amount of money, and small enough that spans and paddings of such
+// values stay finite.
+const maxMagnitude = 1e300
+
+// drawable reports whether every value is a number a chart can place:
+// finite, and at most maxMagnitude in size. Errors call any other value
+// "not a drawable number".
+func drawable(vs ...float64) bool {
 	for _, v := range vs {
-		if math.IsNaN(v) || math.IsInf(v, 0) {
+		if math.IsNaN(v) || math.Abs(v) > maxMagnitude {
 			return false
 		}
 	}

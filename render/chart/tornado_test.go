@@ -123,7 +123,8 @@ func TestTornadoRefusesBadData(t *testing.T) {
 	}{
 		{"no bars", Tornado{}, "no bars"},
 		{"no label", Tornado{Bars: []Bar{ok, {Start: 1, End: 2}}}, "bar 2 has no label"},
-		{"NaN end", Tornado{Bars: []Bar{{Label: "x", Start: math.NaN()}}}, `bar "x" has an end that is not a finite number`},
+		{"NaN end", Tornado{Bars: []Bar{{Label: "x", Start: math.NaN()}}}, `bar "x" has an end that is not a drawable number`},
+		{"beyond any page", Tornado{Bars: []Bar{{Label: "y", End: 1e301}}}, `bar "y" has an end that is not a drawable number`},
 		{"infinite base", Tornado{Base: math.Inf(1), Bars: []Bar{ok}}, "base value is +Inf"},
 		{"bad mark", Tornado{Bars: []Bar{{Label: "m", Marks: []Mark{{At: math.Inf(-1)}}}}}, `bar "m" has a mark at -Inf`},
 		{"too many", Tornado{Bars: make([]Bar, MaxBars+1)}, "more than the limit"},
