@@ -187,7 +187,15 @@ func validP(p float64) bool { return p >= 0 && p <= 1 }
 
 // clamp keeps x within [lo, hi]: a quantile or draw scaled from [0, 1]
 // must not step outside the range by a rounding error.
-func clamp(x, lo, hi float64) float64 { return math.Min(math.Max(x, lo), hi) }
+func clamp(x, lo, hi float64) float64 {
+	if x < lo {
+		return lo
+	}
+	if x > hi {
+		return hi
+	}
+	return x
+}
 
 // callString writes a distribution as a function call of its arguments.
 func callString(fn string, args ...string) string {

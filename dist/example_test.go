@@ -1,6 +1,7 @@
 package dist_test
 
 import (
+	"context"
 	"fmt"
 	"math/rand/v2"
 
@@ -74,4 +75,92 @@ func ExampleNewEvent() {
 	// Output:
 	// expected impact 65, P90 242
 	// occurred in 2977 of 10000 draws
+}
+
+// A reproducible simulation: run i draws from its own stream, so the
+// result is the same with 1 worker or 4.
+func ExampleForEachRun() {
+	build, _ := dist.NewPERT(380_000, 420_000, 610_000)
+	overrun, _ := dist.NewTriangular(0, 20_000, 90_000)
+	const runs = 10_000
+	total := make([]float64, runs)
+	streams := dist.NewStreams(2026)
+	done, err := dist.ForEachRun(context.Background(), streams, runs, 4, func(_, run int, r *rand.Rand) error {
+		total[run] = build.Rand(r) + overrun.Rand(r)
+		return nil
+	})
+	if err != nil {
+		fmt.Println(err, "after", done, "runs")
+		return
+	}
+	s, _ := dist.NewSample(total)
+	fmt.Printf("mean %.0f ± %.0f\n", s.Mean(), s.StdErr())
+	fmt.Printf("P50 %.0f  P80 %.0f  P90 %.0f\n", s.Percentile(0.5), s.Percentile(0.8), s.Percentile(0.9))
+	fmt.Printf("P(total ≤ 500,000) = %.3f\n", s.ProbAtMost(500_000))
+	// Output:
+	// mean 481723 ± 434
+	// P50 477208  P80 519463  P90 541501
+	// P(total ≤ 500,000) = 0.677
+}
+
+// Impose a rank correlation of 0.7 between two independently drawn inputs.
+func ExampleImanConover() {
+	labour, _ := dist.NewPERT(60, 75, 120)
+	materials, _ := dist.NewLogNormalPercentiles(0.1, 40, 0.9, 90)
+	target, err := dist.CorrelationFromPairs([]string{"labour", "materials"}, []dist.Pair{{A: 0, B: 1, Rho: 0.7}})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	src := rand.NewPCG(1, 2)
+	cols := [][]float64{make([]float64, 5000), make([]float64, 5000)}
+	for i := range 5000 {
+		cols[0][i], cols[1][i] = labour.Rand(src), materials.Rand(src)
+	}
+	fmt.Printf("before: %.2f\n", dist.Spearman(cols[0], cols[1]))
+	if err := dist.ImanConover(cols, target, src); err != nil {
+		fmt.Println(err)
+		return
+	}
+	fmt.Printf("after:  %.2f\n", dist.Spearman(cols[0], cols[1]))
+	// Output:
+	// before: 0.00
+	// after:  0.70
+}
+
+// Correlations that cannot hold together are refused with the inputs named.
+func ExampleCorrelationFromPairs() {
+	_, err := dist.CorrelationFromPairs([]string{"labour", "materials", "delay"}, []dist.Pair{
+		{A: 0, B: 1, Rho: 0.9}, {A: 0, B: 2, Rho: 0.9}, {A: 1, B: 2, Rho: -0.9},
+	})
+	fmt.Println(err)
+	// Output:
+	// the correlations among labour, materials and delay cannot all hold at once (the matrix is not positive definite); weaken one of those involving delay
+}
+
+// Percentiles are the smallest value whose cumulative proportion reaches p.
+func ExampleSample_Percentile() {
+	s, _ := dist.NewSample([]float64{40, 10, 30, 20})
+	for _, p := range []float64{0.25, 0.26, 0.5, 0.8} {
+		fmt.Printf("P%.0f = %.0f\n", 100*p, s.Percentile(p))
+	}
+	// Output:
+	// P25 = 10
+	// P26 = 20
+	// P50 = 20
+	// P80 = 40
+}
+
+// A histogram with round bin edges.
+func ExampleSample_Histogram() {
+	s, _ := dist.NewSample([]float64{12, 18, 25, 31, 33, 47, 52, 58, 61, 99})
+	h, _ := s.Histogram(4)
+	for i, n := range h.Counts {
+		fmt.Printf("[%g, %g) %d\n", h.Edges[i], h.Edges[i+1], n)
+	}
+	// Output:
+	// [0, 25) 2
+	// [25, 50) 4
+	// [50, 75) 3
+	// [75, 100) 1
 }

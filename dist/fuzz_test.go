@@ -143,3 +143,35 @@ func FuzzCorrelation(f *testing.F) {
 		}
 	})
 }
+
+func FuzzSample(f *testing.F) {
+	f.Add(1.0, 2.0, 3.0, 0.5, 10)
+	f.Add(5.0, 5.0, 5.0, 0.07, 1)
+	f.Add(-1e308, 1e308, 0.0, 1.0, 3)
+	f.Add(1e308, 1e308, 1e308, 0.5, 3)
+	f.Add(1e20, 1e20+16384, 1e20, 0.3, 10_000)
+	f.Add(1e-310, 2e-310, 0.0, 0.9, 7)
+	f.Fuzz(func(t *testing.T, a, b, c, p float64, bins int) {
+		s, err := NewSample([]float64{a, b, c})
+		if err != nil {
+			return
+		}
+		if q := s.Percentile(p); validP(p) && (math.IsNaN(q) || q < s.Min() || q > s.Max()) {
+			t.Fatalf("Percentile(%v) = %v", p, q)
+		}
+		if m, sd := s.Mean(), s.SD(); math.IsNaN(m) || math.IsInf(m, 0) || math.IsNaN(sd) || math.IsInf(sd, 0) {
+			t.Fatalf("mean %v, SD %v", m, sd)
+		}
+		h, err := s.Histogram(bins)
+		if err != nil {
+			return
+		}
+		total := 0
+		for _, n := range h.Counts {
+			total += n
+		}
+		if total != 3 || len(h.Edges) != len(h.Counts)+1 {
+			t.Fatalf("histogram %v counts %d values", h, total)
+		}
+	})
+}
