@@ -167,7 +167,7 @@ func (f *figure) write(w io.Writer, opt Options, defW, defH float64) (err error)
 		_, err = vgimg.PngCanvas{Canvas: c}.WriteTo(w)
 		return err
 	default:
-		c := vgsvg.New(wl, hl)
+		c := vgsvg.NewWith(vgsvg.UseWH(wl, hl), vgsvg.EmbedFonts(opt.EmbedFonts))
 		f.draw(draw.New(c))
 		var buf bytes.Buffer
 		if _, err := c.WriteTo(&buf); err != nil {

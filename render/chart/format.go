@@ -59,6 +59,12 @@ type Options struct {
 	// DPI is the resolution of a PNG in pixels per inch; zero means
 	// DefaultDPI. A PNG is Width·DPI/72 pixels wide (rounded up).
 	DPI int
+	// EmbedFonts puts the chart's typefaces inside an SVG (about 0.6 MB
+	// more), so that it looks the same in every viewer. Without them an
+	// SVG names its face and metric-compatible fallbacks (Arimo, Arial,
+	// Helvetica); a viewer that has none of them draws wider text that
+	// may run into its neighbours.
+	EmbedFonts bool
 }
 
 // DefaultDPI is the resolution of a PNG unless Options.DPI says otherwise:

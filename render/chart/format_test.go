@@ -1,6 +1,7 @@
 package chart
 
 import (
+	"bytes"
 	"errors"
 	"io"
 	"strings"
@@ -55,3 +56,27 @@ func TestOptionsAreChecked(t *testing.T) {
 }
 
 func nan() float64 { var z float64; return z / z }
+
+// An SVG with its fonts embedded carries them as @font-face rules, still
+// parses, and is still the same from run to run.
+func TestEmbedFonts(t *testing.T) {
+	draw := func(w io.Writer, o Options) error {
+		o.EmbedFonts = true
+		return WriteSpider(w, demoSpider(), o)
+	}
+	a, b := render(t, draw, Options{}), render(t, draw, Options{})
+	if !bytes.Equal(a, b) {
+		t.Errorf("two runs differ")
+	}
+	doc := parseSVG(t, a)
+	if n := bytes.Count(a, []byte("@font-face")); n != 2 {
+		t.Errorf("%d embedded faces, want 2 (regular and bold)", n)
+	}
+	if doc.count("Licence fee") != 1 {
+		t.Errorf("text lost: %q", doc.strings())
+	}
+	plain := render(t, func(w io.Writer, o Options) error { return WriteSpider(w, demoSpider(), o) }, Options{})
+	if bytes.Contains(plain, []byte("@font-face")) {
+		t.Errorf("fonts embedded without being asked for")
+	}
+}

@@ -80,12 +80,16 @@ func (m marker) outline(pt vg.Point, r vg.Length) vg.Path {
 }
 
 // switchMark is the symbol for a point where the best option changes: a
-// diamond in the accent colour with a dark rim, larger than any series
-// marker, so it reads by shape and size in greyscale.
+// diamond in the accent colour with a dark rim and a paper halo, larger
+// than any series marker, so it reads by shape and size in greyscale.
 type switchMark struct{}
 
 // DrawGlyph implements draw.GlyphDrawer.
 func (switchMark) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	// A paper halo first, so the mark stands out on a dark bar in
+	// greyscale too, where the accent is about as dark as the bar.
+	c.SetColor(paper)
+	c.Fill(marker{sides: 4}.outline(pt, sty.Radius+1.8))
 	path := marker{sides: 4}.outline(pt, sty.Radius)
 	c.SetColor(accent)
 	c.Fill(path)

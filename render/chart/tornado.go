@@ -120,6 +120,7 @@ func WriteTornado(w io.Writer, t Tornado, opt Options) error {
 	p.Y.Tick.Label.XAlign, p.Y.Tick.Label.YAlign = draw.XRight, draw.YCenter
 	p.Y.LineStyle.Width = 0
 	p.Y.Tick.Length = 0
+	p.Y.Padding = vg.Points(8) // between the names and the end labels
 
 	hb := &hbars{base: t.Base, bars: bars}
 	p.Add(gridLines(true, false), hb)
