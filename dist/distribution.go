@@ -16,10 +16,10 @@ type Distribution interface {
 	Mean() float64
 	// Variance returns the variance.
 	Variance() float64
-	// Quantile returns the smallest x with CDF(x) ≥ p, for p in [0, 1]
-	// (−Inf or +Inf at p = 0 or 1 for an unbounded distribution). It
-	// returns NaN for p outside [0, 1] or NaN. Quantile(u) of a uniform u
-	// is a draw from the distribution.
+	// Quantile returns the smallest x with CDF(x) ≥ p for p in (0, 1];
+	// Quantile(0) is the lower end of the support (−Inf, and +Inf at 1,
+	// for an unbounded distribution). It returns NaN for p outside [0, 1]
+	// or NaN. Quantile(u) of a uniform u is a draw from the distribution.
 	Quantile(p float64) float64
 	// CDF returns P(X ≤ x).
 	CDF(x float64) float64
