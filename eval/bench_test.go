@@ -6,6 +6,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
@@ -26,84 +27,63 @@ var benchTree = sync.OnceValue(func() *tree.Model {
 			p2 := rng.Int63n(90 - p1)
 			p3 := rng.Int63n(100 - p1 - p2)
 			bs = []*tree.Branch{
-				tree.Outcome("a", decimal.New(p1, -2), decimal.New(rng.Int63n(10000), 0), build(depth+1)),
-				tree.Outcome("b", decimal.New(p2, -2), decimal.New(-rng.Int63n(10000), 0), build(depth+1)),
-				tree.Outcome("c", decimal.New(p3, -2), decimal.New(rng.Int63n(100000), -2), build(depth+1)),
-				tree.RestOutcome("d", decimal.New(rng.Int63n(1000), -2), build(depth+1)),
+				tree.Outcome("a", tree.Num(decimal.New(p1, -2)), tree.Gain(tree.Num(decimal.New(rng.Int63n(10000), 0))), build(depth+1)),
+				tree.Outcome("b", tree.Num(decimal.New(p2, -2)), tree.Gain(tree.Num(decimal.New(-rng.Int63n(10000), 0))), build(depth+1)),
+				tree.Outcome("c", tree.Num(decimal.New(p3, -2)), tree.Gain(tree.Num(decimal.New(rng.Int63n(100000), -2))), build(depth+1)),
+				tree.RestOutcome("d", tree.Gain(tree.Num(decimal.New(rng.Int63n(1000), -2))), build(depth+1)),
 			}
 			return tree.Chance("c", bs...)
 		}
 		for i := 0; i < 3; i++ {
-			bs = append(bs, tree.Choice(string(rune('x'+i)), decimal.New(rng.Int63n(5000)-2500, 0), build(depth+1)))
+			bs = append(bs, tree.Choice(string(rune('x'+i)), tree.Gain(tree.Num(decimal.New(rng.Int63n(5000)-2500, 0))), build(depth+1)))
 		}
 		return tree.Decision("d", bs...)
 	}
-	m := &tree.Model{Root: build(0)}
-	if ds := m.Resolve(nil); ds.HasErrors() {
-		panic(ds.Error())
-	}
-	return m
+	return &tree.Model{Root: build(0)}
 })
 
-// floatNode is the same tree in float64, for the reference rollback.
-type floatNode struct {
-	kind  tree.Kind
-	value float64
-	p, c  []float64
-	kids  []*floatNode
-}
-
-func toFloat(n *tree.Node) *floatNode {
-	f := &floatNode{kind: n.Kind, value: n.Value.InexactFloat64()}
-	for _, b := range n.Branches {
-		f.p = append(f.p, b.P.InexactFloat64())
-		f.c = append(f.c, b.C.InexactFloat64())
-		f.kids = append(f.kids, toFloat(b.Node))
+// benchCompiled is benchTree compiled, once per process.
+var benchCompiled = sync.OnceValue(func() *compiled.Model {
+	c, ds := compiled.Compile(benchTree())
+	if ds.HasErrors() {
+		panic(ds.Error())
 	}
-	return f
-}
+	return c
+})
 
-// floatRollback is a plain float64 rollback: the practical floor for any
-// rollback of this tree.
-func floatRollback(n *floatNode) float64 {
-	switch n.kind {
-	case tree.KindEnd:
-		return n.value
-	case tree.KindChance:
-		v := 0.0
-		for i, k := range n.kids {
-			v += n.p[i] * (n.c[i] + floatRollback(k))
-		}
-		return v
-	}
-	best := 0.0
-	for i, k := range n.kids {
-		v := n.c[i] + floatRollback(k)
-		if i == 0 || v > best {
-			best = v
-		}
-	}
-	return best
-}
-
-var floatTree = sync.OnceValue(func() *floatNode { return toFloat(benchTree().Root) })
-
-func BenchmarkRollbackExact(b *testing.B) {
+// BenchmarkCompile is the cost of compiling the tree: checking it,
+// evaluating every figure, laying it out and deriving the masses.
+func BenchmarkCompile(b *testing.B) {
 	m := benchTree()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := Solve(m); err != nil {
-			b.Fatal(err)
+		if _, ds := compiled.Compile(m); ds.HasErrors() {
+			b.Fatal(ds)
 		}
 	}
 	b.ReportMetric(float64(m.Size()), "nodes")
 }
 
-func BenchmarkRollbackFloat64(b *testing.B) {
-	f := floatTree()
+// BenchmarkRollbackExact is the exact rollback of the compiled tree (the
+// kernel on 128-bit integers), the form built before the timer starts.
+func BenchmarkRollbackExact(b *testing.B) {
+	c := benchCompiled()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		floatRollback(f)
+		c.Rollback()
+	}
+	b.ReportMetric(float64(c.Len()), "nodes")
+}
+
+// BenchmarkRollbackFloat64 is the same kernel on the float64 twin of the
+// same compiled tree: the practical floor.
+func BenchmarkRollbackFloat64(b *testing.B) {
+	c := benchCompiled()
+	t, best := make([]float64, c.Len()), make([]int32, c.Len())
+	c.RollbackFloat(t, best) // the float twin is made once, before timing
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		c.RollbackFloat(t, best)
 	}
 }
 
@@ -111,21 +91,21 @@ func BenchmarkRollbackFloat64(b *testing.B) {
 // one run, and reports exact/float64: the figure BENCHMARKS.md quotes, as
 // the machines are shared and noisy.
 func BenchmarkRollbackRatio(b *testing.B) {
-	m, f := benchTree(), floatTree()
-	var exact, fl time.Duration
+	c := benchCompiled()
+	t, best := make([]float64, c.Len()), make([]int32, c.Len())
+	c.RollbackFloat(t, best)
+	var ex, fl time.Duration
 	for i := 0; i < b.N; i++ {
 		t0 := time.Now()
-		if _, err := Solve(m); err != nil {
-			b.Fatal(err)
-		}
+		c.Rollback()
 		t1 := time.Now()
-		floatRollback(f)
+		c.RollbackFloat(t, best)
 		t2 := time.Now()
-		exact += t1.Sub(t0)
+		ex += t1.Sub(t0)
 		fl += t2.Sub(t1)
 	}
-	b.ReportMetric(float64(exact)/float64(fl), "exact/float64")
-	b.ReportMetric(float64(exact.Milliseconds())/float64(b.N), "exact-ms/op")
+	b.ReportMetric(float64(ex)/float64(fl), "exact/float64")
+	b.ReportMetric(float64(ex.Microseconds())/1000/float64(b.N), "exact-ms/op")
 	b.ReportMetric(float64(fl.Microseconds())/1000/float64(b.N), "float-ms/op")
 }
 
@@ -133,16 +113,17 @@ func TestBenchTreeAgrees(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds a million-node tree")
 	}
-	// The float64 reference must agree with the exact rollback to float
+	// The float64 twin must agree with the exact rollback to float
 	// precision, or the benchmark compares different work.
-	sol, err := Solve(benchTree())
+	c := benchCompiled()
+	sol, err := Solve(c)
 	if err != nil {
 		t.Fatal(err)
 	}
-	exact := sol.Value().InexactFloat64()
-	fl := floatRollback(floatTree())
-	if diff := exact - fl; diff > 1e-6*abs(exact) || -diff > 1e-6*abs(exact) {
-		t.Fatalf("exact %v vs float64 %v", exact, fl)
+	ex := sol.Value().InexactFloat64()
+	fl := c.RollbackFloat(make([]float64, c.Len()), make([]int32, c.Len()))
+	if diff := ex - fl; diff > 1e-9*abs(ex) || -diff > 1e-9*abs(ex) {
+		t.Fatalf("exact %v vs float64 %v", ex, fl)
 	}
 }
 

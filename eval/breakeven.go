@@ -1,10 +1,15 @@
 package eval
 
 import (
+	"context"
+	"errors"
 	"fmt"
+	"math/big"
 	"sort"
 	"strings"
 	"unicode"
+
+	"github.com/forkcast/forkcast/compiled"
 
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
@@ -16,22 +21,29 @@ import (
 // which the optimal choice at a decision changes. The input is a `let`
 // parameter, the probability of a state of a named uncertainty, or the
 // probability of a branch of a plain chance node (see ParseVary for the
-// syntax). The range is sampled on a grid; in each grid interval where the
-// best option changes, the crossing of the two options' values is solved
-// as if they were linear in the input (they are piecewise linear in one
-// probability or cash figure), and checked by solving the tree there: equal
-// values make the switch exact. Otherwise the crossing is bracketed and
-// narrowed (secant steps, bisection as a safeguard) to tree.DivisionScale
-// decimal places and marked approximate. Before that, every grid interval
-// across which some option's value is not a straight line is halved until
-// it is (see refine), so a switch and back again inside one interval is
-// found too; Grid sets how fine the first grid is.
+// syntax). Every sample is the compiled model with the input changed
+// (compiled.Model.With re-evaluates only the figures that depend on it) and
+// one rollback.
+//
+// The range is sampled on a grid, and every grid interval across which
+// some option's value is not a straight line is halved until it is (see
+// refine), so a switch and back again inside one interval is found too.
+// Where the best option changes inside an interval, the interval is
+// narrowed until both options are straight lines across it; their crossing
+// is then a rational number computed exactly, and confirmed by solving the
+// tree at it (or, when it is no finite decimal, just either side of it):
+// such a switch is exact. The values of a decision are piecewise linear in
+// one cash figure or one probability — the pieces are where inner
+// decisions change — so switches are exact unless the input enters the
+// values non-linearly (a probability used twice on one path); then the
+// crossing is narrowed to compiled.DivisionScale decimal places and marked
+// approximate.
 
 // VaryKind says what kind of input a breakeven search varies.
 type VaryKind uint8
 
 const (
-	// VaryParam is a `let` parameter, varied through Resolve's overrides.
+	// VaryParam is a `let` parameter.
 	VaryParam VaryKind = iota
 	// VaryState is the probability of one state of a named uncertainty.
 	VaryState
@@ -165,6 +177,9 @@ func reqErr(format string, args ...any) error {
 // DefaultGrid is the number of intervals FindBreakeven samples the range in.
 const DefaultGrid = 64
 
+// DefaultMaxSamples caps the rollbacks one breakeven search may run.
+const DefaultMaxSamples = 20_000
+
 // BreakevenOptions say what FindBreakeven varies, over what range and at
 // which decision.
 type BreakevenOptions struct {
@@ -172,25 +187,37 @@ type BreakevenOptions struct {
 	// Low and High replace the range; nil takes the parameter's own
 	// `in LOW .. HIGH`, or [0, 1] for a probability.
 	Low, High *decimal.Decimal
-	// At is the label of the decision to watch; "" is the root or, when the
-	// root is not a decision, the first decision on the optimal path.
+	// At is the label of the decision to watch (or BRANCH/DECISION to tell
+	// apart decisions that share a label); "" is the root or, when the root
+	// is not a decision, the first decision on the optimal path.
 	At string
 	// Grid is the number of intervals sampled (DefaultGrid when 0).
 	Grid int
+	// MaxSamples caps the rollbacks (DefaultMaxSamples when 0).
+	MaxSamples int
 }
 
 // Switch is a value of the input at which the optimal choice changes.
 type Switch struct {
-	// At is where it changes. Exact means the two options' values are
-	// equal there exactly; otherwise At is within 10^-tree.DivisionScale
-	// of the switch.
-	At    decimal.Decimal
-	Exact bool
+	// At is where it changes. When Exact, the two options' values are
+	// equal there exactly and Fraction holds the point as a fraction; At is
+	// then that fraction, rounded at compiled.DivisionScale places when it
+	// is no finite decimal. Otherwise At is within
+	// 10^-compiled.DivisionScale of the switch.
+	At       decimal.Decimal
+	Exact    bool
+	Fraction *big.Rat
 	// Below is the option (branch index of the decision) best just below
 	// At, Above the one best just above.
 	Below, Above int
 	// Values holds every option's value at At, in the objective's terms.
 	Values []decimal.Decimal
+}
+
+// IsDecimal reports whether an exact switch point is a finite decimal (At
+// is then exactly the switch).
+func (sw Switch) IsDecimal() bool {
+	return sw.Fraction != nil && sw.At.Rat().Cmp(sw.Fraction) == 0
 }
 
 // Segment is a stretch of the range with one best option (ties go to the
@@ -212,8 +239,8 @@ type Breakeven struct {
 	// Adjust says how the other probabilities make room when a
 	// probability is varied ("" for a parameter).
 	Adjust string
-	// Narrowed is set when the range was cut to keep every probability in
-	// [0, 1]; the Notes say how.
+	// Narrowed is set when the range was cut to keep the model valid; the
+	// Notes say how.
 	Narrowed bool
 	// Decision is the decision watched and Path the branch labels from
 	// the root to it.
@@ -225,23 +252,29 @@ type Breakeven struct {
 	// them. No switch means one option is best over the whole range.
 	Segments []Segment
 	Switches []Switch
+	// Samples is the number of rollbacks the search ran.
+	Samples int
 	// Notes explain choices made along the way.
 	Notes []string
 }
 
-// FindBreakeven varies one input of m over a range and finds where the
-// optimal choice at a decision changes. m is not changed: the search works
-// on a copy. m need not be resolved.
-func FindBreakeven(m *tree.Model, opts BreakevenOptions) (*Breakeven, error) {
-	c := m.Clone()
-	if ds := c.Resolve(nil); ds.HasErrors() {
-		return nil, fmt.Errorf("eval: the model has errors: %w", ds.Err())
+// FindBreakeven varies one input of c over a range and finds where the
+// optimal choice at a decision changes. It stops with ctx.
+func FindBreakeven(ctx context.Context, c *compiled.Model, opts BreakevenOptions) (*Breakeven, error) {
+	if c == nil {
+		return nil, ErrNoModel
 	}
-	s := &search{m: c, obj: c.Objective, be: &Breakeven{Vary: opts.Vary}}
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	s := &search{ctx: ctx, c: c, obj: c.Objective(), be: &Breakeven{Vary: opts.Vary}, maxSamples: opts.MaxSamples}
+	if s.maxSamples <= 0 {
+		s.maxSamples = DefaultMaxSamples
+	}
 	if err := s.target(opts); err != nil {
 		return nil, err
 	}
-	base, err := s.eval(s.be.Current)
+	base, err := Solve(c)
 	if err != nil {
 		return nil, err
 	}
@@ -253,27 +286,58 @@ func FindBreakeven(m *tree.Model, opts BreakevenOptions) (*Breakeven, error) {
 
 // search is one breakeven search.
 type search struct {
-	m   *tree.Model
+	ctx context.Context
+	c   *compiled.Model
 	obj tree.Objective
 	be  *Breakeven
-	// apply sets the input to x before a Resolve; over holds parameter
-	// overrides.
-	apply func(x decimal.Decimal)
-	over  map[string]decimal.Decimal
-	node  int // pre-order index of the decision watched
-	evals int
+	// settings gives the input the value x.
+	settings   func(x decimal.Decimal) []compiled.Setting
+	node       int // compiled number of the decision watched
+	maxSamples int
 }
 
-// sample is the decision's state at one value of the input.
+// sample is the watched decision at one value of the input: every option's
+// T (mass × value, exact) and value (net), and the best option.
 type sample struct {
 	x      decimal.Decimal
+	mass   decimal.Decimal
+	t      []decimal.Decimal
 	values []decimal.Decimal
+	exact  bool // the values are exact (no rounded division)
 	best   int
 }
 
+// y is what straightness and crossings are computed on between samples:
+// T where the decision's mass is the same at all of them (T is exact and
+// linear where the value is), the value otherwise.
+func y(ss ...*sample) func(s *sample, j int) decimal.Decimal {
+	for _, s := range ss[1:] {
+		if !s.mass.Equal(ss[0].mass) {
+			return func(s *sample, j int) decimal.Decimal { return s.values[j] }
+		}
+	}
+	return func(s *sample, j int) decimal.Decimal { return s.t[j] }
+}
+
+// yExact reports whether the figures y uses are exact.
+func yExact(ss ...*sample) bool {
+	for _, s := range ss[1:] {
+		if !s.mass.Equal(ss[0].mass) {
+			for _, s := range ss {
+				if !s.exact {
+					return false
+				}
+			}
+			return true
+		}
+	}
+	return true
+}
+
 var (
-	ulp  = decimal.New(1, -tree.DivisionScale)
+	ulp  = decimal.New(1, -compiled.DivisionScale)
 	half = decimal.New(5, -1)
+	two  = decimal.NewFromInt(2)
 )
 
 // target finds the input, its current value, its range and how the rest
@@ -281,25 +345,25 @@ var (
 func (s *search) target(opts BreakevenOptions) error {
 	v := opts.Vary
 	be := s.be
-	m := s.m
-	var lo, hi decimal.Decimal
+	c := s.c
 	switch v.Kind {
 	case VaryParam:
-		p := m.Param(v.Name)
-		if p == nil {
+		in, ok := c.InputNamed(v.Name)
+		if !ok {
 			return s.unknown(v)
 		}
-		be.What = "parameter " + p.Name
-		be.Current = p.Value
-		s.over = map[string]decimal.Decimal{}
-		s.apply = func(x decimal.Decimal) { s.over[p.Name] = x }
+		be.What = "parameter " + in.Name
+		be.Current = in.Value
+		t, _ := c.InputTarget(in.Name)
+		s.settings = func(x decimal.Decimal) []compiled.Setting { return []compiled.Setting{{Target: t, Value: x}} }
+		var lo, hi decimal.Decimal
 		switch {
 		case opts.Low != nil && opts.High != nil:
 			lo, hi = *opts.Low, *opts.High
-		case p.HasRange():
-			lo, hi = p.LowValue, p.HighValue
+		case in.HasRange:
+			lo, hi = in.Low, in.High
 		default:
-			return reqErr("parameter %q has no range: give one with --in LOW..HIGH, or write `let %s = ... in LOW .. HIGH` in the model", p.Name, p.Name)
+			return reqErr("parameter %q has no range: give the search one, or write `let %s = ... in LOW .. HIGH` in the model", in.Name, in.Name)
 		}
 		if lo.GreaterThan(hi) {
 			return reqErr("the range %s..%s runs downwards: write the smaller bound first", lo, hi)
@@ -307,21 +371,20 @@ func (s *search) target(opts BreakevenOptions) error {
 		be.Low, be.High = lo, hi
 		return nil
 	case VaryState:
-		u := m.Uncertainty(v.Name)
-		if u == nil {
+		u := c.Uncertainty(v.Name)
+		if u < 0 {
 			return s.unknown(v)
 		}
-		si := u.StateIndex(v.Label)
+		un := c.Uncertainties()[u]
+		si := un.StateIndex(v.Label)
 		if si < 0 {
-			return reqErr("uncertainty %q has no state %q; its states are %s", u.Name, v.Label, quoteAll(stateNames(u)))
+			return reqErr("uncertainty %q has no state %q; its states are %s", un.Name, v.Label, quoteAll(stateNames(un)))
 		}
-		be.What = fmt.Sprintf("P(%q), uncertainty %s", v.Label, u.Name)
-		be.Current = u.States[si].P
-		sib := make([]probSlot, len(u.States))
-		for j, st := range u.States {
-			st := st
-			sib[j] = probSlot{label: st.Label, p: st.P, rest: st.Prob == nil,
-				set: func(e tree.Expr, _ bool) { st.Prob = e }}
+		be.What = fmt.Sprintf("P(%q), uncertainty %s", v.Label, un.Name)
+		be.Current = c.Prior(u, si)
+		sib := make([]probSlot, len(un.States))
+		for j, st := range un.States {
+			sib[j] = probSlot{label: st.Label, p: c.Prior(u, j), rest: st.Prob == nil, target: c.StateTarget(u, j)}
 		}
 		adj, err := s.siblings([][]probSlot{sib}, si, "state", opts)
 		if err != nil {
@@ -330,17 +393,13 @@ func (s *search) target(opts BreakevenOptions) error {
 		be.Adjust = adj
 		return nil
 	}
-	// VaryBranch
+	// VaryBranch: every plain chance node with that label.
 	var groups [][]probSlot
 	at := -1
-	labelled := 0
-	tree.Walk(m.Root, func(n *tree.Node, _ int) bool {
-		if n.Kind != tree.KindChance || n.Label != v.Name {
-			return true
-		}
-		labelled++
-		if n.Uncertainty != "" || n.Test != "" {
-			return true
+	for i := 0; i < c.Len(); i++ {
+		n := c.Node(i)
+		if c.Kind(i) != tree.KindChance || n.Label != v.Name || c.SamplesUncertainty(i) >= 0 || c.RunsTest(i) >= 0 {
+			continue
 		}
 		bi := -1
 		for j, b := range n.Branches {
@@ -349,19 +408,16 @@ func (s *search) target(opts BreakevenOptions) error {
 			}
 		}
 		if bi < 0 {
-			return true
+			continue
 		}
 		at = bi
 		sib := make([]probSlot, len(n.Branches))
 		for j, b := range n.Branches {
-			b := b
-			sib[j] = probSlot{label: b.Label, p: b.P, rest: b.Rest,
-				set: func(e tree.Expr, rest bool) { b.Prob, b.Rest = e, rest }}
+			k := c.Child(i, j)
+			sib[j] = probSlot{label: b.Label, p: c.Prob(k), rest: b.Rest, target: c.BranchTarget(k)}
 		}
-		// Keep the varied branch first in a stable place: index bi.
 		groups = append(groups, sib)
-		return true
-	})
+	}
 	if len(groups) == 0 {
 		return s.unknown(v)
 	}
@@ -379,13 +435,13 @@ func (s *search) target(opts BreakevenOptions) error {
 	return nil
 }
 
-// probSlot is one sibling probability: its label, resolved value, whether
-// it is the rest, and how to set its expression.
+// probSlot is one sibling probability: its label, value, whether it is the
+// rest, and the figure to set.
 type probSlot struct {
-	label string
-	p     decimal.Decimal
-	rest  bool
-	set   func(e tree.Expr, rest bool)
+	label  string
+	p      decimal.Decimal
+	rest   bool
+	target compiled.Target
 }
 
 // siblings sets up varying slot vi of every group (a state of an
@@ -410,7 +466,7 @@ func (s *search) siblings(groups [][]probSlot, vi int, kind string, opts Breakev
 		}
 	}
 	var adjust string
-	var applies []func(x decimal.Decimal)
+	var parts []func(x decimal.Decimal) []compiled.Setting
 	limit := one // the largest value that keeps every sibling in [0, 1]
 	if restAt >= 0 {
 		adjust = fmt.Sprintf("the rest %s %q takes up the difference", kind, groups[0][restAt].label)
@@ -424,8 +480,8 @@ func (s *search) siblings(groups [][]probSlot, vi int, kind string, opts Breakev
 			if l := one.Sub(others); l.LessThan(limit) {
 				limit = l
 			}
-			g := g
-			applies = append(applies, func(x decimal.Decimal) { g[vi].set(tree.Num(x), false) })
+			t := g[vi].target
+			parts = append(parts, func(x decimal.Decimal) []compiled.Setting { return []compiled.Setting{{Target: t, Value: x}} })
 		}
 	} else {
 		adjust = fmt.Sprintf("the other %s are rescaled in proportion (none of them is the rest)", plural(kind))
@@ -434,28 +490,31 @@ func (s *search) siblings(groups [][]probSlot, vi int, kind string, opts Breakev
 			if left.Sign() <= 0 {
 				return "", reqErr("the other %s of %q have probability 0, so there is nothing to rescale: make one of them `rest`", plural(kind), be.Vary.Name)
 			}
-			// q[j] = p[j] / (1 − p[vi]); the last sibling becomes the
-			// rest so that the probabilities still sum to 1 exactly.
+			// q[j] = p[j] / (1 − p[vi]); the last sibling takes what the
+			// others leave, so that the probabilities sum to 1 exactly.
 			last := -1
 			q := make([]decimal.Decimal, len(g))
 			for j, sl := range g {
 				if j != vi {
-					q[j] = tree.Div(sl.p, left, true).D
+					q[j], _ = divide(sl.p, left)
 					last = j
 				}
 			}
 			g := g
-			applies = append(applies, func(x decimal.Decimal) {
-				g[vi].set(tree.Num(x), false)
+			parts = append(parts, func(x decimal.Decimal) []compiled.Setting {
+				out := make([]compiled.Setting, 0, len(g))
+				sum := x
 				for j := range g {
 					switch {
 					case j == vi:
-					case j == last:
-						g[j].set(nil, true)
-					default:
-						g[j].set(tree.Num(q[j].Mul(one.Sub(x))), false)
+						out = append(out, compiled.Setting{Target: g[j].target, Value: x})
+					case j != last:
+						p := q[j].Mul(one.Sub(x))
+						sum = sum.Add(p)
+						out = append(out, compiled.Setting{Target: g[j].target, Value: p})
 					}
 				}
+				return append(out, compiled.Setting{Target: g[last].target, Value: one.Sub(sum)})
 			})
 		}
 	}
@@ -467,30 +526,32 @@ func (s *search) siblings(groups [][]probSlot, vi int, kind string, opts Breakev
 		hi, be.Narrowed = limit, true
 	}
 	be.Low, be.High = lo, hi
-	s.apply = func(x decimal.Decimal) {
-		for _, f := range applies {
-			f(x)
+	s.settings = func(x decimal.Decimal) []compiled.Setting {
+		var out []compiled.Setting
+		for _, f := range parts {
+			out = append(out, f(x)...)
 		}
+		return out
 	}
 	return adjust, nil
 }
 
 // unknown explains a name that is not in the model.
 func (s *search) unknown(v Vary) error {
-	m := s.m
+	c := s.c
 	var params, uncs []string
-	for _, p := range m.Params {
-		params = append(params, p.Name)
+	for _, in := range c.Inputs() {
+		params = append(params, in.Name)
 	}
-	for _, u := range m.Uncertainties {
+	for _, u := range c.Uncertainties() {
 		uncs = append(uncs, u.Name)
 	}
 	switch v.Kind {
 	case VaryParam:
-		if u := m.Uncertainty(v.Name); u != nil {
+		if u := c.Uncertainty(v.Name); u >= 0 {
 			var opts []string
-			for _, st := range u.States {
-				opts = append(opts, Vary{Kind: VaryState, Name: u.Name, Label: st.Label}.String())
+			for _, st := range c.Uncertainties()[u].States {
+				opts = append(opts, Vary{Kind: VaryState, Name: v.Name, Label: st.Label}.String())
 			}
 			return reqErr("%q is an uncertainty: vary the probability of one of its states, %s", v.Name, strings.Join(opts, " or "))
 		}
@@ -507,23 +568,22 @@ func (s *search) unknown(v Vary) error {
 		return reqErr("%s (a plain chance branch is NODE/BRANCH)", msg)
 	}
 	// A branch: say what is there.
-	var found *tree.Node
-	tree.Walk(m.Root, func(n *tree.Node, _ int) bool {
-		if found == nil && n.Kind == tree.KindChance && n.Label == v.Name {
-			found = n
+	found := -1
+	for i := 0; i < c.Len() && found < 0; i++ {
+		if c.Kind(i) == tree.KindChance && c.Node(i).Label == v.Name {
+			found = i
 		}
-		return true
-	})
+	}
 	switch {
-	case found == nil:
+	case found < 0:
 		return reqErr("no chance node labelled %q in the model", v.Name)
-	case found.Uncertainty != "":
-		return reqErr("chance node %q samples uncertainty %s: vary %s instead", v.Name, found.Uncertainty, Vary{Kind: VaryState, Name: found.Uncertainty, Label: v.Label})
-	case found.Test != "":
-		return reqErr("chance node %q is test %s: its probabilities come from Bayes' rule; vary the test's uncertainty instead", v.Name, found.Test)
+	case c.Node(found).Uncertainty != "":
+		return reqErr("chance node %q samples uncertainty %s: vary %s instead", v.Name, c.Node(found).Uncertainty, Vary{Kind: VaryState, Name: c.Node(found).Uncertainty, Label: v.Label})
+	case c.Node(found).Test != "":
+		return reqErr("chance node %q is test %s: its probabilities come from Bayes' rule; vary the test's uncertainty instead", v.Name, c.Node(found).Test)
 	}
 	var labels []string
-	for _, b := range found.Branches {
+	for _, b := range c.Node(found).Branches {
 		labels = append(labels, b.Label)
 	}
 	return reqErr("chance node %q has no branch %q; its branches are %s", v.Name, v.Label, quoteAll(labels))
@@ -544,13 +604,7 @@ func stateNames(u *tree.Uncertainty) []string {
 	return out
 }
 
-func quoteAll(xs []string) string {
-	q := make([]string, len(xs))
-	for i, x := range xs {
-		q[i] = fmt.Sprintf("%q", x)
-	}
-	return strings.Join(q, ", ")
-}
+func quoteAll(xs []string) string { return tree.QuoteList(xs) }
 
 // pathHas reports whether a branch labelled via lies on the path from the
 // root to s.
@@ -564,7 +618,7 @@ func pathHas(s *Solved, via string) bool {
 }
 
 // decision picks the decision to watch, on the solution at the current
-// value.
+// value: the first in model order that matches.
 func (s *search) decision(base *Solution, at string) error {
 	nodes := base.Nodes()
 	pick := -1
@@ -603,9 +657,10 @@ func (s *search) decision(base *Solution, at string) error {
 			}
 			return reqErr("no decision labelled %q; the decisions are %s", at, quoteAll(labels))
 		}
+		reach := base.Reachable()
 		pick = all[0]
 		for _, i := range all {
-			if nodes[i].OnPolicy() {
+			if reach[i] {
 				pick = i
 				break
 			}
@@ -616,8 +671,9 @@ func (s *search) decision(base *Solution, at string) error {
 	case nodes[0].Node.Kind == tree.KindDecision:
 		pick = 0
 	default:
+		reach := base.Reachable()
 		for i := range nodes {
-			if nodes[i].Node.Kind == tree.KindDecision && nodes[i].OnPolicy() {
+			if nodes[i].Node.Kind == tree.KindDecision && reach[i] {
 				pick = i
 				break
 			}
@@ -627,8 +683,8 @@ func (s *search) decision(base *Solution, at string) error {
 		}
 		s.be.Notes = append(s.be.Notes, fmt.Sprintf("the root is not a decision; watching the first decision on the optimal path, %q (after %s)", nodes[pick].Node.Label, pathText(&nodes[pick])))
 	}
-	s.node = pick
 	d := &nodes[pick]
+	s.node = d.Number()
 	s.be.Decision = d.Node
 	for _, b := range d.Path() {
 		s.be.Path = append(s.be.Path, b.Label)
@@ -650,40 +706,66 @@ func pathText(s *Solved) string {
 	return joinPath(labels)
 }
 
-// eval resolves and solves the model with the input at x.
-func (s *search) eval(x decimal.Decimal) (*Solution, error) {
-	s.apply(x)
-	s.evals++
-	if ds := s.m.Resolve(s.over); ds.HasErrors() {
-		first := ds.Errors()[0]
-		where := ""
-		if first.Pos.IsValid() {
-			where = fmt.Sprintf(" at line %d, column %d", first.Pos.Line, first.Pos.Col)
-		}
-		return nil, fmt.Errorf("with %s = %s the model has errors (first%s: %s); narrow the range with --in", s.be.Vary, x, where, first.Summary)
+// with is the compiled model with the input at x.
+func (s *search) with(x decimal.Decimal) (*compiled.Model, error) {
+	if s.be.Samples >= s.maxSamples {
+		return nil, &BudgetError{What: fmt.Sprintf("more than %d rollbacks", s.maxSamples), Option: "BreakevenOptions.MaxSamples"}
 	}
-	return Solve(s.m)
+	if err := s.ctx.Err(); err != nil {
+		return nil, err
+	}
+	s.be.Samples++
+	cs, err := s.c.With(s.settings(x)...)
+	if err != nil {
+		var inv *compiled.InvalidError
+		if errors.As(err, &inv) {
+			first := inv.Diagnostics[0]
+			where := ""
+			if first.Pos.IsValid() {
+				where = fmt.Sprintf(" at line %d, column %d", first.Pos.Line, first.Pos.Col)
+			}
+			return nil, &invalidAt{x: x, msg: fmt.Sprintf("with %s = %s the model has errors (first%s: %s); narrow the range", s.be.Vary, x, where, first.Summary), diag: first}
+		}
+		return nil, err
+	}
+	return cs, nil
 }
 
+// invalidAt is a value of the input at which the model is not valid.
+type invalidAt struct {
+	x    decimal.Decimal
+	msg  string
+	diag tree.Diagnostic
+}
+
+func (e *invalidAt) Error() string { return e.msg }
+
 func (s *search) sample(x decimal.Decimal) (*sample, error) {
-	sol, err := s.eval(x)
+	cs, err := s.with(x)
 	if err != nil {
 		return nil, err
 	}
-	d := &sol.Nodes()[s.node]
-	sm := &sample{x: x, best: d.Chosen(), values: make([]decimal.Decimal, len(d.Node.Branches))}
-	for j := range sm.values {
-		sm.values[j] = d.BranchValue(j)
+	r := cs.Rollback()
+	from, to := cs.Kids(s.node)
+	sm := &sample{x: x, best: r.Best(s.node), mass: cs.Mass(s.node), exact: true,
+		t: make([]decimal.Decimal, to-from), values: make([]decimal.Decimal, to-from)}
+	for k := from; k < to; k++ {
+		sm.t[k-from] = r.Weighted(k)
+		v, ok := r.Total(k)
+		sm.values[k-from] = v
+		sm.exact = sm.exact && ok
 	}
 	return sm, nil
 }
 
-// valid reports whether the model resolves without errors with the input
-// at x.
-func (s *search) valid(x decimal.Decimal) bool {
-	s.apply(x)
-	s.evals++
-	return !s.m.Resolve(s.over).HasErrors()
+// valid reports whether the model is valid with the input at x.
+func (s *search) valid(x decimal.Decimal) (bool, error) {
+	_, err := s.with(x)
+	var inv *invalidAt
+	if errors.As(err, &inv) {
+		return false, nil
+	}
+	return err == nil, err
 }
 
 // feasible narrows a parameter's range to where the model is valid (a
@@ -695,32 +777,47 @@ func (s *search) feasible() error {
 	be := s.be
 	cur := be.Current
 	for _, end := range []*decimal.Decimal{&be.Low, &be.High} {
-		if s.valid(*end) {
+		ok, err := s.valid(*end)
+		if err != nil {
+			return err
+		}
+		if ok {
 			continue
 		}
-		if cur.LessThan(be.Low) || cur.GreaterThan(be.High) || !s.valid(cur) {
-			_, err := s.eval(*end)
+		if cur.LessThan(be.Low) || cur.GreaterThan(be.High) {
+			_, err := s.with(*end)
 			return &RequestError{Msg: err.Error()}
 		}
 		good, bad := cur, *end
 		for good.Sub(bad).Abs().GreaterThan(ulp) {
-			mid := good.Add(bad).Mul(half).Round(tree.DivisionScale)
+			mid := good.Add(bad).Mul(half).Round(compiled.DivisionScale)
 			if mid.Equal(good) || mid.Equal(bad) {
 				break
 			}
-			if s.valid(mid) {
+			ok, err := s.valid(mid)
+			if err != nil {
+				return err
+			}
+			if ok {
 				good = mid
 			} else {
 				bad = mid
 			}
 		}
+		if good.Equal(cur) {
+			return s.stuck(bad)
+		}
 		bound := good
-		tol := decimal.New(1, -(tree.DivisionScale - 5))
-		for places := int32(0); places < tree.DivisionScale; places++ {
+		tol := decimal.New(1, -(compiled.DivisionScale - 5))
+		for places := int32(0); places < compiled.DivisionScale; places++ {
 			r := good.Round(places)
-			if r.Sub(good).Abs().LessThanOrEqual(tol) && s.valid(r) {
-				bound = r
-				break
+			if r.Sub(good).Abs().LessThanOrEqual(tol) {
+				if ok, err := s.valid(r); err != nil {
+					return err
+				} else if ok {
+					bound = r
+					break
+				}
 			}
 		}
 		side := "top"
@@ -733,12 +830,26 @@ func (s *search) feasible() error {
 	return nil
 }
 
-// g is a value as goodness: higher is better.
-func (s *search) g(v decimal.Decimal) decimal.Decimal {
-	if s.obj == tree.Min {
-		return v.Neg()
+// stuck explains an input that cannot move at all from its current value
+// without making the model invalid: typically a `let` used as the
+// probability of a state of an uncertainty with no `rest` state, so that
+// its states would no longer sum to 1.
+func (s *search) stuck(bad decimal.Decimal) error {
+	_, err := s.with(bad)
+	var inv *invalidAt
+	if !errors.As(err, &inv) {
+		return err
 	}
-	return v
+	msg := fmt.Sprintf("%s cannot move from %s without making the model invalid (%s)", s.be.What, s.be.Current, inv.diag.Error())
+	if strings.Contains(inv.diag.Summary, "sum to") {
+		msg += "; the probabilities it feeds would no longer sum to 1: give the uncertainty or chance node a `rest` state or branch to take up the difference"
+		for _, u := range s.c.Uncertainties() {
+			if strings.Contains(inv.diag.Summary, fmt.Sprintf("%q", u.Name)) && len(u.States) > 0 {
+				msg += fmt.Sprintf(", or vary the state's probability itself (%s), which rescales the other states", Vary{Kind: VaryState, Name: u.Name, Label: u.States[0].Label})
+			}
+		}
+	}
+	return &RequestError{Msg: msg}
 }
 
 func (s *search) run(opts BreakevenOptions) (*Breakeven, error) {
@@ -760,7 +871,7 @@ func (s *search) run(opts BreakevenOptions) (*Breakeven, error) {
 	for i := 0; i <= n; i++ {
 		x := be.High
 		if i < n {
-			x = be.Low.Add(width.Mul(decimal.NewFromInt(int64(i))).DivRound(decimal.NewFromInt(int64(n)), tree.DivisionScale))
+			x = be.Low.Add(width.Mul(decimal.NewFromInt(int64(i))).DivRound(decimal.NewFromInt(int64(n)), compiled.DivisionScale))
 		}
 		sm, err := s.sample(x)
 		if err != nil {
@@ -795,15 +906,16 @@ func (s *search) run(opts BreakevenOptions) (*Breakeven, error) {
 }
 
 // Refinement limits: how often a grid interval may be halved where the
-// options' values bend, and how many extra tree solves that may cost in all.
+// options' values bend, and how many extra samples that may cost in all.
 const (
 	maxRefineDepth   = 24
 	maxRefineSamples = 4096
 )
 
 // bendTolerance is how far from a straight line a value may sit and still
-// count as straight: posteriors rounded at DivisionScale leave noise far
-// below it, while any real bend in money is far above it.
+// count as straight when the values went through a rounded division: the
+// rounding leaves noise far below it, while any real bend in money is far
+// above it. Exact values must be exactly straight.
 var bendTolerance = decimal.New(1, -30)
 
 type cell struct {
@@ -812,10 +924,11 @@ type cell struct {
 }
 
 // refine splits the grid intervals until every option's value is a
-// straight line across each of them (checked at the midpoint), so that a
-// switch and a switch back inside one interval cannot hide: where every
-// option is linear across an interval, an option best at both ends is best
-// throughout. The intervals come back in order.
+// straight line across each of them (checked at the midpoint: the values
+// are convex in the input — the best of lines — so a midpoint on the chord
+// means a line), so that a switch and a switch back inside one interval
+// cannot hide: where every option is linear across an interval, an option
+// best at both ends is best throughout. The intervals come back in order.
 func (s *search) refine(grid []*sample) ([]cell, error) {
 	var out []cell
 	work := make([]cell, 0, len(grid))
@@ -837,12 +950,16 @@ func (s *search) refine(grid []*sample) ([]cell, error) {
 			out = append(out, c)
 			continue
 		}
-		m, err := s.sample(c.a.x.Add(c.b.x).Mul(half).Round(tree.DivisionScale))
+		m, err := s.sample(c.a.x.Add(c.b.x).Mul(half).Round(compiled.DivisionScale))
 		if err != nil {
 			return nil, err
 		}
 		extra++
-		if straight(c.a, m, c.b) {
+		all := make([]int, len(m.t))
+		for i := range all {
+			all[i] = i
+		}
+		if straight(c.a, m, c.b, all...) {
 			out = append(out, c)
 			continue
 		}
@@ -851,12 +968,14 @@ func (s *search) refine(grid []*sample) ([]cell, error) {
 	return out, nil
 }
 
-// straight reports whether every option's value at m is the mean of its
-// values at a and b.
-func straight(a, m, b *sample) bool {
-	for i := range m.values {
-		bend := a.values[i].Add(b.values[i]).Sub(m.values[i].Mul(decimal.NewFromInt(2))).Abs()
-		if bend.GreaterThan(bendTolerance) {
+// straight reports whether the given options' values at m lie on the
+// chords from a to b (m is the midpoint).
+func straight(a, m, b *sample, options ...int) bool {
+	f := y(a, m, b)
+	exact := yExact(a, m, b)
+	for _, i := range options {
+		bend := f(a, i).Add(f(b, i)).Sub(f(m, i).Mul(two)).Abs()
+		if (exact && !bend.IsZero()) || bend.GreaterThan(bendTolerance) {
 			return false
 		}
 	}
@@ -899,100 +1018,127 @@ func (s *search) between(a, b *sample) ([]Switch, error) {
 	return out, nil
 }
 
-// narrow closes in on the switch between a and b (best options A and B).
-// It returns the switch, or a sample in between where a third option is
-// best (split there and look on both sides).
+// narrow closes in on the switch between a and b (best options A and B):
+// it halves the interval until both options are straight lines across it
+// (a quarter point checked too, so a curve cannot pass for a line), then
+// solves their crossing exactly. It returns the switch, or a sample in
+// between where a third option is best (split there and look on both
+// sides).
 func (s *search) narrow(a, b *sample) (*Switch, *sample, error) {
 	A, B := a.best, b.best
-	slow := 0
-	for iter := 0; ; iter++ {
+	for {
 		if a.best == b.best {
 			return nil, nil, nil
 		}
 		width := b.x.Sub(a.x)
-		if width.LessThanOrEqual(ulp) || iter > 4*tree.DivisionScale+200 {
-			x := a.x.Add(b.x).Mul(half).Round(tree.DivisionScale)
-			m, err := s.sample(x)
+		mid := a.x.Add(b.x).Mul(half).Round(compiled.DivisionScale)
+		if width.LessThanOrEqual(ulp) || mid.Equal(a.x) || mid.Equal(b.x) {
+			m, err := s.sample(mid)
 			if err != nil {
 				return nil, nil, err
 			}
-			return &Switch{At: x, Below: A, Above: B, Values: m.values}, nil, nil
+			return &Switch{At: mid, Below: A, Above: B, Values: s.figures(m.values)}, nil, nil
 		}
-		da := s.g(a.values[A]).Sub(s.g(a.values[B])) // ≥ 0: A is best at a
-		db := s.g(b.values[A]).Sub(s.g(b.values[B])) // ≤ 0: B is best at b
-		den := da.Sub(db)
-		var x decimal.Decimal
-		switch {
-		case slow >= 2 || den.Sign() <= 0:
-			x = a.x.Add(b.x).Mul(half).Round(tree.DivisionScale)
-			slow = 0
-		default:
-			x = a.x.Add(tree.Div(width.Mul(da), den, true).D)
-		}
-		if x.LessThan(a.x) {
-			x = a.x
-		}
-		if x.GreaterThan(b.x) {
-			x = b.x
-		}
-		// A crossing at an end: the two options tie there. Check that the
-		// option on the other side is best just inside, then it is exact.
-		if x.Equal(a.x) || x.Equal(b.x) {
-			mid, err := s.sample(a.x.Add(b.x).Mul(half).Round(tree.DivisionScale))
-			if err != nil {
-				return nil, nil, err
-			}
-			if mid.best != A && mid.best != B {
-				return nil, mid, nil
-			}
-			end := a
-			if x.Equal(b.x) {
-				end = b
-			}
-			if (end == a && mid.best == B) || (end == b && mid.best == A) {
-				return &Switch{At: end.x, Exact: true, Below: A, Above: B, Values: end.values}, nil, nil
-			}
-			if mid.best == A {
-				a = mid
-			} else {
-				b = mid
-			}
-			continue
-		}
-		m, err := s.sample(x)
+		m, err := s.sample(mid)
 		if err != nil {
 			return nil, nil, err
 		}
 		if m.best != A && m.best != B {
 			return nil, m, nil
 		}
-		if m.values[A].Equal(m.values[B]) {
-			return &Switch{At: x, Exact: true, Below: A, Above: B, Values: m.values}, nil, nil
-		}
-		// Rounded: look one place either side before narrowing further.
-		nb := x.Add(ulp)
-		if m.best == B {
-			nb = x.Sub(ulp)
-		}
-		if nb.GreaterThan(a.x) && nb.LessThan(b.x) {
-			n, err := s.sample(nb)
+		if straight(a, m, b, A, B) && yExact(a, m, b) {
+			q, err := s.sample(a.x.Add(mid).Mul(half).Round(compiled.DivisionScale))
 			if err != nil {
 				return nil, nil, err
 			}
-			if n.best != m.best && (n.best == A || n.best == B) {
-				return &Switch{At: x, Below: A, Above: B, Values: m.values}, nil, nil
+			if q.best != A && q.best != B {
+				return nil, q, nil
+			}
+			if straight(a, q, m, A, B) && yExact(a, q, m) {
+				if sw, err := s.crossing(a, b, A, B); err != nil || sw != nil {
+					return sw, nil, err
+				}
 			}
 		}
-		old := width
 		if m.best == A {
 			a = m
 		} else {
 			b = m
 		}
-		if b.x.Sub(a.x).Mul(decimal.NewFromInt(2)).GreaterThan(old) {
-			slow++
-		} else {
-			slow = 0
-		}
 	}
+}
+
+// crossing solves where options A and B, straight lines between a and b,
+// cross, exactly, and confirms it by solving the tree there (or either side
+// of it when it is no finite decimal). It returns nil when the
+// confirmation fails, so that narrowing goes on.
+func (s *search) crossing(a, b *sample, A, B int) (*Switch, error) {
+	f := y(a, b)
+	ya := new(big.Rat).Sub(f(a, A).Rat(), f(a, B).Rat()) // > 0 or = 0: A is best at a
+	yb := new(big.Rat).Sub(f(b, A).Rat(), f(b, B).Rat()) // < 0 or = 0: B is best at b
+	den := new(big.Rat).Sub(ya, yb)
+	if den.Sign() == 0 {
+		return nil, nil
+	}
+	ax, bx := a.x.Rat(), b.x.Rat()
+	// x = a + (b − a) · ya / (ya − yb)
+	x := new(big.Rat).Mul(new(big.Rat).Sub(bx, ax), new(big.Rat).Quo(ya, den))
+	x.Add(x, ax)
+	if x.Cmp(ax) < 0 || x.Cmp(bx) > 0 {
+		return nil, nil
+	}
+	at := decimal.NewFromBigRat(x, compiled.DivisionScale)
+	if at.Rat().Cmp(x) == 0 {
+		// A finite decimal: solve the tree there.
+		m, err := s.sample(at)
+		if err != nil {
+			return nil, err
+		}
+		if m.t[A].Equal(m.t[B]) && (m.best == A || m.best == B) {
+			return &Switch{At: at, Exact: true, Fraction: x, Below: A, Above: B, Values: s.figures(m.values)}, nil
+		}
+		return nil, nil
+	}
+	// No finite decimal: the options must be best just below and just
+	// above it.
+	lo := decimal.NewFromBigRat(x, compiled.DivisionScale)
+	if lo.Rat().Cmp(x) > 0 {
+		lo = lo.Sub(ulp)
+	}
+	hi := lo.Add(ulp)
+	below, err := s.sample(lo)
+	if err != nil {
+		return nil, err
+	}
+	above, err := s.sample(hi)
+	if err != nil {
+		return nil, err
+	}
+	if below.best != A || above.best != B {
+		return nil, nil
+	}
+	// Every option's value at the crossing, on its line through below and
+	// above (every option is straight there: the interval is far inside
+	// one piece).
+	g := y(below, above)
+	values := make([]decimal.Decimal, len(below.values))
+	w := new(big.Rat).Quo(new(big.Rat).Sub(x, lo.Rat()), ulp.Rat())
+	for j := range values {
+		v0, v1 := g(below, j).Rat(), g(above, j).Rat()
+		v := new(big.Rat).Add(v0, new(big.Rat).Mul(w, new(big.Rat).Sub(v1, v0)))
+		if below.mass.Equal(above.mass) && !below.mass.Equal(one) {
+			v.Quo(v, below.mass.Rat())
+		}
+		values[j] = decimal.NewFromBigRat(v, compiled.DivisionScale)
+	}
+	return &Switch{At: at, Exact: true, Fraction: x, Below: A, Above: B, Values: s.figures(values)}, nil
+}
+
+// figures turns net values into the objective's terms.
+func (s *search) figures(vs []decimal.Decimal) []decimal.Decimal {
+	out := make([]decimal.Decimal, len(vs))
+	for i, v := range vs {
+		out[i] = s.obj.Figure(v)
+	}
+	return out
 }

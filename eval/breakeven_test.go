@@ -1,6 +1,7 @@
 package eval
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"math/big"
@@ -8,6 +9,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
@@ -23,7 +25,7 @@ func breakeven(t *testing.T, m *tree.Model, vary string, lo, hi, at string) *Bre
 		l, h := d(lo), d(hi)
 		opts.Low, opts.High = &l, &h
 	}
-	be, err := FindBreakeven(m, opts)
+	be, err := FindBreakeven(context.Background(), mustCompile(t, m), opts)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -87,14 +89,14 @@ func TestBreakevenOilPrior(t *testing.T) {
 // treating gains the net benefit b if the patient has the disease and
 // costs the net harm h if not; not treating is the reference (0).
 func treatModel(b, h string, rest bool) *tree.Model {
-	no := tree.Outcome("No disease", d("0.5"), d(h).Neg(), nil)
+	no := tree.Outcome("No disease", tree.Num(d("0.5")), tree.Gain(tree.Num(d(h).Neg())), nil)
 	if rest {
-		no = tree.RestOutcome("No disease", d(h).Neg(), nil)
+		no = tree.RestOutcome("No disease", tree.Gain(tree.Num(d(h).Neg())), nil)
 	}
 	return &tree.Model{Root: tree.Decision("Treat?",
-		tree.Choice("Treat", decimal.Zero, tree.Chance("Disease?",
-			tree.Outcome("Disease", d("0.5"), d(b), nil), no)),
-		tree.Choice("Do not treat", decimal.Zero, nil))}
+		tree.Choice("Treat", tree.NoCash, tree.Chance("Disease?",
+			tree.Outcome("Disease", tree.Num(d("0.5")), tree.Gain(tree.Num(d(b))), nil), no)),
+		tree.Choice("Do not treat", tree.NoCash, nil))}
 }
 
 func TestBreakevenThreshold(t *testing.T) {
@@ -111,7 +113,7 @@ func TestBreakevenThreshold(t *testing.T) {
 			want := new(big.Rat).Quo(hr, new(big.Rat).Add(hr, br))
 			near(t, "threshold B="+c.b+" H="+c.h, sw.At, want)
 			exact := new(big.Rat).SetFrac(want.Num(), want.Denom())
-			if d := decimal.NewFromBigRat(exact, tree.DivisionScale); d.Rat().Cmp(want) == 0 && !sw.Exact {
+			if d := decimal.NewFromBigRat(exact, compiled.DivisionScale); d.Rat().Cmp(want) == 0 && !sw.Exact {
 				t.Errorf("B=%s H=%s: threshold %s is a terminating decimal but not reported exact", c.b, c.h, sw.At)
 			}
 			if be.Options[sw.Below] != "Do not treat" || be.Options[sw.Above] != "Treat" {
@@ -131,10 +133,10 @@ func cashModel() *tree.Model {
 	return &tree.Model{
 		Params: []*tree.Param{{Name: "x", Expr: tree.Num(d("10")), Low: tree.Num(d("0")), High: tree.Num(d("200"))}},
 		Root: tree.Decision("Pick",
-			&tree.Branch{Label: "Low", Cash: &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: x()}},
-			tree.Choice("Flat", d("50"), nil),
-			&tree.Branch{Label: "High", Cash: &tree.Binary{Op: '-', X: x(), Y: tree.Num(d("80"))}},
-			tree.Choice("Never", d("-1000"), nil)),
+			&tree.Branch{Label: "Low", Gain: &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: x()}},
+			tree.Choice("Flat", tree.Gain(tree.Num(d("50"))), nil),
+			&tree.Branch{Label: "High", Gain: &tree.Binary{Op: '-', X: x(), Y: tree.Num(d("80"))}},
+			tree.Choice("Never", tree.Gain(tree.Num(d("-1000"))), nil)),
 	}
 }
 
@@ -162,14 +164,19 @@ func TestBreakevenCash(t *testing.T) {
 	// A crossing that is not a terminating decimal: 100 − 3x = 0 at 100/3
 	// (by hand).
 	m := cashModel()
-	m.Root.Branches[0].Cash = &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: &tree.Binary{Op: '*', X: tree.Num(d("3")), Y: &tree.Name{Name: "x"}}}
-	m.Root.Branches[1].Cash = tree.Num(decimal.Zero)
-	m.Root.Branches[2].Cash = tree.Num(d("-500"))
+	m.Root.Branches[0].Gain = &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: &tree.Binary{Op: '*', X: tree.Num(d("3")), Y: &tree.Name{Name: "x"}}}
+	m.Root.Branches[1].Gain = tree.Num(decimal.Zero)
+	m.Root.Branches[2].Gain = tree.Num(d("-500"))
 	be = breakeven(t, m, "x", "", "", "")
-	if len(be.Switches) != 1 || be.Switches[0].Exact {
+	if len(be.Switches) != 1 {
 		t.Fatalf("switches %+v", be.Switches)
 	}
 	near(t, "100/3", be.Switches[0].At, big.NewRat(100, 3))
+	// The values are lines in x, so the switch is exact: as a fraction,
+	// since 100/3 is no finite decimal.
+	if sw := be.Switches[0]; !sw.Exact || sw.Fraction == nil || sw.Fraction.Cmp(big.NewRat(100, 3)) != 0 || sw.IsDecimal() {
+		t.Errorf("switch at 100/3: exact %v, fraction %v, decimal %v", sw.Exact, sw.Fraction, sw.IsDecimal())
+	}
 }
 
 // TestBreakevenNonlinear: a probability used twice makes the value
@@ -179,12 +186,12 @@ func TestBreakevenNonlinear(t *testing.T) {
 	m := &tree.Model{
 		Params: []*tree.Param{{Name: "p", Expr: tree.Num(d("0.2")), Low: tree.Num(d("0")), High: tree.Num(d("1"))}},
 		Root: tree.Decision("Pick",
-			tree.Choice("Both", decimal.Zero, tree.Chance("First",
+			tree.Choice("Both", tree.NoCash, tree.Chance("First",
 				&tree.Branch{Label: "Yes", Prob: p(), Node: tree.Chance("Second",
-					&tree.Branch{Label: "Yes", Prob: p(), Cash: tree.Num(d("100"))},
+					&tree.Branch{Label: "Yes", Prob: p(), Gain: tree.Num(d("100"))},
 					&tree.Branch{Label: "No", Rest: true})},
 				&tree.Branch{Label: "No", Rest: true})),
-			tree.Choice("Sure", d("30"), nil)),
+			tree.Choice("Sure", tree.Gain(tree.Num(d("30"))), nil)),
 	}
 	be := breakeven(t, m, "p", "", "", "")
 	if len(be.Switches) != 1 || be.Switches[0].Exact {
@@ -205,10 +212,11 @@ func TestBreakevenAt(t *testing.T) {
 	// base of 40 → 45 at "Later" it moves to 65.
 	m := cashModel()
 	m.Root = tree.Decision("Root",
-		&tree.Branch{Label: "Cash game", Cash: &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: &tree.Name{Name: "x"}}},
-		tree.Choice("Wait", decimal.Zero, tree.Decision("Later",
-			tree.Choice("Forty-five", d("45"), nil),
-			&tree.Branch{Label: "Minus twenty", Cash: &tree.Binary{Op: '-', X: &tree.Name{Name: "x"}, Y: tree.Num(d("20"))}})))
+		&tree.Branch{Label: "Cash game", Gain: &tree.Binary{Op: '-', X: tree.Num(d("100")), Y: &tree.Name{Name: "x"}}},
+		tree.Choice("Wait", tree.NoCash, tree.Decision("Later",
+			tree.Choice("Forty-five", tree.Gain(tree.Num(d("45"))), nil),
+			&tree.Branch{Label: "Minus twenty", Gain: &tree.Binary{Op: '-', X: &tree.Name{Name: "x"}, Y: tree.Num(d("20"))}})),
+	)
 	root := breakeven(t, m, "x", "", "", "")
 	// By hand: 100 − x = 45 at x = 55 (then x − 20 = 35 < 45).
 	if len(root.Switches) != 1 {
@@ -230,11 +238,11 @@ func TestBreakevenNarrowed(t *testing.T) {
 	// Invented: three branches, the varied one with 30% fixed beside it
 	// and a rest: it can be at most 70%.
 	m := &tree.Model{Root: tree.Decision("Go?",
-		tree.Choice("Go", decimal.Zero, tree.Chance("Market",
-			tree.Outcome("Boom", d("0.2"), d("100"), nil),
-			tree.Outcome("Flat", d("0.3"), d("10"), nil),
-			tree.RestOutcome("Bust", d("-50"), nil))),
-		tree.Choice("Stay", decimal.Zero, nil))}
+		tree.Choice("Go", tree.NoCash, tree.Chance("Market",
+			tree.Outcome("Boom", tree.Num(d("0.2")), tree.Gain(tree.Num(d("100"))), nil),
+			tree.Outcome("Flat", tree.Num(d("0.3")), tree.Gain(tree.Num(d("10"))), nil),
+			tree.RestOutcome("Bust", tree.Gain(tree.Num(d("-50"))), nil))),
+		tree.Choice("Stay", tree.NoCash, nil))}
 	mustSolve(t, m)
 	be := breakeven(t, m, "Market/Boom", "", "", "")
 	wantDec(t, "high end", be.High, "0.7")
@@ -247,8 +255,8 @@ func TestBreakevenNarrowed(t *testing.T) {
 	}
 	near(t, "switch", be.Switches[0].At, big.NewRat(16, 75))
 	// The caller's model is untouched.
-	if m.Root.Branches[0].Node.Branches[0].P.String() != "0.2" {
-		t.Errorf("model changed: %s", m.Root.Branches[0].Node.Branches[0].P)
+	if got := m.Root.Branches[0].Node.Branches[0].Prob.String(); got != "0.2" {
+		t.Errorf("model changed: %s", got)
 	}
 }
 
@@ -289,7 +297,7 @@ func TestBreakevenBadRequests(t *testing.T) {
 			l, h := d(c.lo), d(c.hi)
 			opts.Low, opts.High = &l, &h
 		}
-		_, err = FindBreakeven(m, opts)
+		_, err = FindBreakeven(context.Background(), mustCompile(t, m), opts)
 		var re *RequestError
 		if !errors.As(err, &re) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%s %s..%s at %q: error %v, want a RequestError with %q", c.vary, c.lo, c.hi, c.at, err, c.want)
@@ -298,7 +306,7 @@ func TestBreakevenBadRequests(t *testing.T) {
 	// A parameter with no range and no --in.
 	m.Params[0].Low, m.Params[0].High = nil, nil
 	v, _ := ParseVary("p_oil")
-	if _, err := FindBreakeven(m, BreakevenOptions{Vary: v}); err == nil || !strings.Contains(err.Error(), "no range") {
+	if _, err := FindBreakeven(context.Background(), mustCompile(t, m), BreakevenOptions{Vary: v}); err == nil || !strings.Contains(err.Error(), "no range") {
 		t.Errorf("no range: %v", err)
 	}
 }
@@ -317,7 +325,12 @@ func TestBreakevenRandomLines(t *testing.T) {
 		for i := range a {
 			a[i], b[i] = int64(r.Intn(41)-20), int64(r.Intn(11)-5)
 			cash := &tree.Binary{Op: '+', X: tree.Num(decimal.NewFromInt(a[i])), Y: &tree.Binary{Op: '*', X: tree.Num(decimal.NewFromInt(b[i])), Y: &tree.Name{Name: "x"}}}
-			pick.Branches = append(pick.Branches, &tree.Branch{Label: fmt.Sprintf("O%d", i), Cash: cash})
+			// Under min the figures are costs.
+			b := &tree.Branch{Label: fmt.Sprintf("O%d", i), Gain: cash}
+			if obj == tree.Min {
+				b.Gain, b.Cost = nil, cash
+			}
+			pick.Branches = append(pick.Branches, b)
 		}
 		m := &tree.Model{Objective: obj, Root: pick,
 			Params: []*tree.Param{{Name: "x", Expr: tree.Num(decimal.Zero), Low: tree.Num(d("-10")), High: tree.Num(d("10"))}}}
@@ -393,7 +406,7 @@ func TestBreakevenRandomLines(t *testing.T) {
 			if got.Below != w.below || got.Above != w.above {
 				t.Errorf("tree %d switch %d: %d → %d, want %d → %d", it, i, got.Below, got.Above, w.below, w.above)
 			}
-			if exact := decimal.NewFromBigRat(w.x, tree.DivisionScale); exact.Rat().Cmp(w.x) == 0 && !got.Exact {
+			if exact := decimal.NewFromBigRat(w.x, compiled.DivisionScale); exact.Rat().Cmp(w.x) == 0 && !got.Exact {
 				t.Errorf("tree %d switch %d at %s: not exact", it, i, got.At)
 			}
 		}
@@ -410,9 +423,9 @@ func TestBreakevenSwitchAndBackInOneInterval(t *testing.T) {
 		Params: []*tree.Param{{Name: "x", Expr: tree.Num(d("10")), Low: tree.Num(d("0")), High: tree.Num(d("100"))}},
 		Root: tree.Decision("Pick",
 			&tree.Branch{Label: "A", Node: tree.Decision("Inner",
-				&tree.Branch{Label: "up", Cash: x},
-				&tree.Branch{Label: "down", Cash: &tree.Binary{Op: '-', X: tree.Num(d("100.8")), Y: x}})},
-			tree.Choice("B", d("50.5"), nil)),
+				&tree.Branch{Label: "up", Gain: x},
+				&tree.Branch{Label: "down", Gain: &tree.Binary{Op: '-', X: tree.Num(d("100.8")), Y: x}})},
+			tree.Choice("B", tree.Gain(tree.Num(d("50.5"))), nil)),
 	}
 	be := breakeven(t, m, "x", "", "", "")
 	if len(be.Switches) != 2 {

@@ -1,88 +1,116 @@
 package eval
 
 import (
+	"sort"
+
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
 
 // Range is the spread of payoffs reachable from a node: the worst and best
-// cumulative payoff of any path beneath it, whatever the later decisions.
+// cumulative payoff of any path beneath it, whatever the later decisions,
+// in the objective's terms (Lo is the smaller figure).
 type Range struct{ Lo, Hi decimal.Decimal }
 
-// Ranges returns, for every node in pre-order, the lowest and highest
-// payoff reachable below it (the cash on the branch into it not included).
-func (sol *Solution) Ranges() []Range {
-	out := make([]Range, len(sol.nodes))
-	for i := len(sol.nodes) - 1; i >= 0; i-- {
-		s := &sol.nodes[i]
-		if s.Node.Kind == tree.KindEnd {
-			out[i] = Range{s.Node.Value, s.Node.Value}
+// ranges returns, for every node by compiled number, the lowest and highest
+// net value reachable from it, the cash on the branch into it included.
+func (sol *Solution) ranges() []Range {
+	c := sol.Compiled
+	n := c.Len()
+	out := make([]Range, n)
+	for i := n - 1; i >= 0; i-- {
+		own := c.Cash(i).Add(c.Payoff(i)).Sub(c.TestCostAt(i))
+		from, to := c.Kids(i)
+		if from == to {
+			out[i] = Range{own, own}
 			continue
 		}
 		set := false
-		next := i + 1 // the first child; each next one follows its sibling's subtree
-		for _, b := range s.Node.Branches {
-			kid := next
-			next += int(sol.nodes[kid].size)
-			if s.Node.Kind == tree.KindChance && b.P.IsZero() {
+		var r Range
+		for k := from; k < to; k++ {
+			if c.Kind(i) == tree.KindChance && c.Prob(k).IsZero() {
 				continue // never happens
 			}
-			k := out[kid]
-			lo, hi := k.Lo.Add(b.C), k.Hi.Add(b.C)
-			if !set || lo.LessThan(out[i].Lo) {
-				out[i].Lo = lo
+			if !set || out[k].Lo.LessThan(r.Lo) {
+				r.Lo = out[k].Lo
 			}
-			if !set || hi.GreaterThan(out[i].Hi) {
-				out[i].Hi = hi
+			if !set || out[k].Hi.GreaterThan(r.Hi) {
+				r.Hi = out[k].Hi
 			}
 			set = true
 		}
-		out[i].Lo = out[i].Lo.Add(s.Node.TestCost) // a test's cost is paid on every path
-		out[i].Hi = out[i].Hi.Add(s.Node.TestCost)
+		out[i] = Range{r.Lo.Add(own), r.Hi.Add(own)}
+	}
+	return out
+}
+
+// Ranges returns, for every node in pre-order, the lowest and highest
+// payoff reachable below it (the cash on the branch into it not included),
+// in the objective's terms.
+func (sol *Solution) Ranges() []Range {
+	c := sol.Compiled
+	net := sol.ranges()
+	out := make([]Range, len(sol.nodes))
+	for x := range sol.nodes {
+		i := int(sol.nodes[x].i)
+		cash := c.Cash(i)
+		lo, hi := net[i].Lo.Sub(cash), net[i].Hi.Sub(cash)
+		if sol.obj() == tree.Min {
+			lo, hi = hi.Neg(), lo.Neg()
+		}
+		out[x] = Range{lo, hi}
 	}
 	return out
 }
 
 // Dominated warns about options that can never pay: a branch of a decision
 // whose best possible outcome is no better than the worst possible outcome
-// of another branch of the same decision (and strictly worse somewhere, so
-// two identical certain options are not reported).
+// of another branch of the same decision. A decision whose options are all
+// certain (a fallback such as walking away) gets no warning: a certain
+// worse option is a plain choice, not a mistake. Each option is named with
+// the first option in model order that dominates it.
 func Dominated(sol *Solution) tree.Diagnostics {
-	rs := sol.Ranges()
+	c := sol.Compiled
+	rs := sol.ranges()
 	var ds tree.Diagnostics
-	min := sol.Model.Objective == tree.Min
-	for i := range sol.nodes {
-		s := &sol.nodes[i]
+	for x := range sol.nodes {
+		s := &sol.nodes[x]
 		if s.Node.Kind != tree.KindDecision {
 			continue
 		}
-		kids := s.Kids()
-		br := func(j int) Range {
-			r := rs[kids[j].self]
-			c := s.Node.Branches[j].C
-			return Range{r.Lo.Add(c), r.Hi.Add(c)}
+		from, to := c.Kids(int(s.i))
+		k := to - from
+		certain := true
+		for j := from; j < to; j++ {
+			certain = certain && rs[j].Lo.Equal(rs[j].Hi)
 		}
-		for a := range kids {
-			ra := br(a)
-			for b := range kids {
-				if a == b {
+		if certain || k < 2 {
+			continue
+		}
+		// best[j]: the largest worst case among options 0..j, so the first
+		// option whose worst case reaches a given figure is found by
+		// binary search.
+		best := make([]decimal.Decimal, k)
+		for j := 0; j < k; j++ {
+			best[j] = rs[from+j].Lo
+			if j > 0 && best[j-1].GreaterThan(best[j]) {
+				best[j] = best[j-1]
+			}
+		}
+		for a := 0; a < k; a++ {
+			ra := rs[from+a]
+			first := sort.Search(k, func(j int) bool { return !best[j].LessThan(ra.Hi) })
+			for b := first; b < k; b++ {
+				rb := rs[from+b]
+				// a is dominated when its best is no better than b's
+				// worst, unless both are the same certain figure.
+				if b == a || rb.Lo.LessThan(ra.Hi) || (ra.Hi.Equal(rb.Lo) && ra.Lo.Equal(rb.Hi)) {
 					continue
 				}
-				rb := br(b)
-				// Under max, a is dominated when a's best <= b's worst; under
-				// min (costs), when a's lowest cost >= b's highest.
-				var dom bool
-				if min {
-					dom = !ra.Lo.LessThan(rb.Hi) && !(ra.Lo.Equal(rb.Hi) && ra.Hi.Equal(rb.Lo))
-				} else {
-					dom = !ra.Hi.GreaterThan(rb.Lo) && !(ra.Hi.Equal(rb.Lo) && ra.Lo.Equal(rb.Hi))
-				}
-				if dom {
-					ab, bb := s.Node.Branches[a], s.Node.Branches[b]
-					ds.Warn(ab.Pos, "drop it, or check its figures",
-						"option %q of %q is dominated: in every outcome it does no better than %q", ab.Label, s.Node.Display(), bb.Label)
-					break
-				}
+				ab, bb := s.Node.Branches[a], s.Node.Branches[b]
+				ds.Warn(ab.Pos, "drop it, or check its figures",
+					"option %q of %q is dominated: in every outcome it does no better than %q", ab.Label, s.Node.Display(), bb.Label)
+				break
 			}
 		}
 	}

@@ -1,8 +1,10 @@
 package eval_test
 
 import (
+	"context"
 	"fmt"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
@@ -10,18 +12,19 @@ import (
 
 // Solve a two-option tree built in Go and read the policy off the result.
 func ExampleSolve() {
-	d := decimal.RequireFromString
+	n := func(s string) tree.Expr { return tree.Num(decimal.RequireFromString(s)) }
 	m := &tree.Model{Root: tree.Decision("Launch",
-		tree.Choice("Launch now", d("-100"), tree.Chance("Demand",
-			tree.Outcome("High", d("0.4"), d("500"), nil),
-			tree.RestOutcome("Low", d("50"), nil))),
-		tree.Choice("Wait", d("60"), nil),
+		tree.Choice("Launch now", tree.Cost(n("100")), tree.Chance("Demand",
+			tree.Outcome("High", n("0.4"), tree.Gain(n("500")), nil),
+			tree.RestOutcome("Low", tree.Gain(n("50")), nil))),
+		tree.Choice("Wait", tree.Gain(n("60")), nil),
 	)}
-	if ds := m.Resolve(nil); ds.HasErrors() {
+	c, ds := compiled.Compile(m)
+	if ds.HasErrors() {
 		fmt.Println(ds)
 		return
 	}
-	sol, _ := eval.Solve(m)
+	sol, _ := eval.Solve(c)
 	r := sol.Root
 	margin, _, _ := r.Margin()
 	fmt.Println("value:", sol.Value())
@@ -29,4 +32,52 @@ func ExampleSolve() {
 	// Output:
 	// value: 130
 	// take: Launch now by 70
+}
+
+// Re-solve one compiled model with an input changed: only the figures that
+// depend on it are evaluated again, and the first solution does not change.
+func ExampleFollow() {
+	n := func(s string) tree.Expr { return tree.Num(decimal.RequireFromString(s)) }
+	m := &tree.Model{
+		Params: []*tree.Param{tree.Input("fee", n("40"))},
+		Root: tree.Decision("Supply",
+			tree.Choice("Own fleet", tree.Cost(n("55")), nil),
+			tree.Choice("Carrier", tree.Cost(tree.Ref("fee")), nil)),
+	}
+	c, _ := compiled.Compile(m)
+	before, _ := eval.Solve(c)
+	fee, _ := c.Set("fee", decimal.NewFromInt(70))
+	c2, _ := c.With(fee)
+	after, _ := eval.Solve(c2)
+	// The plan chosen at a fee of 40, held fixed at 70:
+	fixed, _ := eval.Follow(c2, before.Rollback().Policy())
+	fmt.Println("fee 40:", before.Root.Node.Branches[before.Root.Chosen()].Label, before.Value())
+	fmt.Println("fee 70:", after.Root.Node.Branches[after.Root.Chosen()].Label, after.Value())
+	fmt.Println("fee 70, keeping the carrier:", fixed.Value())
+	// Output:
+	// fee 40: Carrier -40
+	// fee 70: Own fleet -55
+	// fee 70, keeping the carrier: -70
+}
+
+// Vary an input over its range and find where the best option changes.
+func ExampleFindBreakeven() {
+	n := func(s string) tree.Expr { return tree.Num(decimal.RequireFromString(s)) }
+	m := &tree.Model{
+		Params: []*tree.Param{tree.Input("fee", n("40")).Within(n("20"), n("90"))},
+		Root: tree.Decision("Supply",
+			tree.Choice("Own fleet", tree.Cost(n("55")), nil),
+			tree.Choice("Carrier", tree.Cost(tree.Ref("fee")), nil)),
+	}
+	c, _ := compiled.Compile(m)
+	v, _ := eval.ParseVary("fee")
+	be, err := eval.FindBreakeven(context.Background(), c, eval.BreakevenOptions{Vary: v})
+	if err != nil {
+		panic(err)
+	}
+	for _, sw := range be.Switches {
+		fmt.Printf("at fee = %s (exact: %v): %s below, %s above\n", sw.At, sw.Exact, be.Options[sw.Below], be.Options[sw.Above])
+	}
+	// Output:
+	// at fee = 55 (exact: true): Carrier below, Own fleet above
 }

@@ -76,7 +76,7 @@ func TestBigModelSize(t *testing.T) {
 	if ds.HasErrors() {
 		t.Fatal(ds)
 	}
-	if n := m.Size(); n < 100_000 {
+	if n := m.Len(); n < 100_000 {
 		t.Fatalf("generated model has %d nodes, want at least 100 000", n)
 	}
 }

@@ -1,148 +1,120 @@
-// Package eval solves decision trees and analyses the solution: rollback to
-// expected values with exact decimal arithmetic, the optimal policy, the
-// paths to every end node, and (in later files) value of information and
-// breakeven.
+// Package eval solves compiled decision models and analyses the solution:
+// the optimal policy, the paths to every end node, value of information,
+// breakeven and the other analyses, each a value a program can walk.
 //
-// Nothing in the package prints; every function returns values a program
-// can walk.
+// Nothing in the package prints.
 package eval
 
 import (
 	"errors"
+	"io"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
 
-// Solution is a rolled-back tree: the expected value of every node and the
-// best branches of every decision.
+// Solution is a rolled-back model: the expected value of every node and the
+// best branches of every decision. It owns its numbers: a Solution never
+// changes, whatever is done to the model afterwards.
 type Solution struct {
-	Model *tree.Model
-	Root  *Solved
-	nodes []Solved // every node in pre-order; Root is &nodes[0]
-	arena          // the values that outgrew int64
+	// Model is the model as written; Compiled its compiled form.
+	Model    *tree.Model
+	Compiled *compiled.Model
+	Root     *Solved
+	r        *compiled.Rollback
+	nodes    []Solved // every node in pre-order
+	pre      []int32  // compiled node number → pre-order index
 }
 
-// Solved is one node of a solved tree. Its figures are methods: they are
-// kept in a compact exact form and made into decimals when asked for, so a
-// tree of millions of nodes solves without millions of allocations.
+// Solved is one node of a solved tree. Its figures are methods, made into
+// decimals when asked for.
 type Solved struct {
 	Node *tree.Node
 	sol  *Solution
-	v    fix
-	// parent and via: the node above (-1 at the root) and the index of its
-	// branch that leads here; size counts the nodes in this subtree; best is
-	// the first optimal branch of a decision and nbest how many tie with it.
-	self, parent, via, size, best, nbest int32
+	// i is the node's number in the compiled model; self its pre-order
+	// index, parent the parent's (-1 at the root), size the nodes in its
+	// subtree.
+	i, self, parent, size int32
 }
 
-// ErrNotResolved is returned by Solve for a model with no tree.
-var ErrNotResolved = errors.New("eval: the model has no tree (was it resolved?)")
+// ErrNoModel is returned by Solve for a nil model.
+var ErrNoModel = errors.New("eval: no model to solve (compile one with compiled.Compile or lang.Load)")
 
-// Solve rolls the tree back: an end node is worth its payoff, a chance node
-// the probability-weighted sum over its branches of cash plus the value
-// beneath (plus a test's cost), a decision node the best such sum (max or
-// min by the model's objective; ties go to the first in model order). m
-// must have been resolved without errors (tree.Model.Resolve).
-//
-// The arithmetic is exact: only additions and multiplications of decimals.
-// Solve works without recursion, so a tree of any depth solves.
-func Solve(m *tree.Model) (*Solution, error) {
-	if m == nil || m.Root == nil {
-		return nil, ErrNotResolved
+// Solve rolls c back: every decision takes its best branch (max net value:
+// the highest value under objective max, the lowest cost under min); ties
+// go to the first in model order. The arithmetic is exact.
+func Solve(c *compiled.Model) (*Solution, error) {
+	if c == nil {
+		return nil, ErrNoModel
 	}
-	sol := &Solution{Model: m}
-	sol.flatten()
-	sol.rollback()
-	sol.Root = &sol.nodes[0]
-	return sol, nil
+	return newSolution(c, c.Rollback()), nil
 }
 
-// flatten lays the tree out in pre-order in one slice.
-func (sol *Solution) flatten() {
-	sol.nodes = make([]Solved, 0, sol.Model.Size())
-	type item struct {
-		b           *tree.Branch
-		parent, via int32
+// Follow rolls c back with every decision taking the branch policy gives it
+// (as Rollback.Policy returns), for the value of a fixed plan.
+func Follow(c *compiled.Model, policy []int32) (*Solution, error) {
+	if c == nil {
+		return nil, ErrNoModel
 	}
-	root := Solved{Node: sol.Model.Root, sol: sol, parent: -1, via: -1, best: -1}
-	sol.nodes = append(sol.nodes, root)
-	var stack []item
-	push := func(n *tree.Node, self int32) {
-		bs := n.Branches
-		for j := len(bs) - 1; j >= 0; j-- {
-			stack = append(stack, item{bs[j], self, int32(j)})
-		}
-	}
-	push(root.Node, 0)
+	return newSolution(c, c.Follow(policy)), nil
+}
+
+func newSolution(c *compiled.Model, r *compiled.Rollback) *Solution {
+	sol := &Solution{Model: c.Source(), Compiled: c, r: r}
+	n := c.Len()
+	sol.nodes = make([]Solved, n)
+	sol.pre = make([]int32, n)
+	// Pre-order: a node, then each child's subtree in branch order.
+	type item struct{ i, parent int32 }
+	stack := []item{{0, -1}}
+	self := int32(0)
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
-		self := int32(len(sol.nodes))
-		b := it.b
-		sol.nodes = append(sol.nodes, Solved{Node: b.Node, sol: sol, self: self, parent: it.parent, via: it.via, best: -1})
-		push(b.Node, self)
+		sol.nodes[self] = Solved{Node: c.Node(int(it.i)), sol: sol, i: it.i, self: self, parent: it.parent, size: 1}
+		sol.pre[it.i] = self
+		from, to := c.Kids(int(it.i))
+		for k := to - 1; k >= from; k-- {
+			stack = append(stack, item{int32(k), self})
+		}
+		self++
 	}
+	for j := n - 1; j > 0; j-- {
+		sol.nodes[sol.nodes[j].parent].size += sol.nodes[j].size
+	}
+	sol.Root = &sol.nodes[0]
+	return sol
 }
 
-// rollback sweeps backwards: in pre-order every child comes after its
-// parent, so each node's children are done when it is reached. The first
-// child of node i is i+1 and each next one follows its elder sibling's
-// subtree.
-func (sol *Solution) rollback() {
-	max := sol.Model.Objective == tree.Max
-	nodes := sol.nodes
-	for i := len(nodes) - 1; i >= 0; i-- {
-		s := &nodes[i]
-		n := s.Node
-		k := int32(i + 1)
-		switch n.Kind {
-		case tree.KindEnd:
-			s.v = sol.fixOf(n.Value)
-		case tree.KindChance:
-			v := sol.fixOf(n.TestCost)
-			for _, b := range n.Branches {
-				kid := &nodes[k]
-				v = sol.add(v, sol.mul(sol.fixOf(b.P), sol.add(sol.fixOf(b.C), kid.v)))
-				k += kid.size
-			}
-			s.v = v
-		case tree.KindDecision:
-			var bv fix
-			for j, b := range n.Branches {
-				kid := &nodes[k]
-				v := sol.add(sol.fixOf(b.C), kid.v)
-				k += kid.size
-				c := 0
-				if s.best >= 0 {
-					c = sol.cmp(v, bv)
-					if !max {
-						c = -c
-					}
-				}
-				switch {
-				case s.best < 0 || c > 0:
-					s.best, s.nbest, bv = int32(j), 1, v
-				case c == 0:
-					s.nbest++
-				}
-			}
-			s.v = bv
-		}
-		s.size = k - int32(i)
-	}
-}
+// Rollback is the compiled model's rollback the solution reads.
+func (sol *Solution) Rollback() *compiled.Rollback { return sol.r }
 
 // Nodes returns every solved node in pre-order (the root first, then each
 // subtree in model order).
 func (sol *Solution) Nodes() []Solved { return sol.nodes }
 
-// Value is the expected value of the whole tree.
+// At is the solved node with compiled number i.
+func (sol *Solution) At(i int) *Solved { return &sol.nodes[sol.pre[i]] }
+
+// Value is the expected value of the whole tree, in the objective's terms.
 func (sol *Solution) Value() decimal.Decimal { return sol.Root.Value() }
+
+// Exact reports whether every figure of the model is exact (see
+// compiled.Model.Exact).
+func (sol *Solution) Exact() bool { return sol.Compiled.Exact() }
+
+// obj is the objective.
+func (sol *Solution) obj() tree.Objective { return sol.Compiled.Objective() }
 
 // Value is the expected remaining payoff from this node on, in the
 // objective's terms; the cash on the branch into the node is not included.
-func (s *Solved) Value() decimal.Decimal { return s.sol.dec(s.v) }
+// Below a test reading it is a ratio of exact figures, rounded at
+// compiled.DivisionScale places when that is no finite decimal.
+func (s *Solved) Value() decimal.Decimal {
+	v, _ := s.sol.r.Value(int(s.i))
+	return s.sol.obj().Figure(v)
+}
 
 // Solution is the solved tree this node belongs to.
 func (s *Solved) Solution() *Solution { return s.sol }
@@ -150,22 +122,18 @@ func (s *Solved) Solution() *Solution { return s.sol }
 // Index is the node's position in Solution.Nodes.
 func (s *Solved) Index() int { return int(s.self) }
 
+// Number is the node's number in the compiled model.
+func (s *Solved) Number() int { return int(s.i) }
+
 // Kid returns the solved node under branch j.
-func (s *Solved) Kid(j int) *Solved {
-	i := s.Index() + 1
-	for ; j > 0; j-- {
-		i += int(s.sol.nodes[i].size)
-	}
-	return &s.sol.nodes[i]
-}
+func (s *Solved) Kid(j int) *Solved { return s.sol.At(s.sol.Compiled.Child(int(s.i), j)) }
 
 // Kids returns the solved children, aligned with Node.Branches.
 func (s *Solved) Kids() []*Solved {
-	out := make([]*Solved, len(s.Node.Branches))
-	i := s.Index() + 1
-	for j := range out {
-		out[j] = &s.sol.nodes[i]
-		i += int(s.sol.nodes[i].size)
+	from, to := s.sol.Compiled.Kids(int(s.i))
+	out := make([]*Solved, 0, to-from)
+	for k := from; k < to; k++ {
+		out = append(out, s.sol.At(k))
 	}
 	return out
 }
@@ -179,10 +147,9 @@ func (s *Solved) Parent() *Solved {
 }
 
 // Via is the index of the parent's branch that leads here (-1 at the root).
-func (s *Solved) Via() int { return int(s.via) }
+func (s *Solved) Via() int { return s.sol.Compiled.Via(int(s.i)) }
 
-// Depth is the number of branches from the root to this node (counted up
-// the parents: a field would cost every node of a large tree memory).
+// Depth is the number of branches from the root to this node.
 func (s *Solved) Depth() int {
 	d := 0
 	for p := s.parent; p >= 0; p = s.sol.nodes[p].parent {
@@ -196,44 +163,52 @@ func (s *Solved) Size() int { return int(s.size) }
 
 // Chosen is the index of the branch the policy takes at a decision node
 // (the first optimal one in model order), or -1 at any other node.
-func (s *Solved) Chosen() int { return int(s.best) }
+func (s *Solved) Chosen() int { return s.sol.r.Best(int(s.i)) }
 
 // Tied reports whether a decision has more than one optimal branch.
-func (s *Solved) Tied() bool { return s.nbest > 1 }
+func (s *Solved) Tied() bool { return s.Node.Kind == tree.KindDecision && s.sol.r.Tied(int(s.i)) }
 
 // Best returns, for a decision node, the indices of its optimal branches in
 // model order; more than one means a tie. It is nil at other nodes.
-func (s *Solved) Best() []int {
-	if s.best < 0 {
-		return nil
-	}
-	if s.nbest == 1 {
-		return []int{int(s.best)}
-	}
-	bv := s.BranchValue(int(s.best))
-	out := make([]int, 0, s.nbest)
-	for j := int(s.best); j < len(s.Node.Branches); j++ {
-		if s.BranchValue(j).Equal(bv) {
-			out = append(out, j)
-		}
-	}
-	return out
-}
+func (s *Solved) Best() []int { return s.sol.r.Ties(int(s.i)) }
 
 // IsBest reports whether branch j of a decision is one of its optimal ones.
 func (s *Solved) IsBest(j int) bool {
-	for _, b := range s.Best() {
-		if b == j {
-			return true
-		}
+	b := s.Chosen()
+	if b < 0 {
+		return false
 	}
-	return false
+	if j == b {
+		return true
+	}
+	return s.Tied() && j > b && s.sol.r.Compare(int(s.i), j, b) == 0
 }
 
-// BranchValue is the value of taking branch i: its cash plus the value of
-// the node it leads to.
-func (s *Solved) BranchValue(i int) decimal.Decimal {
-	return s.Node.Branches[i].C.Add(s.Kid(i).Value())
+// BranchValue is the value of taking branch j, in the objective's terms:
+// its cash plus the value of the node it leads to.
+func (s *Solved) BranchValue(j int) decimal.Decimal {
+	v, _ := s.sol.r.Total(s.sol.Compiled.Child(int(s.i), j))
+	return s.sol.obj().Figure(v)
+}
+
+// Prob is the probability of branch j of a chance node (revised by Bayes'
+// rule below a test reading, rounded at compiled.DivisionScale places when
+// that is no finite decimal); 0 at other nodes.
+func (s *Solved) Prob(j int) decimal.Decimal {
+	return s.sol.Compiled.Prob(s.sol.Compiled.Child(int(s.i), j))
+}
+
+// Cash is the money on branch j in the objective's terms (a payoff under
+// max, a cost under min).
+func (s *Solved) Cash(j int) decimal.Decimal {
+	return s.sol.obj().Figure(s.sol.Compiled.Cash(s.sol.Compiled.Child(int(s.i), j)))
+}
+
+// TestCost is the cost of the test this node runs, in the objective's
+// terms as money on a branch would be (a negative payoff under max, a cost
+// under min); 0 when it runs none.
+func (s *Solved) TestCost() decimal.Decimal {
+	return s.sol.obj().Figure(s.sol.Compiled.TestCostAt(int(s.i)).Neg())
 }
 
 // Margin is how much better the chosen branch of a decision is than the
@@ -248,22 +223,17 @@ func (s *Solved) Margin() (margin decimal.Decimal, runnerUp int, ok bool) {
 	if s.Tied() {
 		return decimal.Zero, s.Best()[1], true
 	}
-	min := s.sol.Model.Objective == tree.Min
+	i := int(s.i)
 	runnerUp = -1
-	var rv decimal.Decimal
 	for j := range s.Node.Branches {
 		if j == c {
 			continue
 		}
-		v := s.BranchValue(j)
-		if runnerUp < 0 || (!min && v.GreaterThan(rv)) || (min && v.LessThan(rv)) {
-			runnerUp, rv = j, v
+		if runnerUp < 0 || s.sol.r.Compare(i, j, runnerUp) > 0 {
+			runnerUp = j
 		}
 	}
-	margin = s.BranchValue(c).Sub(rv)
-	if min {
-		margin = margin.Neg()
-	}
+	margin, _ = s.sol.r.Diff(i, c, runnerUp)
 	return margin, runnerUp, true
 }
 
@@ -271,7 +241,7 @@ func (s *Solved) Margin() (margin decimal.Decimal, runnerUp int, ok bool) {
 // decision above it takes the branch that leads here.
 func (s *Solved) OnPolicy() bool {
 	for c := s; c.parent >= 0; c = c.Parent() {
-		if p := c.Parent(); p.Node.Kind == tree.KindDecision && p.best != c.via {
+		if p := c.Parent(); p.Node.Kind == tree.KindDecision && p.Chosen() != c.Via() {
 			return false
 		}
 	}
@@ -279,9 +249,7 @@ func (s *Solved) OnPolicy() bool {
 }
 
 // Reachable reports, for every node in pre-order, whether the optimal policy
-// can reach it: OnPolicy for the whole tree in one forward sweep (OnPolicy
-// walks up to the root, so calling it on every node of a deep tree costs
-// the square of its depth).
+// can reach it, in one forward sweep.
 func (sol *Solution) Reachable() []bool {
 	on := make([]bool, len(sol.nodes))
 	for i := range sol.nodes {
@@ -291,7 +259,7 @@ func (sol *Solution) Reachable() []bool {
 			continue
 		}
 		p := &sol.nodes[s.parent]
-		on[i] = on[s.parent] && (p.Node.Kind != tree.KindDecision || p.best == s.via)
+		on[i] = on[s.parent] && (p.Node.Kind != tree.KindDecision || p.Chosen() == s.Via())
 	}
 	return on
 }
@@ -300,7 +268,7 @@ func (sol *Solution) Reachable() []bool {
 func (s *Solved) Path() []*tree.Branch {
 	var rev []*tree.Branch
 	for c := s; c.parent >= 0; c = c.Parent() {
-		rev = append(rev, c.Parent().Node.Branches[c.via])
+		rev = append(rev, c.Parent().Node.Branches[c.Via()])
 	}
 	for i, j := 0, len(rev)-1; i < j; i, j = i+1, j-1 {
 		rev[i], rev[j] = rev[j], rev[i]
@@ -315,39 +283,57 @@ type EndPoint struct {
 	// root (decisions count as certain): the probability of ending here if
 	// every decision on the way is taken as the path takes it.
 	Prob decimal.Decimal
-	// Payoff is the cumulative payoff: the cash on every branch of the path,
-	// test costs on the way, plus the end node's own value.
+	// Payoff is the cumulative payoff, in the objective's terms: the cash on
+	// every branch of the path, test costs on the way, plus the end node's
+	// own value.
 	Payoff decimal.Decimal
 	// OnPolicy is true when the optimal policy can end here.
 	OnPolicy bool
 }
 
 // Ends returns every end node in model order with its path probability and
-// cumulative payoff, computed in one forward sweep.
+// cumulative payoff.
 func (sol *Solution) Ends() []EndPoint {
-	var a arena // Ends may run alongside other readers: its own arena
-	prob := make([]fix, len(sol.nodes))
-	pay := make([]fix, len(sol.nodes))
-	on := make([]bool, len(sol.nodes))
+	c := sol.Compiled
+	on := sol.Reachable()
+	pay := make([]decimal.Decimal, len(sol.nodes))
+	never := make([]bool, len(sol.nodes)) // below a branch of probability 0
 	var out []EndPoint
-	for i := range sol.nodes {
-		s := &sol.nodes[i]
-		if s.parent < 0 {
-			prob[i], pay[i], on[i] = fix{c: 1}, fix{}, true
-		} else {
-			p := s.parent
-			pn := sol.nodes[p].Node
-			b := pn.Branches[s.via]
-			prob[i] = prob[p]
-			if pn.Kind == tree.KindChance {
-				prob[i] = a.mul(prob[p], a.fixOf(b.P))
-			}
-			pay[i] = a.add(a.add(pay[p], a.fixOf(b.C)), a.fixOf(pn.TestCost))
-			on[i] = on[p] && (pn.Kind != tree.KindDecision || sol.nodes[p].best == s.via)
+	for x := range sol.nodes {
+		s := &sol.nodes[x]
+		i := int(s.i)
+		own := c.Cash(i).Add(c.Payoff(i)).Sub(c.TestCostAt(i))
+		if s.parent >= 0 {
+			own = own.Add(pay[s.parent])
+			never[x] = never[s.parent]
 		}
+		never[x] = never[x] || c.FrameStart(i)
+		pay[x] = own
 		if s.Node.Kind == tree.KindEnd {
-			out = append(out, EndPoint{Solved: s, Prob: a.dec(prob[i]), Payoff: a.dec(a.add(pay[i], a.fixOf(s.Node.Value))), OnPolicy: on[i]})
+			p := c.Mass(i)
+			if never[x] {
+				p = decimal.Zero
+			}
+			out = append(out, EndPoint{Solved: s, Prob: p, Payoff: sol.obj().Figure(own), OnPolicy: on[x]})
 		}
 	}
 	return out
+}
+
+// solvedView is what tree.WriteJSON needs of a solution.
+type solvedView struct {
+	*compiled.Model
+	sol *Solution
+}
+
+func (v solvedView) Value(i int) decimal.Decimal { return v.sol.At(i).Value() }
+func (v solvedView) Best(i int) []int            { return v.sol.At(i).Best() }
+
+// WriteJSON writes the solved tree in the interchange format: "value" on
+// every node (an exact decimal string, in the objective's terms), "best" on
+// every decision, every chance branch's probability (revised by Bayes' rule
+// below a test reading), so that the output reads back as the same model.
+func (sol *Solution) WriteJSON(w io.Writer) error {
+	v := solvedView{sol.Compiled, sol}
+	return tree.WriteJSON(w, sol.Model, v, tree.JSONOptions{Solved: v, Probabilities: true})
 }

@@ -6,18 +6,25 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
 
 func d(s string) decimal.Decimal { return decimal.RequireFromString(s) }
 
+func mustCompile(t testing.TB, m *tree.Model) *compiled.Model {
+	t.Helper()
+	c, ds := compiled.Compile(m)
+	if ds.HasErrors() {
+		t.Fatalf("compile: %v", ds)
+	}
+	return c
+}
+
 func mustSolve(t testing.TB, m *tree.Model) *Solution {
 	t.Helper()
-	if ds := m.Resolve(nil); ds.HasErrors() {
-		t.Fatalf("resolve: %v", ds)
-	}
-	sol, err := Solve(m)
+	sol, err := Solve(mustCompile(t, m))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -30,10 +37,10 @@ func mustSolve(t testing.TB, m *tree.Model) *Solution {
 // dry) or sell the land (+90), prior P(oil) = 0.25.
 func oilDrilling() *tree.Model {
 	return &tree.Model{Title: "oil drilling", Root: tree.Decision("Drill or sell",
-		tree.Choice("Drill", decimal.Zero, tree.Chance("Oil?",
-			tree.Outcome("Oil", d("0.25"), d("700"), nil),
-			tree.Outcome("Dry", d("0.75"), d("-100"), nil))),
-		tree.Choice("Sell", d("90"), nil),
+		tree.Choice("Drill", tree.NoCash, tree.Chance("Oil?",
+			tree.Outcome("Oil", tree.Num(d("0.25")), tree.Gain(tree.Num(d("700"))), nil),
+			tree.Outcome("Dry", tree.Num(d("0.75")), tree.Gain(tree.Num(d("-100"))), nil))),
+		tree.Choice("Sell", tree.Gain(tree.Num(d("90"))), nil),
 	)}
 }
 
@@ -44,13 +51,13 @@ func oilDrilling() *tree.Model {
 func condominium() *tree.Model {
 	demand := func(strong, weak string) *tree.Node {
 		return tree.Chance("Demand",
-			tree.Outcome("Strong", d("0.8"), d(strong), nil),
-			tree.Outcome("Weak", d("0.2"), d(weak), nil))
+			tree.Outcome("Strong", tree.Num(d("0.8")), tree.Gain(tree.Num(d(strong))), nil),
+			tree.Outcome("Weak", tree.Num(d("0.2")), tree.Gain(tree.Num(d(weak))), nil))
 	}
 	return &tree.Model{Root: tree.Decision("Complex size",
-		tree.Choice("Small", decimal.Zero, demand("8", "7")),
-		tree.Choice("Medium", decimal.Zero, demand("14", "5")),
-		tree.Choice("Large", decimal.Zero, demand("20", "-9")),
+		tree.Choice("Small", tree.NoCash, demand("8", "7")),
+		tree.Choice("Medium", tree.NoCash, demand("14", "5")),
+		tree.Choice("Large", tree.NoCash, demand("20", "-9")),
 	)}
 }
 
@@ -64,17 +71,17 @@ func condominiumWithStudy() *tree.Model {
 		pw := decimal.NewFromInt(1).Sub(d(ps)).String()
 		demand := func(strong, weak string) *tree.Node {
 			return tree.Chance("Demand",
-				tree.Outcome("Strong", d(ps), d(strong), nil),
-				tree.Outcome("Weak", d(pw), d(weak), nil))
+				tree.Outcome("Strong", tree.Num(d(ps)), tree.Gain(tree.Num(d(strong))), nil),
+				tree.Outcome("Weak", tree.Num(d(pw)), tree.Gain(tree.Num(d(weak))), nil))
 		}
 		return tree.Decision("Complex size",
-			tree.Choice("Small", decimal.Zero, demand("8", "7")),
-			tree.Choice("Medium", decimal.Zero, demand("14", "5")),
-			tree.Choice("Large", decimal.Zero, demand("20", "-9")))
+			tree.Choice("Small", tree.NoCash, demand("8", "7")),
+			tree.Choice("Medium", tree.NoCash, demand("14", "5")),
+			tree.Choice("Large", tree.NoCash, demand("20", "-9")))
 	}
 	return &tree.Model{Root: tree.Chance("Research report",
-		tree.Outcome("Favourable", d("0.77"), decimal.Zero, after("0.94")),
-		tree.Outcome("Unfavourable", d("0.23"), decimal.Zero, after("0.35")),
+		tree.Outcome("Favourable", tree.Num(d("0.77")), tree.NoCash, after("0.94")),
+		tree.Outcome("Unfavourable", tree.Num(d("0.23")), tree.NoCash, after("0.35")),
 	)}
 }
 
@@ -85,12 +92,12 @@ func condominiumWithStudy() *tree.Model {
 func stockChoice() *tree.Model {
 	market := func(bull, bear string) *tree.Node {
 		return tree.Chance("Market",
-			tree.Outcome("Bull", d("0.6"), d(bull), nil),
-			tree.Outcome("Bear", d("0.4"), d(bear), nil))
+			tree.Outcome("Bull", tree.Num(d("0.6")), tree.Gain(tree.Num(d(bull))), nil),
+			tree.Outcome("Bear", tree.Num(d("0.4")), tree.Gain(tree.Num(d(bear))), nil))
 	}
 	return &tree.Model{Root: tree.Decision("Invest",
-		tree.Choice("Stock A", decimal.Zero, market("5000", "-2000")),
-		tree.Choice("Stock B", decimal.Zero, market("1500", "500")),
+		tree.Choice("Stock A", tree.NoCash, market("5000", "-2000")),
+		tree.Choice("Stock B", tree.NoCash, market("1500", "500")),
 	)}
 }
 
@@ -148,11 +155,11 @@ func TestPublishedExamples(t *testing.T) {
 func TestMinObjectiveAndTies(t *testing.T) {
 	// Under min the cheaper option wins; figures are costs (common practice).
 	m := &tree.Model{Objective: tree.Min, Root: tree.Decision("Repair",
-		tree.Choice("Patch", d("100"), tree.Chance("Holds?",
-			tree.Outcome("Holds", d("0.5"), decimal.Zero, nil),
-			tree.Outcome("Fails", d("0.5"), d("300"), nil))),
-		tree.Choice("Replace", d("250"), nil),
-		tree.Choice("Replace later", d("250"), nil),
+		tree.Choice("Patch", tree.Cost(tree.Num(d("100"))), tree.Chance("Holds?",
+			tree.Outcome("Holds", tree.Num(d("0.5")), tree.NoCash, nil),
+			tree.Outcome("Fails", tree.Num(d("0.5")), tree.Cost(tree.Num(d("300"))), nil))),
+		tree.Choice("Replace", tree.Cost(tree.Num(d("250"))), nil),
+		tree.Choice("Replace later", tree.Cost(tree.Num(d("250"))), nil),
 	)}
 	sol := mustSolve(t, m)
 	if !sol.Value().Equal(d("250")) {
@@ -165,8 +172,8 @@ func TestMinObjectiveAndTies(t *testing.T) {
 	if mg, _, _ := r.Margin(); !mg.IsZero() {
 		t.Errorf("margin of a tie = %s, want 0", mg)
 	}
-	m.Root.Branches[2].Cash = tree.Num(d("260"))
-	m.Root.Branches[0].Cash = tree.Num(d("101"))
+	m.Root.Branches[2].Cost = tree.Num(d("260"))
+	m.Root.Branches[0].Cost = tree.Num(d("101"))
 	sol = mustSolve(t, m)
 	if got := sol.Root.Node.Branches[sol.Root.Chosen()].Label; got != "Replace" {
 		t.Errorf("best = %q, want Replace", got)
@@ -200,7 +207,7 @@ func TestDeepChain(t *testing.T) {
 	leaf := &tree.Node{Kind: tree.KindEnd}
 	n := leaf
 	for i := 0; i < depth; i++ {
-		n = tree.Decision("step", tree.Choice("go", d("1"), n), tree.Choice("stop", decimal.Zero, nil))
+		n = tree.Decision("step", tree.Choice("go", tree.Gain(tree.Num(d("1"))), n), tree.Choice("stop", tree.NoCash, nil))
 	}
 	sol := mustSolve(t, &tree.Model{Root: n})
 	if !sol.Value().Equal(decimal.NewFromInt(depth)) {
@@ -213,11 +220,11 @@ func TestDeepChain(t *testing.T) {
 
 func TestDominated(t *testing.T) {
 	m := &tree.Model{Root: tree.Decision("Pick",
-		tree.Choice("Good", decimal.Zero, tree.Chance("c",
-			tree.Outcome("a", d("0.5"), d("100"), nil),
-			tree.Outcome("b", d("0.5"), d("60"), nil))),
-		tree.Choice("Poor", d("50"), nil),
-		tree.Choice("Same as poor", d("50"), nil),
+		tree.Choice("Good", tree.NoCash, tree.Chance("c",
+			tree.Outcome("a", tree.Num(d("0.5")), tree.Gain(tree.Num(d("100"))), nil),
+			tree.Outcome("b", tree.Num(d("0.5")), tree.Gain(tree.Num(d("60"))), nil))),
+		tree.Choice("Poor", tree.Gain(tree.Num(d("50"))), nil),
+		tree.Choice("Same as poor", tree.Gain(tree.Num(d("50"))), nil),
 	)}
 	ds := Dominated(mustSolve(t, m))
 	var got []string
@@ -235,27 +242,84 @@ func TestDominated(t *testing.T) {
 
 // ratRollback is an independent evaluator on math/big.Rat (exact rational
 // arithmetic from the standard library), written recursively and straight
-// from the textbook definition of rollback.
+// from the textbook definition of rollback, on the figures as written (in
+// the objective's terms: payoffs under max, costs under min).
 func ratRollback(m *tree.Model, n *tree.Node) *big.Rat {
+	figure := func(net *big.Rat) *big.Rat {
+		if m.Objective == tree.Min {
+			return new(big.Rat).Neg(net)
+		}
+		return net
+	}
 	switch n.Kind {
 	case tree.KindEnd:
-		return rat(n.Value)
+		return figure(ratExpr(n.Payoff))
 	case tree.KindChance:
 		sum := new(big.Rat)
-		for _, b := range n.Branches {
-			v := new(big.Rat).Add(rat(b.C), ratRollback(m, b.Node))
-			sum.Add(sum, v.Mul(v, rat(b.P)))
+		for j, b := range n.Branches {
+			v := new(big.Rat).Add(figure(ratCash(b)), ratNode(m, b.Node))
+			sum.Add(sum, v.Mul(v, ratProb(n, j)))
 		}
-		return sum.Add(sum, rat(n.TestCost))
+		return sum
 	}
 	var best *big.Rat
 	for _, b := range n.Branches {
-		v := new(big.Rat).Add(rat(b.C), ratRollback(m, b.Node))
+		v := new(big.Rat).Add(figure(ratCash(b)), ratNode(m, b.Node))
 		if best == nil || (m.Objective == tree.Max && v.Cmp(best) > 0) || (m.Objective == tree.Min && v.Cmp(best) < 0) {
 			best = v
 		}
 	}
 	return best
+}
+
+func ratNode(m *tree.Model, n *tree.Node) *big.Rat {
+	if n == nil {
+		return new(big.Rat)
+	}
+	return ratRollback(m, n)
+}
+
+// ratProb is the probability of branch j of a plain chance node: its own,
+// or for the rest branch 1 minus the others.
+func ratProb(n *tree.Node, j int) *big.Rat {
+	if !n.Branches[j].Rest {
+		return ratExpr(n.Branches[j].Prob)
+	}
+	p := big.NewRat(1, 1)
+	for k, b := range n.Branches {
+		if k != j {
+			p.Sub(p, ratExpr(b.Prob))
+		}
+	}
+	return p
+}
+
+// ratCash is a branch's net value, gain − cost.
+func ratCash(b *tree.Branch) *big.Rat { return new(big.Rat).Sub(ratExpr(b.Gain), ratExpr(b.Cost)) }
+
+// ratExpr evaluates an expression of numbers on big.Rat (nil is 0).
+func ratExpr(e tree.Expr) *big.Rat {
+	switch e := e.(type) {
+	case nil:
+		return new(big.Rat)
+	case *tree.Number:
+		return rat(e.Value)
+	case *tree.Unary:
+		return new(big.Rat).Neg(ratExpr(e.X))
+	case *tree.Binary:
+		x, y := ratExpr(e.X), ratExpr(e.Y)
+		switch e.Op {
+		case '+':
+			return x.Add(x, y)
+		case '-':
+			return x.Sub(x, y)
+		case '*':
+			return x.Mul(x, y)
+		case '/':
+			return x.Quo(x, y)
+		}
+	}
+	panic("ratExpr: unsupported expression")
 }
 
 func rat(x decimal.Decimal) *big.Rat {
@@ -269,21 +333,21 @@ func rat(x decimal.Decimal) *big.Rat {
 // randomTree makes a random tree of about size nodes with probabilities
 // in hundredths (the last sibling takes the rest) and cash with up to two
 // decimals, some of it negative.
-func randomTree(rng *rand.Rand, size int) *tree.Node {
+func randomTree(rng *rand.Rand, size int, money func(tree.Expr) tree.Cash) *tree.Node {
 	var build func(budget, depth int) *tree.Node
 	build = func(budget, depth int) *tree.Node {
 		if budget <= 1 || depth > 12 || rng.Intn(6) == 0 {
 			if rng.Intn(3) == 0 {
 				return nil
 			}
-			return tree.Terminal(decimal.New(rng.Int63n(20001)-10000, -int32(rng.Intn(3))))
+			return tree.Terminal(tree.Num(decimal.New(rng.Int63n(20001)-10000, -int32(rng.Intn(3)))))
 		}
 		k := 2 + rng.Intn(3)
 		var branches []*tree.Branch
 		chance := rng.Intn(2) == 0
 		left := int64(100)
 		for i := 0; i < k; i++ {
-			cash := decimal.New(rng.Int63n(200001)-100000, -int32(rng.Intn(3)))
+			cash := money(tree.Num(decimal.New(rng.Int63n(200001)-100000, -int32(rng.Intn(3)))))
 			child := build((budget-1)/k, depth+1)
 			switch {
 			case !chance:
@@ -293,7 +357,7 @@ func randomTree(rng *rand.Rand, size int) *tree.Node {
 			default:
 				p := rng.Int63n(left + 1)
 				left -= p
-				branches = append(branches, tree.Outcome("o"+string(rune('a'+i)), decimal.New(p, -2), cash, child))
+				branches = append(branches, tree.Outcome("o"+string(rune('a'+i)), tree.Num(decimal.New(p, -2)), cash, child))
 			}
 		}
 		if chance {
@@ -315,10 +379,13 @@ func TestRollbackMatchesBigRat(t *testing.T) {
 		trees = 300
 	}
 	for i := 0; i < trees; i++ {
-		m := &tree.Model{Root: randomTree(rng, 2+rng.Intn(200))}
+		// Under min the figures are costs, so the tree is built of costs.
+		m := &tree.Model{}
+		money := tree.Gain
 		if i%2 == 1 {
-			m.Objective = tree.Min
+			m.Objective, money = tree.Min, tree.Cost
 		}
+		m.Root = randomTree(rng, 2+rng.Intn(200), money)
 		sol := mustSolve(t, m)
 		want := ratRollback(m, m.Root)
 		if got := rat(sol.Value()); got.Cmp(want) != 0 {

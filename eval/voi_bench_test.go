@@ -1,9 +1,11 @@
 package eval
 
 import (
+	"context"
 	"math/rand"
 	"testing"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
@@ -24,7 +26,7 @@ func voiBenchTree(depth int, withTest bool) *tree.Model {
 				u := []string{"u", "v"}[rng.Intn(2)]
 				var bs []*tree.Branch
 				for _, s := range []string{"s1", "s2", "s3"} {
-					bs = append(bs, tree.Given(s, decimal.New(rng.Int63n(10000), 0), build(d+1)))
+					bs = append(bs, tree.Given(s, tree.Gain(tree.Num(decimal.New(rng.Int63n(10000), 0))), build(d+1)))
 				}
 				return tree.ChanceOn(u, bs...)
 			}
@@ -32,14 +34,14 @@ func voiBenchTree(depth int, withTest bool) *tree.Model {
 			p2 := rng.Int63n(90 - p1)
 			p3 := rng.Int63n(100 - p1 - p2)
 			return tree.Chance("c",
-				tree.Outcome("a", decimal.New(p1, -2), decimal.New(rng.Int63n(10000), 0), build(d+1)),
-				tree.Outcome("b", decimal.New(p2, -2), decimal.New(-rng.Int63n(10000), 0), build(d+1)),
-				tree.Outcome("c", decimal.New(p3, -2), decimal.New(rng.Int63n(100000), -2), build(d+1)),
-				tree.RestOutcome("d", decimal.New(rng.Int63n(1000), -2), build(d+1)))
+				tree.Outcome("a", tree.Num(decimal.New(p1, -2)), tree.Gain(tree.Num(decimal.New(rng.Int63n(10000), 0))), build(d+1)),
+				tree.Outcome("b", tree.Num(decimal.New(p2, -2)), tree.Gain(tree.Num(decimal.New(-rng.Int63n(10000), 0))), build(d+1)),
+				tree.Outcome("c", tree.Num(decimal.New(p3, -2)), tree.Gain(tree.Num(decimal.New(rng.Int63n(100000), -2))), build(d+1)),
+				tree.RestOutcome("d", tree.Gain(tree.Num(decimal.New(rng.Int63n(1000), -2))), build(d+1)))
 		}
 		var bs []*tree.Branch
 		for i := 0; i < 3; i++ {
-			bs = append(bs, tree.Choice(string(rune('x'+i)), decimal.New(rng.Int63n(5000)-2500, 0), build(d+1)))
+			bs = append(bs, tree.Choice(string(rune('x'+i)), tree.Gain(tree.Num(decimal.New(rng.Int63n(5000)-2500, 0))), build(d+1)))
 		}
 		return tree.Decision("d", bs...)
 	}
@@ -53,8 +55,8 @@ func voiBenchTree(depth int, withTest bool) *tree.Model {
 			{Label: "lo", Rest: true}}}},
 	}
 	m.Root = tree.Decision("root",
-		tree.Choice("now", decimal.Zero, build(1)),
-		tree.Choice("test", decimal.Zero, tree.RunTest("t", tree.Given("hi", decimal.Zero, build(1)), tree.Given("lo", decimal.Zero, build(1)))))
+		tree.Choice("now", tree.Gain(tree.Num(decimal.Zero)), build(1)),
+		tree.Choice("test", tree.Gain(tree.Num(decimal.Zero)), tree.RunTest("t", tree.Given("hi", tree.Gain(tree.Num(decimal.Zero)), build(1)), tree.Given("lo", tree.Gain(tree.Num(decimal.Zero)), build(1)))))
 	if !withTest {
 		m.Root = build(1)
 	}
@@ -69,17 +71,18 @@ func BenchmarkValueOfInformation(b *testing.B) {
 			if !withTest {
 				name += "-notest"
 			}
-			if ds := m.Resolve(nil); ds.HasErrors() {
+			c, ds := compiled.Compile(m)
+			if ds.HasErrors() {
 				b.Fatal(ds)
 			}
-			sol, err := Solve(m)
+			sol, err := Solve(c)
 			if err != nil {
 				b.Fatal(err)
 			}
 			b.Run(name, func(b *testing.B) {
 				b.ReportMetric(float64(len(sol.Nodes())), "nodes")
 				for i := 0; i < b.N; i++ {
-					info, err := ValueOfInformation(sol, VOIOptions{})
+					info, err := ValueOfInformation(context.Background(), sol, VOIOptions{})
 					if err != nil {
 						b.Fatal(err)
 					}
@@ -93,7 +96,7 @@ func BenchmarkValueOfInformation(b *testing.B) {
 			})
 			b.Run("solve"+name, func(b *testing.B) {
 				for i := 0; i < b.N; i++ {
-					if _, err := Solve(m); err != nil {
+					if _, err := Solve(c); err != nil {
 						b.Fatal(err)
 					}
 				}

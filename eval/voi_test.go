@@ -1,11 +1,13 @@
 package eval
 
 import (
+	"context"
 	"fmt"
 	"math/big"
 	"math/rand"
 	"testing"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
@@ -22,7 +24,7 @@ func wantDec(t *testing.T, what string, got decimal.Decimal, want string) {
 func near(t *testing.T, what string, got decimal.Decimal, want *big.Rat) {
 	t.Helper()
 	diff := new(big.Rat).Sub(got.Rat(), want)
-	tol := new(big.Rat).SetFrac(big.NewInt(1), new(big.Int).Exp(big.NewInt(10), big.NewInt(tree.DivisionScale-5), nil))
+	tol := new(big.Rat).SetFrac(big.NewInt(1), new(big.Int).Exp(big.NewInt(10), big.NewInt(compiled.DivisionScale-5), nil))
 	if diff.Abs(diff).Cmp(tol) > 0 {
 		t.Errorf("%s = %s, want %s (%s)", what, got, want.FloatString(30), want)
 	}
@@ -36,10 +38,10 @@ func near(t *testing.T, what string, got decimal.Decimal, want *big.Rat) {
 func oilModel(pOil string, survey bool) *tree.Model {
 	choice := func() *tree.Node {
 		return tree.Decision("Drill or sell",
-			tree.Choice("Drill", decimal.Zero, tree.ChanceOn("oil",
-				tree.Given("Oil", d("700"), nil),
-				tree.Given("Dry", d("-100"), nil))),
-			tree.Choice("Sell", d("90"), nil))
+			tree.Choice("Drill", tree.NoCash, tree.ChanceOn("oil",
+				tree.Given("Oil", tree.Gain(tree.Num(d("700"))), nil),
+				tree.Given("Dry", tree.Gain(tree.Num(d("-100"))), nil))),
+			tree.Choice("Sell", tree.Gain(tree.Num(d("90"))), nil))
 	}
 	m := &tree.Model{Title: "oil drilling",
 		Params: []*tree.Param{{Name: "p_oil", Expr: tree.Num(d(pOil)), Low: tree.Num(d("0")), High: tree.Num(d("1"))}},
@@ -55,10 +57,11 @@ func oilModel(pOil string, survey bool) *tree.Model {
 		return m
 	}
 	m.Root = tree.Decision("Survey first?",
-		tree.Choice("No survey", decimal.Zero, choice()),
-		tree.Choice("Seismic survey", decimal.Zero, tree.RunTest("seismic",
-			tree.Given("Favourable", decimal.Zero, choice()),
-			tree.Given("Unfavourable", decimal.Zero, choice()))))
+		tree.Choice("No survey", tree.NoCash, choice()),
+		tree.Choice("Seismic survey", tree.NoCash, tree.RunTest("seismic",
+			tree.Given("Favourable", tree.NoCash, choice()),
+			tree.Given("Unfavourable", tree.NoCash, choice()))),
+	)
 	return m
 }
 
@@ -68,13 +71,13 @@ func TestOilDrillingEVPI(t *testing.T) {
 	// optimal; with perfect information 0.25·700 + 0.75·90 = 242.5, so
 	// EVPI = 142.5.
 	wantDec(t, "EMV", sol.Value(), "100")
-	pi, err := EVPI(sol, "oil")
+	pi, err := EVPI(context.Background(), sol, "oil")
 	if err != nil {
 		t.Fatal(err)
 	}
 	wantDec(t, "EV with perfect information", pi.With, "242.5")
 	wantDec(t, "EVPI(oil)", pi.EVPI, "142.5") // Hillier & Lieberman: EVPI = 142.5
-	total, err := TotalEVPI(sol, VOIOptions{})
+	total, err := TotalEVPI(context.Background(), sol, VOIOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -86,7 +89,7 @@ func TestOilDrillingEVPI(t *testing.T) {
 
 func TestOilDrillingSurvey(t *testing.T) {
 	sol := mustSolve(t, oilModel("0.25", true))
-	tv, err := EVSI(sol, "seismic")
+	tv, err := EVSI(context.Background(), sol, "seismic")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -123,7 +126,7 @@ func TestOilDrillingSurvey(t *testing.T) {
 	// Over the tree's value, which now counts the survey (123), perfect
 	// information is worth 242.5 − 123 = 119.5 (derived from the figures
 	// above): what it adds to the best plan on offer.
-	pi, err := EVPI(sol, "oil")
+	pi, err := EVPI(context.Background(), sol, "oil")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -136,21 +139,21 @@ func TestCondominiumEVPI(t *testing.T) {
 	// small 8/7, medium 14/5, large 20/−9, P(strong) = 0.8. EV 14.2 (large),
 	// EVPI 3.2.
 	demand := func(strong, weak string) *tree.Node {
-		return tree.ChanceOn("demand", tree.Given("Strong", d(strong), nil), tree.Given("Weak", d(weak), nil))
+		return tree.ChanceOn("demand", tree.Given("Strong", tree.Gain(tree.Num(d(strong))), nil), tree.Given("Weak", tree.Gain(tree.Num(d(weak))), nil))
 	}
 	m := &tree.Model{
 		Uncertainties: []*tree.Uncertainty{{Name: "demand", States: []*tree.State{{Label: "Strong", Prob: tree.Num(d("0.8"))}, {Label: "Weak"}}}},
 		Root: tree.Decision("Complex size",
-			tree.Choice("Small", decimal.Zero, demand("8", "7")),
-			tree.Choice("Medium", decimal.Zero, demand("14", "5")),
-			tree.Choice("Large", decimal.Zero, demand("20", "-9"))),
+			tree.Choice("Small", tree.NoCash, demand("8", "7")),
+			tree.Choice("Medium", tree.NoCash, demand("14", "5")),
+			tree.Choice("Large", tree.NoCash, demand("20", "-9"))),
 	}
 	sol := mustSolve(t, m)
 	wantDec(t, "EV", sol.Value(), "14.2") // recalled from memory
 	if sol.Root.Chosen() != 2 {
 		t.Errorf("chosen %d, want Large", sol.Root.Chosen())
 	}
-	pi, err := EVPI(sol, "demand")
+	pi, err := EVPI(context.Background(), sol, "demand")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -160,14 +163,14 @@ func TestCondominiumEVPI(t *testing.T) {
 	// E[max(S, M, L)] over independent demands (computed by hand:
 	// 0.8·0.8·0.8·20 ... see below).
 	plain := func(strong, weak string) *tree.Node {
-		return tree.Chance("Demand", tree.Outcome("Strong", d("0.8"), d(strong), nil), tree.Outcome("Weak", d("0.2"), d(weak), nil))
+		return tree.Chance("Demand", tree.Outcome("Strong", tree.Num(d("0.8")), tree.Gain(tree.Num(d(strong))), nil), tree.Outcome("Weak", tree.Num(d("0.2")), tree.Gain(tree.Num(d(weak))), nil))
 	}
 	m2 := &tree.Model{Root: tree.Decision("Complex size",
-		tree.Choice("Small", decimal.Zero, plain("8", "7")),
-		tree.Choice("Medium", decimal.Zero, plain("14", "5")),
-		tree.Choice("Large", decimal.Zero, plain("20", "-9")))}
+		tree.Choice("Small", tree.NoCash, plain("8", "7")),
+		tree.Choice("Medium", tree.NoCash, plain("14", "5")),
+		tree.Choice("Large", tree.NoCash, plain("20", "-9")))}
 	sol2 := mustSolve(t, m2)
-	total, err := TotalEVPI(sol2, VOIOptions{})
+	total, err := TotalEVPI(context.Background(), sol2, VOIOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -181,7 +184,7 @@ func TestCondominiumEVPI(t *testing.T) {
 	}
 	// Over a tiny budget the total falls back to the named uncertainties
 	// (none here: EVPI 0) and says so.
-	small, err := TotalEVPI(sol2, VOIOptions{MaxWork: 5})
+	small, err := TotalEVPI(context.Background(), sol2, VOIOptions{MaxWork: 5})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -196,10 +199,10 @@ func TestEVPIMin(t *testing.T) {
 	m := &tree.Model{Objective: tree.Min,
 		Uncertainties: []*tree.Uncertainty{{Name: "defect", States: []*tree.State{{Label: "Defective", Prob: tree.Num(d("0.2"))}, {Label: "Sound"}}}},
 		Root: tree.Decision("Release",
-			tree.Choice("Ship", decimal.Zero, tree.ChanceOn("defect", tree.Given("Defective", d("400"), nil), tree.Given("Sound", decimal.Zero, nil))),
-			tree.Choice("Rework", d("45"), nil))}
+			tree.Choice("Ship", tree.Cost(tree.Num(decimal.Zero)), tree.ChanceOn("defect", tree.Given("Defective", tree.Cost(tree.Num(d("400"))), nil), tree.Given("Sound", tree.Cost(tree.Num(decimal.Zero)), nil))),
+			tree.Choice("Rework", tree.Cost(tree.Num(d("45"))), nil))}
 	sol := mustSolve(t, m)
-	pi, err := EVPI(sol, "defect")
+	pi, err := EVPI(context.Background(), sol, "defect")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -220,18 +223,19 @@ func TestUncertaintyTwice(t *testing.T) {
 			{Name: "u", States: []*tree.State{{Label: "Hi", Prob: tree.Num(d("0.5"))}, {Label: "Lo"}}},
 		},
 		Root: tree.ChanceOn("u",
-			tree.Given("Hi", decimal.Zero, tree.Decision("Act",
-				tree.Choice("Go", decimal.Zero, tree.ChanceOn("u", tree.Given("Hi", d("10"), nil), tree.Given("Lo", d("-10"), nil))),
-				tree.Choice("Stop", decimal.Zero, nil))),
-			tree.Given("Lo", decimal.Zero, tree.Decision("Act",
-				tree.Choice("Go", decimal.Zero, tree.ChanceOn("u", tree.Given("Hi", d("10"), nil), tree.Given("Lo", d("-10"), nil))),
-				tree.Choice("Stop", decimal.Zero, nil)))),
+			tree.Given("Hi", tree.NoCash, tree.Decision("Act",
+				tree.Choice("Go", tree.NoCash, tree.ChanceOn("u", tree.Given("Hi", tree.Gain(tree.Num(d("10"))), nil), tree.Given("Lo", tree.Gain(tree.Num(d("-10"))), nil))),
+				tree.Choice("Stop", tree.NoCash, nil))),
+			tree.Given("Lo", tree.NoCash, tree.Decision("Act",
+				tree.Choice("Go", tree.NoCash, tree.ChanceOn("u", tree.Given("Hi", tree.Gain(tree.Num(d("10"))), nil), tree.Given("Lo", tree.Gain(tree.Num(d("-10"))), nil))),
+				tree.Choice("Stop", tree.NoCash, nil))),
+		),
 	}
 	sol := mustSolve(t, m)
 	// By hand: after "Hi" the second node is Hi for certain: Go is worth
 	// 10; after "Lo", Stop (0). Value 5.
 	wantDec(t, "value", sol.Value(), "5")
-	pi, err := EVPI(sol, "u")
+	pi, err := EVPI(context.Background(), sol, "u")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -245,9 +249,9 @@ func TestTestWarnings(t *testing.T) {
 	m.Tests = append(m.Tests, &tree.Test{Name: "useless", On: "oil", Readings: []*tree.Reading{
 		{Label: "Always", Rest: true}, {Label: "Never", Given: []*tree.Likelihood{{State: "Oil", Prob: tree.Num(decimal.Zero)}}}}})
 	// Run it where there is no alternative: the root is the test.
-	m.Root = tree.RunTest("useless", tree.Given("Always", decimal.Zero, m.Root), tree.Given("Never", decimal.Zero, nil))
+	m.Root = tree.RunTest("useless", tree.Given("Always", tree.NoCash, m.Root), tree.Given("Never", tree.NoCash, nil))
 	sol := mustSolve(t, m)
-	info, err := ValueOfInformation(sol, VOIOptions{})
+	info, err := ValueOfInformation(context.Background(), sol, VOIOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -268,10 +272,12 @@ func TestTestWarnings(t *testing.T) {
 func TestEVSINegative(t *testing.T) {
 	m := oilModel("0.25", true)
 	// After the survey only "Sell for 10" is on offer (invented).
-	sell := func() *tree.Node { return tree.Decision("After", tree.Choice("Sell for 10", d("10"), nil)) }
-	m.Root.Branches[1].Node = tree.RunTest("seismic", tree.Given("Favourable", decimal.Zero, sell()), tree.Given("Unfavourable", decimal.Zero, sell()))
+	sell := func() *tree.Node {
+		return tree.Decision("After", tree.Choice("Sell for 10", tree.Gain(tree.Num(d("10"))), nil))
+	}
+	m.Root.Branches[1].Node = tree.RunTest("seismic", tree.Given("Favourable", tree.NoCash, sell()), tree.Given("Unfavourable", tree.NoCash, sell()))
 	sol := mustSolve(t, m)
-	tv, err := EVSI(sol, "seismic")
+	tv, err := EVSI(context.Background(), sol, "seismic")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -363,6 +369,11 @@ func newRatModel(r *rand.Rand) *ratModel {
 }
 
 func (rm *ratModel) build() {
+	// Under min the figures are costs.
+	money := tree.Gain
+	if rm.obj == tree.Min {
+		money = tree.Cost
+	}
 	m := &tree.Model{Objective: rm.obj}
 	u := &tree.Uncertainty{Name: "u"}
 	for s, p := range rm.priorU {
@@ -401,24 +412,24 @@ func (rm *ratModel) build() {
 					var next *tree.Node
 					if op.plainP != nil {
 						next = tree.Chance("plain",
-							tree.Outcome("a", ratDec(op.plainP[0]), ratDec(op.plainC[0]), nil),
-							tree.Outcome("b", ratDec(op.plainP[1]), ratDec(op.plainC[1]), nil))
+							tree.Outcome("a", tree.Num(ratDec(op.plainP[0])), money(tree.Num(ratDec(op.plainC[0]))), nil),
+							tree.Outcome("b", tree.Num(ratDec(op.plainP[1])), money(tree.Num(ratDec(op.plainC[1]))), nil))
 					}
-					us = append(us, tree.Given(u.States[s].Label, ratDec(op.pay[s][vi]), next))
+					us = append(us, tree.Given(u.States[s].Label, money(tree.Num(ratDec(op.pay[s][vi]))), next))
 				}
-				vs = append(vs, tree.Given(v.States[vi].Label, decimal.Zero, tree.ChanceOn("u", us...)))
+				vs = append(vs, tree.Given(v.States[vi].Label, money(tree.Num(decimal.Zero)), tree.ChanceOn("u", us...)))
 			}
-			d.Branches = append(d.Branches, tree.Choice(fmt.Sprintf("O%d", i), decimal.Zero, tree.ChanceOn("v", vs...)))
+			d.Branches = append(d.Branches, tree.Choice(fmt.Sprintf("O%d", i), money(tree.Num(decimal.Zero)), tree.ChanceOn("v", vs...)))
 		}
 		return d
 	}
 	var reads []*tree.Branch
 	for k := range rm.like {
-		reads = append(reads, tree.Given(fmt.Sprintf("R%d", k), decimal.Zero, act()))
+		reads = append(reads, tree.Given(fmt.Sprintf("R%d", k), money(tree.Num(decimal.Zero)), act()))
 	}
 	m.Root = tree.Decision("Test?",
-		tree.Choice("Act now", decimal.Zero, act()),
-		tree.Choice("Test first", decimal.Zero, tree.RunTest("t", reads...)))
+		tree.Choice("Act now", money(tree.Num(decimal.Zero)), act()),
+		tree.Choice("Test first", money(tree.Num(decimal.Zero)), tree.RunTest("t", reads...)))
 	rm.m = m
 }
 
@@ -657,7 +668,7 @@ func TestRandomVOI(t *testing.T) {
 		sol := mustSolve(t, rm.m)
 		ctx := fmt.Sprintf("tree %d (%v)", it, rm.obj)
 		near(t, ctx+" root value", sol.Value(), rm.rootValue())
-		info, err := ValueOfInformation(sol, VOIOptions{})
+		info, err := ValueOfInformation(context.Background(), sol, VOIOptions{})
 		if err != nil {
 			t.Fatalf("%s: %v", ctx, err)
 		}
@@ -708,16 +719,16 @@ func TestSecondSurvey(t *testing.T) {
 	again := func() *tree.Node {
 		d := choice()
 		d.Label = "After the first survey"
-		d.Branches = append(d.Branches, tree.Choice("Survey again", decimal.Zero, tree.RunTest("seismic",
-			tree.Given("Favourable", decimal.Zero, choice()),
-			tree.Given("Unfavourable", decimal.Zero, choice()))))
+		d.Branches = append(d.Branches, tree.Choice("Survey again", tree.NoCash, tree.RunTest("seismic",
+			tree.Given("Favourable", tree.NoCash, choice()),
+			tree.Given("Unfavourable", tree.NoCash, choice()))))
 		return d
 	}
 	m.Root.Branches[1].Node = tree.RunTest("seismic",
-		tree.Given("Favourable", decimal.Zero, again()),
-		tree.Given("Unfavourable", decimal.Zero, again()))
+		tree.Given("Favourable", tree.NoCash, again()),
+		tree.Given("Unfavourable", tree.NoCash, again()))
 	sol := mustSolve(t, m)
-	tv, err := EVSI(sol, "seismic")
+	tv, err := EVSI(context.Background(), sol, "seismic")
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"testing"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/examples"
 	"github.com/forkcast/forkcast/lang"
@@ -33,17 +34,18 @@ func TestExamplesRoundTrip(t *testing.T) {
 				t.Fatal(err)
 			}
 			var js bytes.Buffer
-			if err := tree.WriteJSON(&js, m, tree.JSONOptions{}); err != nil {
+			if err := tree.WriteJSON(&js, m.Source(), m, tree.JSONOptions{}); err != nil {
 				t.Fatal(err)
 			}
 			m2, ds := tree.ReadJSON(js.Bytes(), 0)
 			if ds.HasErrors() {
 				t.Fatalf("reading back: %v\n%s", ds, js.String())
 			}
-			if ds := m2.Resolve(nil); ds.HasErrors() {
-				t.Fatalf("resolving back: %v\n%s", ds, js.String())
+			c2, ds := compiled.Compile(m2)
+			if ds.HasErrors() {
+				t.Fatalf("compiling back: %v\n%s", ds, js.String())
 			}
-			sol2, err := eval.Solve(m2)
+			sol2, err := eval.Solve(c2)
 			if err != nil {
 				t.Fatal(err)
 			}

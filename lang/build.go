@@ -94,12 +94,11 @@ type useRef struct {
 // model.
 const kindUse tree.Kind = 0xff
 
-// pendingCash is a branch's gain and cost, combined into Branch.Cash once
-// the objective is known (the objective line may come last).
+// pendingCash is a branch's gain and cost, checked once the whole file is
+// read.
 type pendingCash struct {
 	b          *tree.Branch
 	gain, cost tree.Expr
-	gainFirst  bool
 }
 
 type builder struct {
@@ -741,10 +740,8 @@ func (b *builder) branch(l *srcLine, g *gItem, label string) *tree.Branch {
 			continue
 		}
 		*slot = e
-		if p.gain != nil && p.cost == nil {
-			p.gainFirst = true
-		}
 	}
+	br.Gain, br.Cost = p.gain, p.cost
 	if p.gain != nil || p.cost != nil {
 		b.cash = append(b.cash, p)
 	}
@@ -936,7 +933,6 @@ func (b *builder) finish() {
 			"the model has no tree: no decision, chance or test line at the top level")
 	}
 	for _, p := range b.cash {
-		p.b.Cash = combineCash(b.m.Objective, p.gain, p.cost, p.gainFirst)
 		for _, c := range []struct {
 			word, other string
 			e           tree.Expr
@@ -964,24 +960,4 @@ func (b *builder) finish() {
 		}
 	}
 	b.expand()
-}
-
-// combineCash turns gain and cost into one amount in the objective's terms:
-// gain − cost under max, cost − gain under min.
-func combineCash(o tree.Objective, gain, cost tree.Expr, gainFirst bool) tree.Expr {
-	plus, minus := gain, cost
-	if o == tree.Min {
-		plus, minus = cost, gain
-	}
-	switch {
-	case minus == nil:
-		return plus
-	case plus == nil:
-		return &tree.Unary{At: minus.Pos(), Op: '-', X: minus}
-	}
-	at := plus.Pos()
-	if gainFirst != (o == tree.Max) {
-		at = minus.Pos()
-	}
-	return &tree.Binary{At: at, Op: '-', X: plus, Y: minus}
 }

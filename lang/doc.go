@@ -3,11 +3,11 @@
 //
 // [Parse] turns a file's text into a [tree.Model] and reports every
 // syntax and structure problem in it, each with a position, a caret span and
-// usually a hint; [Load] then resolves the model with [tree.Model.Resolve],
-// so that one call gives a checked model and every diagnostic, errors and
-// warnings together:
+// usually a hint; [Load] then compiles the model with [compiled.Compile],
+// so that one call gives a checked model ready to solve and every
+// diagnostic, errors and warnings together:
 //
-//	m, ds := lang.Load(src, lang.Options{})
+//	c, ds := lang.Load(src, lang.Options{})
 //	if ds.HasErrors() {
 //		ds.Print(os.Stderr, "model.fork", src)
 //		return

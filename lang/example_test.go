@@ -5,7 +5,6 @@ import (
 	"os"
 
 	"github.com/forkcast/forkcast/lang"
-	"github.com/forkcast/forkcast/tree"
 )
 
 func ExampleLoad() {
@@ -20,21 +19,23 @@ decision "Release"
       "Fails"  rest  cost 250_000
   "Fix first"  cost fix
 `)
-	m, ds := lang.Load(src, lang.Options{})
+	c, ds := lang.Load(src, lang.Options{})
 	if ds.HasErrors() {
 		ds.Print(os.Stdout, "release.fork", src)
 		return
 	}
+	m := c.Source() // the model as written
 	fmt.Println(m.Title, "in", m.Currency)
-	fmt.Println(tree.Count(m.Root), "nodes")
-	fmt.Println("fix =", m.Param("fix").Value, "from", m.Param("fix").LowValue, "to", m.Param("fix").HighValue)
-	fails := m.Root.Branches[0].Node.Branches[1]
-	fmt.Println("P(Fails) =", fails.P, "cash", fails.C)
+	fmt.Println(c.Len(), "nodes")
+	fix, _ := c.InputNamed("fix")
+	fmt.Println("fix =", fix.Value, "from", fix.Low, "to", fix.High)
+	fails := c.Child(c.Child(0, 0), 1) // "Ship now", then "Fails"
+	fmt.Println("P(Fails) =", c.Prob(fails), "net cash", c.Cash(fails))
 	// Output:
 	// Ship or fix first in EUR
 	// 5 nodes
 	// fix = 30000 from 20000 to 45000
-	// P(Fails) = 0.1 cash -250000
+	// P(Fails) = 0.1 net cash -250000
 }
 
 func ExampleLoad_diagnostics() {

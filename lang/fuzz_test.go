@@ -5,6 +5,7 @@ import (
 	"reflect"
 	"testing"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 )
 
@@ -58,12 +59,24 @@ func FuzzLoad(f *testing.F) {
 	}
 	ps := getParsers()
 	f.Fuzz(func(t *testing.T, src []byte) {
-		m, ds := Load(src, Options{NodeLimit: 20_000})
+		m, ds := Parse(src, Options{NodeLimit: 20_000})
 		if m == nil {
 			t.Fatal("nil model")
 		}
 		if !ds.HasErrors() && m.Root == nil {
 			t.Fatal("no errors but no tree")
+		}
+		if !ds.HasErrors() {
+			// What reads without errors compiles, or says why not, and
+			// what compiles solves.
+			c, cs := compiled.Compile(m)
+			if (c == nil) != cs.HasErrors() {
+				t.Fatalf("compiled %v with errors %v", c != nil, cs)
+			}
+			if c != nil {
+				c.Rollback()
+			}
+			ds = append(ds, cs...)
 		}
 		for _, d := range ds {
 			if !d.Pos.IsValid() || d.Summary == "" {

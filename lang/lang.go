@@ -4,6 +4,7 @@ import (
 	"sync"
 
 	"github.com/alecthomas/participle/v2/lexer"
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 )
 
@@ -50,17 +51,18 @@ func Parse(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
 }
 
 // Load reads a model's text like [Parse] and, when that finds no errors,
-// resolves it ([tree.Model.Resolve] with no overrides): expressions are
-// evaluated, probabilities checked, Bayes' rule applied. It returns every
-// diagnostic, errors and warnings from both steps, sorted by position.
-func Load(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
+// compiles it ([compiled.Compile]): expressions are evaluated,
+// probabilities checked, the tree laid out for solving. It returns every
+// diagnostic, errors and warnings from both steps, sorted by position; the
+// compiled model is nil when there are errors.
+func Load(src []byte, opts Options) (*compiled.Model, tree.Diagnostics) {
 	m, ds := Parse(src, opts)
 	if ds.HasErrors() {
-		return m, ds
+		return nil, ds
 	}
-	rs := m.Resolve(nil)
-	fillLen(src, rs)
-	return m, append(ds, rs...).Sort()
+	c, cs := compiled.Compile(m)
+	fillLen(src, cs)
+	return c, append(ds, cs...).Sort()
 }
 
 // parseLines reads every line's content with the parser for its kind.

@@ -6,12 +6,20 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
 
-// load reads src with Load and fails the test on any error.
+// load reads src with Load, fails the test on any error, and returns the
+// model as written.
 func load(t *testing.T, src string) *tree.Model {
+	t.Helper()
+	return loadC(t, src).Source()
+}
+
+// loadC reads src with Load and fails the test on any error.
+func loadC(t *testing.T, src string) *compiled.Model {
 	t.Helper()
 	m, ds := Load([]byte(src), Options{})
 	if ds.HasErrors() {
@@ -66,7 +74,8 @@ decision "D"
       "x"  p_slip
       "y"  rest
 `
-	m := load(t, src)
+	c := loadC(t, src)
+	m := c.Source()
 	if len(m.Params) != 3 {
 		t.Fatalf("got %d params", len(m.Params))
 	}
@@ -80,8 +89,9 @@ decision "D"
 	}
 	for i, w := range want {
 		p := m.Params[i]
-		if p.Name != w.name || p.Expr.String() != w.expr || !p.Value.Equal(dec(w.value)) || p.Pos != w.pos {
-			t.Errorf("param %d: got %s = %s (%s) at %v", i, p.Name, p.Expr, p.Value, p.Pos)
+		in, _ := c.InputNamed(p.Name)
+		if p.Name != w.name || p.Expr.String() != w.expr || !in.Value.Equal(dec(w.value)) || p.Pos != w.pos {
+			t.Errorf("param %d: got %s = %s (%s) at %v", i, p.Name, p.Expr, in.Value, p.Pos)
 		}
 		if w.low == "" {
 			if p.HasRange() {
@@ -89,8 +99,8 @@ decision "D"
 			}
 			continue
 		}
-		if !p.HasRange() || !p.LowValue.Equal(dec(w.low)) || !p.HighValue.Equal(dec(w.high)) {
-			t.Errorf("%s: range %s .. %s", p.Name, p.LowValue, p.HighValue)
+		if !p.HasRange() || !in.HasRange || !in.Low.Equal(dec(w.low)) || !in.High.Equal(dec(w.high)) {
+			t.Errorf("%s: range %s .. %s", p.Name, in.Low, in.High)
 		}
 	}
 }
@@ -118,13 +128,13 @@ func TestExpressions(t *testing.T) {
 	}
 	for _, tt := range tests {
 		src := fmt.Sprintf("let base = 100\nlet x = %s\ndecision \"D\"\n  \"a\"  gain x + base\n", tt.expr)
-		m := load(t, src)
-		p := m.Param("x")
+		c := loadC(t, src)
+		p := c.Source().Param("x")
 		if p.Expr.String() != tt.str {
 			t.Errorf("%s: parsed as %s, want %s", tt.expr, p.Expr, tt.str)
 		}
-		if !p.Value.Equal(dec(tt.value)) {
-			t.Errorf("%s = %s, want %s", tt.expr, p.Value, tt.value)
+		if in, _ := c.InputNamed("x"); !in.Value.Equal(dec(tt.value)) {
+			t.Errorf("%s = %s, want %s", tt.expr, in.Value, tt.value)
 		}
 	}
 }
@@ -143,43 +153,48 @@ func TestExactNumbers(t *testing.T) {
 		}
 	}
 	// 0.1 + 0.2 is exactly 0.3, not 0.30000000000000004.
-	m = load(t, "let x = 0.1 + 0.2\ndecision \"D\"\n  \"a\"  gain x\n")
-	if m.Param("x").Value.String() != "0.3" {
-		t.Errorf("0.1 + 0.2 = %s", m.Param("x").Value)
+	c := loadC(t, "let x = 0.1 + 0.2\ndecision \"D\"\n  \"a\"  gain x\n")
+	if in, _ := c.InputNamed("x"); in.Value.String() != "0.3" {
+		t.Errorf("0.1 + 0.2 = %s", in.Value)
 	}
 }
 
+// TestCashSigns: gain and cost are kept as written; the branch's figure in
+// the objective's terms is gain − cost under max and cost − gain under min.
 func TestCashSigns(t *testing.T) {
 	tests := []struct {
-		objective, cash, expr, value string
+		objective, cash, gain, cost, value string
 	}{
-		{"max", "gain 100", "100", "100"},
-		{"max", "cost 30", "-30", "-30"},
-		{"max", "gain 100 cost 20", "(100 - 20)", "80"},
-		{"max", "cost 20 gain 100", "(100 - 20)", "80"},
-		{"max", "gain 5 * 20", "(5 * 20)", "100"},
-		{"min", "gain 100", "-100", "-100"},
-		{"min", "cost 30", "30", "30"},
-		{"min", "gain 100 cost 20", "(20 - 100)", "-80"},
-		{"min", "cost 20 gain 100", "(20 - 100)", "-80"},
-		{"max", "", "", "0"},
+		{"max", "gain 100", "100", "", "100"},
+		{"max", "cost 30", "", "30", "-30"},
+		{"max", "gain 100 cost 20", "100", "20", "80"},
+		{"max", "cost 20 gain 100", "100", "20", "80"},
+		{"max", "gain 5 * 20", "(5 * 20)", "", "100"},
+		{"min", "gain 100", "100", "", "-100"},
+		{"min", "cost 30", "", "30", "30"},
+		{"min", "gain 100 cost 20", "100", "20", "-80"},
+		{"min", "cost 20 gain 100", "100", "20", "-80"},
+		{"max", "", "", "", "0"},
+	}
+	str := func(e tree.Expr) string {
+		if e == nil {
+			return ""
+		}
+		return e.String()
 	}
 	for _, tt := range tests {
 		src := fmt.Sprintf("objective %s\ndecision \"D\"\n  \"a\"  %s\n  \"b\"\n", tt.objective, tt.cash)
-		m := load(t, src)
-		b := m.Root.Branches[0]
-		got := ""
-		if b.Cash != nil {
-			got = b.Cash.String()
-		}
-		if got != tt.expr || !b.C.Equal(dec(tt.value)) {
-			t.Errorf("%s %q: cash %q = %s, want %q = %s", tt.objective, tt.cash, got, b.C, tt.expr, tt.value)
+		c := loadC(t, src)
+		b := c.Source().Root.Branches[0]
+		fig := c.Objective().Figure(c.Cash(c.Child(0, 0)))
+		if str(b.Gain) != tt.gain || str(b.Cost) != tt.cost || !fig.Equal(dec(tt.value)) {
+			t.Errorf("%s %q: gain %q cost %q = %s, want %q %q = %s", tt.objective, tt.cash, str(b.Gain), str(b.Cost), fig, tt.gain, tt.cost, tt.value)
 		}
 	}
 	// The objective may come after the tree.
-	m := load(t, "decision \"D\"\n  \"a\"  cost 7\n  \"b\"\nobjective min\n")
-	if !m.Root.Branches[0].C.Equal(dec("7")) {
-		t.Errorf("objective at the end: cost 7 = %s", m.Root.Branches[0].C)
+	c := loadC(t, "decision \"D\"\n  \"a\"  cost 7\n  \"b\"\nobjective min\n")
+	if fig := c.Objective().Figure(c.Cash(c.Child(0, 0))); !fig.Equal(dec("7")) {
+		t.Errorf("objective at the end: cost 7 = %s", fig)
 	}
 }
 
@@ -275,23 +290,23 @@ func TestLowering(t *testing.T) {
 		t.Fatalf("root: %v at %v", root, root.Pos)
 	}
 	build := root.Branches[0]
-	if build.Label != "Build in house" || build.Cash.String() != "-dev" || build.Prob != nil || build.Pos != (tree.Pos{Line: 33, Col: 3}) {
+	if build.Label != "Build in house" || build.Gain != nil || build.Cost.String() != "dev" || build.Prob != nil || build.Pos != (tree.Pos{Line: 33, Col: 3}) {
 		t.Errorf("branch 0: %+v", build)
 	}
 	if n := build.Node; n.Kind != tree.KindChance || n.Uncertainty != "schedule" || n.Label != "" || n.Pos != (tree.Pos{Line: 34, Col: 5}) {
 		t.Errorf("chance on uncertainty: %+v", n)
 	}
-	if b := build.Node.Branches[2]; b.Label != "Abandoned" || b.Node != nil || b.Cash != nil || b.Prob != nil || b.Rest {
+	if b := build.Node.Branches[2]; b.Label != "Abandoned" || b.Node != nil || b.Gain != nil || b.Cost != nil || b.Prob != nil || b.Rest {
 		t.Errorf("empty branch: %+v", b)
 	}
 	plain := root.Branches[1].Node
 	if plain.Label != "Integration" || plain.Uncertainty != "" || plain.Branches[0].Prob.String() != "80%" || !plain.Branches[1].Rest {
 		t.Errorf("plain chance: %+v", plain)
 	}
-	if c := plain.Branches[0].Cash.(*tree.Number); c.At != (tree.Pos{Line: 40, Col: 28}) {
+	if c := plain.Branches[0].Gain.(*tree.Number); c.At != (tree.Pos{Line: 40, Col: 28}) {
 		t.Errorf("cash position %v", c.At)
 	}
-	if lease := root.Branches[2]; lease.Cash.String() != "lease" || lease.Node != nil {
+	if lease := root.Branches[2]; lease.Gain.String() != "lease" || lease.Node != nil {
 		t.Errorf("lease: %+v", lease)
 	}
 	tn := root.Branches[3].Node
@@ -302,18 +317,18 @@ func TestLowering(t *testing.T) {
 	if sub == nil || sub.Kind != tree.KindDecision || sub.Label != "After an alarm" || sub.Pos != (tree.Pos{Line: 25, Col: 3}) {
 		t.Fatalf("expanded subtree: %+v", sub)
 	}
-	if d := sub.Branches[1].Node; d.Uncertainty != "defect" || d.Branches[0].Cash.String() != "-250_000" {
+	if d := sub.Branches[1].Node; d.Uncertainty != "defect" || d.Branches[0].Cost.String() != "250_000" {
 		t.Errorf("inside the subtree: %+v", d)
 	}
-	// Load resolves it: the model solves (Bayes included).
-	m, ds := Load([]byte(fullExample), Options{})
+	// Load compiles it: the model solves (Bayes included).
+	c, ds := Load([]byte(fullExample), Options{})
 	if len(ds) != 0 {
 		t.Fatalf("diagnostics: %v", ds)
 	}
-	if got := tree.Count(m.Root); got != 16 {
+	if got := c.Len(); got != 16 {
 		t.Errorf("%d nodes after Load, want 16", got)
 	}
-	if p := m.Root.Branches[3].Node.Branches[0].P; !p.Equal(dec("0.162")) {
+	if p := c.Prob(c.Child(c.Child(0, 3), 0)); !p.Equal(dec("0.162")) {
 		t.Errorf("P(Alarm) = %s, want 0.162", p)
 	}
 }
@@ -337,9 +352,10 @@ decision "Top"
   "Two"
     use pair
 `
-	m := load(t, src)
+	c := loadC(t, src)
+	m := c.Source()
 	// Top + 2 × (Pair + 2 × (Coin + 2 ends)) = 1 + 2×7 = 15 nodes, + nothing else.
-	if got := tree.Count(m.Root); got != 15 {
+	if got := c.Len(); got != 15 {
 		t.Errorf("%d nodes, want 15", got)
 	}
 	a, b := m.Root.Branches[0].Node, m.Root.Branches[1].Node
@@ -415,8 +431,7 @@ func TestNodeLimit(t *testing.T) {
 		t.Errorf("at %v", ds[0].Pos)
 	}
 	// 3 levels: Top + l0..l2 (1+2+4 decisions) + 8 End decisions with 16 ends, + the stop end.
-	m := load(t, doubling(3))
-	n := tree.Count(m.Root)
+	n := loadC(t, doubling(3)).Len()
 	if n != 1+7+8+16+1 {
 		t.Errorf("%d nodes", n)
 	}
@@ -444,12 +459,16 @@ func TestDeepChain(t *testing.T) {
 	}
 	fmt.Fprintf(&b, "subtree s%d\n  decision \"Last\"\n    \"end\"  gain 2\n", depth)
 	b.WriteString("use s0\n")
-	m := load(t, b.String())
-	if got := tree.Count(m.Root); got != 2*depth+2 {
+	c := loadC(t, b.String())
+	if got := c.Len(); got != 2*depth+2 {
 		t.Errorf("%d nodes, want %d", got, 2*depth+2)
 	}
 	maxDepth := 0
-	tree.Walk(m.Root, func(_ *tree.Node, d int) bool { maxDepth = max(maxDepth, d); return true })
+	depths := make([]int, c.Len())
+	for i := 1; i < c.Len(); i++ {
+		depths[i] = depths[c.Parent(i)] + 1
+		maxDepth = max(maxDepth, depths[i])
+	}
 	if maxDepth != depth+1 {
 		t.Errorf("depth %d", maxDepth)
 	}
@@ -460,8 +479,7 @@ func TestDeepChain(t *testing.T) {
 		ind := strings.Repeat(" ", 2*i)
 		fmt.Fprintf(&b, "%sdecision \"D%d\"\n%s \"stop\"\n%s \"go\"\n", ind, i, ind, ind)
 	}
-	m = load(t, b.String())
-	if got := tree.Count(m.Root); got != 2*levels+1 {
+	if got := loadC(t, b.String()).Len(); got != 2*levels+1 {
 		t.Errorf("indented chain: %d nodes", got)
 	}
 }
@@ -477,7 +495,7 @@ func TestLargeModel(t *testing.T) {
 	if ds.HasErrors() {
 		t.Fatal(ds)
 	}
-	if got := tree.Count(m.Root); got != 111_111 {
+	if got := m.Len(); got != 111_111 {
 		t.Errorf("%d nodes", got)
 	}
 }
@@ -534,7 +552,7 @@ func TestLineEndings(t *testing.T) {
 		"# sourcing\r" + strings.ReplaceAll(unix, "\n", "\r\n"),
 		"# sourcing\r\ntitle \"T\"\rdecision \"D\"\n  \"a\"  gain 1\r  \"b\"",
 	} {
-		m, ds := Load([]byte(src), Options{})
+		m, ds := Parse([]byte(src), Options{})
 		if ds.HasErrors() || m.Title != want.Title || tree.Count(m.Root) != tree.Count(want.Root) ||
 			m.Root.Branches[1].Pos != want.Root.Branches[1].Pos {
 			t.Errorf("%q: read differently: %v", src, ds)
@@ -553,7 +571,7 @@ func TestLineEndings(t *testing.T) {
 
 func TestEmpty(t *testing.T) {
 	for _, src := range []string{"", "\n\n", "# only a comment\n   # indented comment\n", "# only\r# comments\r\r"} {
-		m, ds := Load([]byte(src), Options{})
+		m, ds := Parse([]byte(src), Options{})
 		if len(ds) != 1 || !strings.HasPrefix(ds[0].Summary, "the model is empty") || m == nil || m.Root != nil {
 			t.Errorf("%q: %v", src, ds)
 		}

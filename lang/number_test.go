@@ -4,8 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"testing"
-
-	"github.com/forkcast/forkcast/tree"
 )
 
 // TestParseNumber checks the number reader the command line shares with
@@ -57,14 +55,11 @@ func TestParseNumber(t *testing.T) {
 // its own as in a model.
 func TestParseNumberAgreesWithModels(t *testing.T) {
 	for _, text := range []string{"25%", "1_000", "0.125", "3", "99.99%"} {
-		m := parse(t, fmt.Sprintf("let x = %s\ndecision \"D\"\n  \"a\"  gain x\n", text))
-		inModel, err := tree.Eval(m.Params[0].Expr, nil)
-		if err != nil {
-			t.Fatal(err)
-		}
+		c := loadC(t, fmt.Sprintf("let x = %s\ndecision \"D\"\n  \"a\"  gain x\n", text))
+		inModel, _ := c.InputNamed("x")
 		v, err := ParseNumber(text)
-		if err != nil || !v.Equal(inModel.D) {
-			t.Errorf("%s: ParseNumber %v (%v), model %v", text, v, err, inModel.D)
+		if err != nil || !v.Equal(inModel.Value) {
+			t.Errorf("%s: ParseNumber %v (%v), model %v", text, v, err, inModel.Value)
 		}
 	}
 }

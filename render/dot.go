@@ -240,7 +240,7 @@ func (d *drawer) takes(s *eval.Solved, j int) bool {
 // optionValue is the value of the option at a decision that leads to s:
 // the cash on the branch into s plus the value of s.
 func (d *drawer) optionValue(s *eval.Solved) decimal.Decimal {
-	return s.Parent().Node.Branches[s.Via()].C.Add(s.Value())
+	return s.Parent().BranchValue(s.Via())
 }
 
 // tiesChosen reports whether s, under a decision, is reached by an option
@@ -496,10 +496,10 @@ func (d *drawer) branchLabel(s *eval.Solved) labelSpec {
 	}
 	var figs []string
 	if p.Node.Kind == tree.KindChance {
-		figs = append(figs, Percent(b.P, 2))
+		figs = append(figs, Percent(p.Prob(s.Via()), 2))
 	}
-	if !b.C.IsZero() {
-		figs = append(figs, d.cash(b.C))
+	if c := p.Cash(s.Via()); !c.IsZero() {
+		figs = append(figs, d.cash(c))
 	}
 	var below []string
 	if len(figs) > 0 {
@@ -600,8 +600,8 @@ func (d *drawer) innerLabel(s *eval.Solved, side float64, on bool, ink string) (
 	for _, l := range wrapText(d.nodeTitle(s.Node), d.wrap) {
 		above = append(above, textLine{l, ink, false})
 	}
-	if !s.Node.TestCost.IsZero() {
-		above = append(above, textLine{"test: " + d.cash(s.Node.TestCost), ink, false})
+	if tc := s.TestCost(); !tc.IsZero() {
+		above = append(above, textLine{"test: " + d.cash(tc), ink, false})
 	}
 	col := colInkSoft
 	if on {

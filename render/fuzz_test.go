@@ -10,6 +10,7 @@ import (
 	"time"
 	"unicode/utf8"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render/internal/fixtures"
 	"github.com/forkcast/forkcast/tree"
@@ -188,7 +189,7 @@ func fuzzSeeds() [][]byte {
 func TestFuzzSeedsResolve(t *testing.T) {
 	for _, data := range append(fuzzSeeds(), nil, []byte{1, 2, 3}, bytes.Repeat([]byte{0xff}, 500)) {
 		m := fixtures.FromBytes(data)
-		if ds := m.Resolve(nil); ds.HasErrors() {
+		if _, ds := compiled.Compile(m); ds.HasErrors() {
 			t.Errorf("%q: %v", data, ds)
 		}
 	}
@@ -207,8 +208,9 @@ func FuzzDOT(f *testing.F) {
 	}
 	f.Fuzz(func(t *testing.T, data []byte, ob byte) {
 		m := fixtures.FromBytes(data)
-		if ds := m.Resolve(nil); ds.HasErrors() {
-			t.Skipf("does not resolve: %v", ds)
+		c, ds := compiled.Compile(m)
+		if ds.HasErrors() {
+			t.Skipf("does not compile: %v", ds)
 		}
 		var sol *eval.Solution
 		var pic, again *Picture
@@ -216,7 +218,7 @@ func FuzzDOT(f *testing.F) {
 		opts := fuzzOptions(ob)
 		fixtures.Within(t, 5*time.Second, 256<<20, func() {
 			var serr error
-			if sol, serr = eval.Solve(m); serr != nil {
+			if sol, serr = eval.Solve(c); serr != nil {
 				return
 			}
 			pic, err = Layout(sol, opts)

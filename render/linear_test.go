@@ -52,7 +52,7 @@ func TestWrapTextLinear(t *testing.T) {
 func tiedOptions(n int) *tree.Model {
 	root := tree.Decision("Many tied options")
 	for i := range n {
-		root.Branches = append(root.Branches, tree.Choice(fmt.Sprintf("Option %d", i+1), decimal.NewFromInt(5), nil))
+		root.Branches = append(root.Branches, tree.Choice(fmt.Sprintf("Option %d", i+1), tree.Gain(tree.Num(decimal.NewFromInt(5))), nil))
 	}
 	return &tree.Model{Title: "Ties", Currency: "EUR", Root: root}
 }

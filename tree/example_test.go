@@ -3,6 +3,7 @@ package tree_test
 import (
 	"fmt"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 )
 
@@ -13,7 +14,7 @@ func ExampleReadJSON() {
 	  {"label": "Wet", "probability": 0.2, "cash": -40}]}}`)
 	m, ds := tree.ReadJSON(src, 0)
 	if !ds.HasErrors() {
-		ds = m.Resolve(nil)
+		_, ds = compiled.Compile(m) // checks the model
 	}
 	for _, d := range ds {
 		fmt.Println(d.Error())

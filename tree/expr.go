@@ -1,18 +1,10 @@
 package tree
 
 import (
-	"fmt"
 	"strings"
 
 	"github.com/shopspring/decimal"
 )
-
-// DivisionScale is the number of decimal places a division is carried to.
-// Rollback itself only adds and multiplies, so its results are exact; a
-// division (a fraction literal, Bayes' rule, a breakeven) is the one place
-// a figure is rounded, at this scale, and results that went through one are
-// marked inexact.
-const DivisionScale = 50
 
 // Expr is a numeric expression as written in a model: a number, a name of a
 // parameter, or an operation on those. Expressions are kept in the model so
@@ -51,8 +43,7 @@ type Binary struct {
 	X, Y Expr
 }
 
-// Call is a function applied to arguments. No functions are defined yet;
-// the form is here so the language can grow without a new node type.
+// Call is a function applied to arguments.
 type Call struct {
 	At   Pos
 	Func string
@@ -82,90 +73,6 @@ func (e *Call) String() string {
 		args[i] = a.String()
 	}
 	return e.Func + "(" + strings.Join(args, ", ") + ")"
-}
-
-// Num wraps a decimal as an expression (for models built in Go).
-func Num(d decimal.Decimal) Expr { return &Number{Value: d} }
-
-// Value is a resolved number and whether it is exact (no division rounded
-// it on the way).
-type Value struct {
-	D     decimal.Decimal
-	Exact bool
-}
-
-// EvalError is an expression that cannot be evaluated.
-type EvalError struct {
-	Pos  Pos
-	Msg  string
-	Hint string
-	Name string // the unknown name, when that is the problem
-}
-
-func (e *EvalError) Error() string { return e.Pos.String() + ": " + e.Msg }
-
-// Eval evaluates e, looking names up with lookup.
-func Eval(e Expr, lookup func(name string) (Value, bool)) (Value, error) {
-	switch e := e.(type) {
-	case *Number:
-		return Value{e.Value, true}, nil
-	case *Name:
-		v, ok := lookup(e.Name)
-		if !ok {
-			return Value{}, &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown name %q", e.Name), Name: e.Name,
-				Hint: "define it with `let " + e.Name + " = ...` above this line"}
-		}
-		return v, nil
-	case *Unary:
-		x, err := Eval(e.X, lookup)
-		if err != nil {
-			return x, err
-		}
-		return Value{x.D.Neg(), x.Exact}, nil
-	case *Binary:
-		x, err := Eval(e.X, lookup)
-		if err != nil {
-			return x, err
-		}
-		y, err := Eval(e.Y, lookup)
-		if err != nil {
-			return y, err
-		}
-		exact := x.Exact && y.Exact
-		switch e.Op {
-		case '+':
-			return Value{x.D.Add(y.D), exact}, nil
-		case '-':
-			return Value{x.D.Sub(y.D), exact}, nil
-		case '*':
-			return Value{x.D.Mul(y.D), exact}, nil
-		case '/':
-			if y.D.IsZero() {
-				hint := "check the figures that make up the divisor"
-				if _, literal := e.Y.(*Number); !literal {
-					hint = "the divisor " + e.Y.String() + " is 0"
-				}
-				return Value{}, &EvalError{Pos: e.Y.Pos(), Msg: "division by zero", Hint: hint}
-			}
-			return Div(x.D, y.D, exact), nil
-		}
-		return Value{}, &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown operator %q", e.Op)}
-	case *Call:
-		return Value{}, &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown function %q", e.Func)}
-	case nil:
-		return Value{decimal.Zero, true}, nil
-	}
-	return Value{}, &EvalError{Msg: fmt.Sprintf("unknown expression %T", e)}
-}
-
-// Div divides x by y at DivisionScale, reporting whether the result is
-// exact. y must not be zero.
-func Div(x, y decimal.Decimal, exact bool) Value {
-	q := x.DivRound(y, DivisionScale)
-	if exact && !q.Mul(y).Equal(x) {
-		exact = false
-	}
-	return Value{q, exact}
 }
 
 // Names calls f for every name referred to in e.

@@ -40,6 +40,7 @@ type jv struct {
 }
 
 type jsonReader struct {
+	obj   Objective
 	src   []byte
 	dec   *json.Decoder
 	cur   cursor // where posAt last stopped
@@ -170,7 +171,7 @@ func (r *jsonReader) fields(v *jv, what string, allowed ...string) bool {
 			ok = ok || a == k
 		}
 		if !ok {
-			r.ds.Add(v.vals[i].pos, "the keys allowed here are "+quoteList(allowed), "unknown key %q in %s", k, what)
+			r.ds.Add(v.vals[i].pos, "the keys allowed here are "+QuoteList(allowed), "unknown key %q in %s", k, what)
 		}
 	}
 	return true
@@ -222,8 +223,8 @@ func (r *jsonReader) array(v *jv, key, what string) []*jv {
 }
 
 // ReadJSON reads a model in the JSON interchange format. limit caps the
-// number of nodes (0: DefaultNodeLimit). The model is not resolved; call
-// Resolve next. Diagnostics carry line and column in the JSON text.
+// number of nodes (0: DefaultNodeLimit). The model is read as written; it
+// is checked when it is compiled. Diagnostics carry line and column in the JSON text.
 func ReadJSON(src []byte, limit int) (*Model, Diagnostics) {
 	if limit <= 0 {
 		limit = DefaultNodeLimit
@@ -272,6 +273,7 @@ func ReadJSON(src []byte, limit int) (*Model, Diagnostics) {
 		}
 		m.Objective = obj
 	}
+	r.obj = m.Objective
 	for _, uv := range r.array(top, "uncertainties", "the model") {
 		if !r.fields(uv, "an uncertainty", "name", "label", "states") {
 			continue
@@ -366,7 +368,13 @@ func (r *jsonReader) node(root *jv) *Node {
 		// "value" on an inner node and "best" are what `solve --json`
 		// writes: accepted so solved output reads back, and recomputed.
 		if n.Kind == KindEnd {
-			n.Payoff = r.num(v, "value", "an end node")
+			// "value" is in the objective's terms; the model holds net value.
+			if x := r.num(v, "value", "an end node"); x != nil {
+				n.Payoff = x
+				if r.obj == Min {
+					n.Payoff = &Unary{At: x.Pos(), Op: '-', X: x}
+				}
+			}
 		} else if vv := v.get("value"); vv != nil {
 			r.num(v, "value", "a node")
 		}
@@ -376,7 +384,16 @@ func (r *jsonReader) node(root *jv) *Node {
 				continue
 			}
 			b := &Branch{Pos: bv.pos, Label: r.str(bv, "label", "a branch", true),
-				Prob: r.num(bv, "probability", "a branch"), Cash: r.num(bv, "cash", "a branch")}
+				Prob: r.num(bv, "probability", "a branch")}
+			// "cash" is in the objective's terms: a payoff under max, a
+			// cost under min.
+			if c := r.num(bv, "cash", "a branch"); c != nil {
+				if r.obj == Min {
+					b.Cost = c
+				} else {
+					b.Gain = c
+				}
+			}
 			n.Branches = append(n.Branches, b)
 			if nv := bv.get("node"); nv != nil {
 				stack = append(stack, item{nv, &b.Node})
@@ -389,28 +406,61 @@ func (r *jsonReader) node(root *jv) *Node {
 	return out
 }
 
+// Figures supplies the numbers WriteJSON writes: the figures of a checked
+// (compiled) model. Nodes are numbered as the compiled form numbers them:
+// the root is 0 and Child gives the node under a branch.
+type Figures interface {
+	// Child is the number of the node under branch j of node i.
+	Child(i, j int) int
+	// Cash is the net value of the branch into node i (gain − cost); Prob
+	// its probability (chance branches, revised by Bayes' rule where a test
+	// was read).
+	Cash(i int) decimal.Decimal
+	Prob(i int) decimal.Decimal
+	// Payoff is an end node's own value (net).
+	Payoff(i int) decimal.Decimal
+	// Prior is the prior of state s of uncertainty u; Likelihood is
+	// P(reading r | state s) of test t; TestCost the cost of test t, a
+	// positive amount.
+	Prior(u, s int) decimal.Decimal
+	Likelihood(t, r, s int) decimal.Decimal
+	TestCost(t int) decimal.Decimal
+	// Exact is false when a figure was rounded (a division).
+	Exact() bool
+}
+
+// Solved adds what `solve --json` writes: every node's value and every
+// decision's optimal branches.
+type Solved interface {
+	Figures
+	// Value is the expected value from node i on, in the objective's
+	// terms.
+	Value(i int) decimal.Decimal
+	// Best lists the optimal branches of decision i, in model order.
+	Best(i int) []int
+}
+
 // JSONOptions control WriteJSON.
 type JSONOptions struct {
-	// Value, when set, annotates every node with its solved value and the
-	// top level with the root's.
-	Value func(*Node) decimal.Decimal
-	// Best, when set, gives a decision node's optimal branch labels.
-	Best func(*Node) []string
-	// Probabilities writes the resolved probability on every chance branch,
+	// Solved, when set, annotates every node with its solved value, every
+	// decision with its best branches and the top level with the root's
+	// value.
+	Solved Solved
+	// Probabilities writes the probability of every chance branch,
 	// including those under uncertainty and test nodes (revised by Bayes'
-	// rule where a test was read). Resolve accepts such a probability when
-	// it equals the one the declarations give there, so the output reads
-	// back.
+	// rule where a test was read). The reader accepts such a probability
+	// when it equals the one the declarations give there, so the output
+	// reads back.
 	Probabilities bool
 }
 
-// WriteJSON writes a resolved model in the interchange format, numbers
-// exact. With opts.Value set it writes the solved tree as `solve --json`
-// does: "value" on every node (an exact decimal string) and "best" on
-// every decision.
-func WriteJSON(w io.Writer, m *Model, opts JSONOptions) error {
+// WriteJSON writes a model in the interchange format with the figures fs
+// gives (fs may be opts.Solved), numbers exact. With opts.Solved set it
+// writes the solved tree as `solve --json` does: "value" on every node (an
+// exact decimal string) and "best" on every decision.
+func WriteJSON(w io.Writer, m *Model, fs Figures, opts JSONOptions) error {
 	bw := bufio.NewWriter(w)
-	jw := &jsonWriter{w: bw, opts: opts, m: m}
+	jw := &jsonWriter{w: bw, opts: opts, m: m, fs: fs}
 	jw.model()
 	if err := bw.Flush(); err != nil {
 		return err
@@ -421,6 +471,7 @@ func WriteJSON(w io.Writer, m *Model, opts JSONOptions) error {
 type jsonWriter struct {
 	w      *bufio.Writer
 	opts   JSONOptions
+	fs     Figures
 	m      *Model
 	err    error
 	indent int
@@ -516,14 +567,15 @@ func (j *jsonWriter) quoted(s string) string {
 
 func (j *jsonWriter) model() {
 	m := j.m
+	fs := j.fs
 	j.object(func(first *bool) {
 		j.str(first, "title", m.Title)
 		j.str(first, "currency", m.Currency)
 		j.str(first, "objective", m.Objective.String())
-		if j.opts.Value != nil && m.Root != nil {
-			j.str(first, "value", j.opts.Value(m.Root).String())
-			if !m.Exact() {
-				// A division was rounded: say so (see Model.Exact).
+		if j.opts.Solved != nil && m.Root != nil {
+			j.str(first, "value", j.opts.Solved.Value(0).String())
+			if !fs.Exact() {
+				// A division was rounded: say so.
 				j.raw(first, "exact", "false")
 			}
 		}
@@ -536,7 +588,7 @@ func (j *jsonWriter) model() {
 					j.str(f, "label", u.Label)
 					j.key(f, "states")
 					j.array(len(u.States), func(k int) {
-						j.inline("label", j.quoted(u.States[k].Label), "probability", u.States[k].P.String())
+						j.inline("label", j.quoted(u.States[k].Label), "probability", fs.Prior(i, k).String())
 					})
 				})
 			})
@@ -550,20 +602,18 @@ func (j *jsonWriter) model() {
 					j.str(f, "name", t.Name)
 					j.str(f, "label", t.Label)
 					j.str(f, "on", t.On)
-					j.raw(f, "cost", t.CostValue.String())
+					j.raw(f, "cost", fs.TestCost(i).String())
 					j.key(f, "readings")
 					j.array(len(t.Readings), func(k int) {
 						rd := t.Readings[k]
 						j.w.WriteString(`{"label": ` + j.quoted(rd.Label) + `, "likelihoods": [`)
-						for si, l := range rd.L {
-							if si > 0 {
-								j.w.WriteString(", ")
+						if u != nil {
+							for si, st := range u.States {
+								if si > 0 {
+									j.w.WriteString(", ")
+								}
+								j.inline("state", j.quoted(st.Label), "probability", fs.Likelihood(i, k, si).String())
 							}
-							state := ""
-							if u != nil && si < len(u.States) {
-								state = u.States[si].Label
-							}
-							j.inline("state", j.quoted(state), "probability", l.String())
 						}
 						j.w.WriteString(`]}`)
 					})
@@ -572,28 +622,32 @@ func (j *jsonWriter) model() {
 		}
 		if m.Root != nil {
 			j.key(first, "root")
-			j.node(m.Root)
+			j.node(m.Root, 0)
 		}
 	})
 	j.w.WriteByte('\n')
 }
 
-func (j *jsonWriter) node(n *Node) {
+func (j *jsonWriter) node(n *Node, i int) {
+	fs, obj := j.fs, j.m.Objective
+	sv := j.opts.Solved
 	j.object(func(first *bool) {
 		j.str(first, "type", n.Kind.String())
 		j.str(first, "label", n.Label)
 		j.str(first, "uncertainty", n.Uncertainty)
 		j.str(first, "test", n.Test)
-		if j.opts.Value != nil {
-			j.str(first, "value", j.opts.Value(n).String())
-		} else if n.Kind == KindEnd && !n.Value.IsZero() {
-			j.raw(first, "value", n.Value.String())
+		if sv != nil {
+			j.str(first, "value", sv.Value(i).String())
+		} else if n.Kind == KindEnd {
+			if v := fs.Payoff(i); !v.IsZero() {
+				j.raw(first, "value", obj.Figure(v).String())
+			}
 		}
-		if j.opts.Best != nil && n.Kind == KindDecision {
-			best := j.opts.Best(n)
+		if sv != nil && n.Kind == KindDecision {
+			best := sv.Best(i)
 			q := make([]string, len(best))
-			for i, l := range best {
-				q[i] = j.quoted(l)
+			for k, b := range best {
+				q[k] = j.quoted(n.Branches[b].Label)
 			}
 			j.raw(first, "best", "["+strings.Join(q, ", ")+"]")
 		}
@@ -602,27 +656,34 @@ func (j *jsonWriter) node(n *Node) {
 		}
 		named := n.Uncertainty != "" || n.Test != ""
 		j.key(first, "branches")
-		j.array(len(n.Branches), func(i int) {
-			b := n.Branches[i]
+		j.array(len(n.Branches), func(k int) {
+			b := n.Branches[k]
+			c := fs.Child(i, k)
 			j.object(func(f *bool) {
 				j.str(f, "label", b.Label)
 				if n.Kind == KindChance && (!named || j.opts.Probabilities) {
-					j.raw(f, "probability", b.P.String())
+					j.raw(f, "probability", fs.Prob(c).String())
 				}
-				if !b.C.IsZero() {
-					j.raw(f, "cash", b.C.String())
+				if cash := fs.Cash(c); !cash.IsZero() {
+					j.raw(f, "cash", obj.Figure(cash).String())
 				}
-				if b.Node != nil && (j.opts.Value != nil || !isPlainEnd(b.Node)) {
+				switch {
+				case b.Node != nil && (sv != nil || !j.plainEnd(b.Node, c)):
 					j.key(f, "node")
-					j.node(b.Node)
+					j.node(b.Node, c)
+				case b.Node == nil && sv != nil:
+					// Solved output carries a value on every node, the end
+					// a branch with nothing under it leads to included.
+					j.key(f, "node")
+					j.node(&Node{Kind: KindEnd}, c)
 				}
 			})
 		})
 	})
 }
 
-// isPlainEnd is an end node with nothing to say: the writer leaves it out,
+// plainEnd is an end node with nothing to say: the writer leaves it out,
 // as the reader puts it back.
-func isPlainEnd(n *Node) bool {
-	return n.Kind == KindEnd && n.Label == "" && n.Value.IsZero()
+func (j *jsonWriter) plainEnd(n *Node, i int) bool {
+	return n.Kind == KindEnd && n.Label == "" && j.fs.Payoff(i).IsZero()
 }

@@ -5,6 +5,7 @@ import (
 	"strings"
 	"testing"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
@@ -23,16 +24,17 @@ const oilJSON = `{
     {"label": "Sell", "cash": 90}]}
 }`
 
-func load(t *testing.T, src string) *tree.Model {
+func load(t *testing.T, src string) *compiled.Model {
 	t.Helper()
 	m, ds := tree.ReadJSON([]byte(src), 0)
 	if ds.HasErrors() {
 		t.Fatalf("read: %v", ds)
 	}
-	if ds := m.Resolve(nil); ds.HasErrors() {
-		t.Fatalf("resolve: %v", ds)
+	c, ds := compiled.Compile(m)
+	if ds.HasErrors() {
+		t.Fatalf("compile: %v", ds)
 	}
-	return m
+	return c
 }
 
 func TestReadJSONOilDrilling(t *testing.T) {
@@ -99,7 +101,7 @@ func TestReadJSONResolveErrorsHavePositions(t *testing.T) {
 	if ds.HasErrors() {
 		t.Fatal(ds)
 	}
-	ds = m.Resolve(nil)
+	_, ds = compiled.Compile(m)
 	if len(ds) != 1 || ds[0].Error() != `1:10: probabilities under "c" sum to 0.9, not 1` {
 		t.Fatalf("got %v", ds)
 	}
@@ -115,12 +117,12 @@ func TestReadJSONNodeLimit(t *testing.T) {
 func TestWriteJSONRoundTrip(t *testing.T) {
 	m := load(t, oilJSON)
 	var buf bytes.Buffer
-	if err := tree.WriteJSON(&buf, m, tree.JSONOptions{}); err != nil {
+	if err := tree.WriteJSON(&buf, m.Source(), m, tree.JSONOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	m2 := load(t, buf.String())
 	var buf2 bytes.Buffer
-	if err := tree.WriteJSON(&buf2, m2, tree.JSONOptions{}); err != nil {
+	if err := tree.WriteJSON(&buf2, m2.Source(), m2, tree.JSONOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	if buf.String() != buf2.String() {
@@ -150,11 +152,12 @@ func FuzzReadJSON(f *testing.F) {
 		if m == nil {
 			t.Fatal("no model and no error")
 		}
-		if rs := m.Resolve(nil); rs.HasErrors() {
+		c, cs := compiled.Compile(m)
+		if cs.HasErrors() {
 			return
 		}
-		if _, err := eval.Solve(m); err != nil {
-			t.Fatalf("resolved model does not solve: %v", err)
+		if _, err := eval.Solve(c); err != nil {
+			t.Fatalf("compiled model does not solve: %v", err)
 		}
 	})
 }

@@ -2,12 +2,19 @@ package tree
 
 import (
 	"fmt"
+	"strings"
 
 	"github.com/shopspring/decimal"
 )
 
 // Objective says whether the model's figures are to be maximised (net value:
 // gains minus costs) or minimised (costs minus gains).
+//
+// Inside forkcast money is always held as net value, a gain positive and a
+// cost negative, and every rollback maximises it. The objective only says
+// how figures are shown and read: under Min a figure is a cost, the
+// negation of a net value. Figure and Net are the one place that rule is
+// written.
 type Objective uint8
 
 const (
@@ -35,13 +42,18 @@ func ParseObjective(s string) (Objective, bool) {
 	return Max, false
 }
 
-// Better reports whether a is strictly better than b under the objective.
-func (o Objective) Better(a, b decimal.Decimal) bool {
+// Figure turns a net value into the objective's terms: the value itself
+// under Max, the cost it stands for (its negation) under Min.
+func (o Objective) Figure(net decimal.Decimal) decimal.Decimal {
 	if o == Min {
-		return a.LessThan(b)
+		return net.Neg()
 	}
-	return a.GreaterThan(b)
+	return net
 }
+
+// Net turns a figure in the objective's terms (a payoff under Max, a cost
+// under Min) into net value.
+func (o Objective) Net(figure decimal.Decimal) decimal.Decimal { return o.Figure(figure) }
 
 // Kind is the kind of a node.
 type Kind uint8
@@ -79,27 +91,10 @@ type Model struct {
 	// Tests are imperfect tests on an uncertainty.
 	Tests []*Test
 	Root  *Node
-
-	size    int  // nodes counted by the last Resolve
-	inexact bool // the last Resolve rounded a division
 }
 
-// Exact reports whether every figure the last Resolve produced is exact.
-// It is false when a division had to be rounded at DivisionScale places: a
-// fraction that is no finite decimal (1/3), or a posterior probability from
-// Bayes' rule. Rollback only adds and multiplies, so its results are then
-// exact consequences of figures that are themselves correct to DivisionScale
-// decimal places.
-func (m *Model) Exact() bool { return !m.inexact }
-
-// Size is the number of nodes in the tree, as counted by the last Resolve
-// (or counted now if the model was never resolved).
-func (m *Model) Size() int {
-	if m.size > 0 {
-		return m.size
-	}
-	return Count(m.Root)
-}
+// Size is the number of nodes in the tree.
+func (m *Model) Size() int { return Count(m.Root) }
 
 // Param is a named input: `let name = expr in low .. high`.
 type Param struct {
@@ -107,8 +102,6 @@ type Param struct {
 	Expr      Expr
 	Low, High Expr // the range analyses sweep; both nil when none is given
 	Pos       Pos
-	// Value, LowValue and HighValue are set by Resolve.
-	Value, LowValue, HighValue decimal.Decimal
 }
 
 // HasRange reports whether the parameter was given a range.
@@ -146,7 +139,6 @@ type State struct {
 	Label string
 	Prob  Expr // nil: the rest
 	Pos   Pos
-	P     decimal.Decimal // set by Resolve
 }
 
 // Test is an imperfect test on an uncertainty: running it costs Cost and
@@ -158,8 +150,6 @@ type Test struct {
 	Cost     Expr   // in money, positive; nil: free
 	Readings []*Reading
 	Pos      Pos
-	// CostValue is set by Resolve.
-	CostValue decimal.Decimal
 }
 
 // Display is the label people see.
@@ -178,9 +168,6 @@ type Reading struct {
 	Given []*Likelihood
 	Rest  bool
 	Pos   Pos
-	// L[i] is P(reading | state i), set by Resolve, aligned with the
-	// uncertainty's states.
-	L []decimal.Decimal
 }
 
 // Likelihood is P(reading | State).
@@ -203,13 +190,10 @@ type Node struct {
 	// test costs the test's cost, charged at this node.
 	Test     string
 	Branches []*Branch
-	// Payoff is an end node's terminal value; nil is 0.
+	// Payoff is an end node's terminal value as net value (positive is
+	// good, whatever the objective); nil is 0.
 	Payoff Expr
 	Pos    Pos
-	// Value is an end node's resolved payoff; TestCost a test node's resolved
-	// cost in the objective's terms (negative under Max). Set by Resolve.
-	Value    decimal.Decimal
-	TestCost decimal.Decimal
 }
 
 // Branch leads from a node to the next one.
@@ -219,13 +203,13 @@ type Branch struct {
 	// node whose probabilities come from an uncertainty or a test.
 	Prob Expr
 	Rest bool
-	// Cash is the money on this branch in the objective's terms (a payoff
-	// under Max, a cost under Min); nil is 0.
-	Cash Expr
-	Node *Node // never nil after Resolve: a path ends at an End node
+	// Gain and Cost are the money on this branch as written, each nil when
+	// absent. Its net value is Gain − Cost whatever the objective.
+	Gain, Cost Expr
+	// Node is the node the branch leads to; nil ends the path (an end node
+	// of value 0).
+	Node *Node
 	Pos  Pos
-	// P and C are the resolved probability and cash, set by Resolve.
-	P, C decimal.Decimal
 }
 
 // Display is what a node is called in messages.
@@ -366,12 +350,51 @@ func (m *Model) Clone() *Model {
 	return &c
 }
 
-// Decision makes a decision node (builder API).
+// Builders. A program that makes a model in Go uses these instead of
+// filling in the structs by hand; each figure is an expression, made with
+// Num for a number or Ref for an input (a `let`).
+
+// Num wraps a decimal as an expression.
+func Num(d decimal.Decimal) Expr { return &Number{Value: d} }
+
+// Ref refers to the input (Param) with that name.
+func Ref(name string) Expr { return &Name{Name: name} }
+
+// Cash is the money on a branch: a gain, a cost, both, or none. Net value
+// is the gain minus the cost, whatever the objective.
+type Cash struct{ Gain, Cost Expr }
+
+// NoCash is a branch with no money on it.
+var NoCash = Cash{}
+
+// Gain is money received on a branch.
+func Gain(x Expr) Cash { return Cash{Gain: x} }
+
+// Cost is money paid on a branch.
+func Cost(x Expr) Cash { return Cash{Cost: x} }
+
+// And puts two amounts on one branch: Gain(a).And(Cost(b)). An amount
+// given twice is added.
+func (c Cash) And(d Cash) Cash {
+	return Cash{Gain: plus(c.Gain, d.Gain), Cost: plus(c.Cost, d.Cost)}
+}
+
+func plus(x, y Expr) Expr {
+	switch {
+	case x == nil:
+		return y
+	case y == nil:
+		return x
+	}
+	return &Binary{Op: '+', X: x, Y: y}
+}
+
+// Decision makes a decision node.
 func Decision(label string, branches ...*Branch) *Node {
 	return &Node{Kind: KindDecision, Label: label, Branches: branches}
 }
 
-// Chance makes a chance node with explicit probabilities (builder API).
+// Chance makes a chance node with explicit probabilities.
 func Chance(label string, branches ...*Branch) *Node {
 	return &Node{Kind: KindChance, Label: label, Branches: branches}
 }
@@ -388,35 +411,91 @@ func RunTest(test string, branches ...*Branch) *Node {
 	return &Node{Kind: KindChance, Test: test, Branches: branches}
 }
 
-// Terminal makes an end node with a terminal payoff.
-func Terminal(value decimal.Decimal) *Node {
-	return &Node{Kind: KindEnd, Payoff: Num(value)}
+// Terminal makes an end node with a terminal payoff (net value).
+func Terminal(payoff Expr) *Node {
+	return &Node{Kind: KindEnd, Payoff: payoff}
 }
 
-// Choice makes a decision branch with cash (in the objective's terms) leading
-// to next (nil ends the path).
-func Choice(label string, cash decimal.Decimal, next *Node) *Branch {
-	return &Branch{Label: label, Cash: Num(cash), Node: next}
+// Choice makes a decision branch with its cash, leading to next (nil ends
+// the path).
+func Choice(label string, cash Cash, next *Node) *Branch {
+	return &Branch{Label: label, Gain: cash.Gain, Cost: cash.Cost, Node: next}
 }
 
 // Outcome makes a chance branch with probability p.
-func Outcome(label string, p, cash decimal.Decimal, next *Node) *Branch {
-	return &Branch{Label: label, Prob: Num(p), Cash: Num(cash), Node: next}
+func Outcome(label string, p Expr, cash Cash, next *Node) *Branch {
+	return &Branch{Label: label, Prob: p, Gain: cash.Gain, Cost: cash.Cost, Node: next}
 }
 
 // RestOutcome makes a chance branch that takes the probability the others
 // leave.
-func RestOutcome(label string, cash decimal.Decimal, next *Node) *Branch {
-	return &Branch{Label: label, Rest: true, Cash: Num(cash), Node: next}
+func RestOutcome(label string, cash Cash, next *Node) *Branch {
+	return &Branch{Label: label, Rest: true, Gain: cash.Gain, Cost: cash.Cost, Node: next}
 }
 
 // Given makes a branch under a ChanceOn or RunTest node: its probability
-// comes from the uncertainty or test.
-func Given(label string, cash decimal.Decimal, next *Node) *Branch {
-	return &Branch{Label: label, Cash: Num(cash), Node: next}
+// comes from the uncertainty or the test.
+func Given(label string, cash Cash, next *Node) *Branch {
+	return &Branch{Label: label, Gain: cash.Gain, Cost: cash.Cost, Node: next}
 }
+
+// Input makes an input (`let name = value`).
+func Input(name string, value Expr) *Param { return &Param{Name: name, Expr: value} }
+
+// Within gives the input the range that sweeps and breakeven searches use
+// (`in low .. high`), and returns it.
+func (p *Param) Within(low, high Expr) *Param {
+	p.Low, p.High = low, high
+	return p
+}
+
+// NewUncertainty makes a named uncertainty with its states.
+func NewUncertainty(name, label string, states ...*State) *Uncertainty {
+	return &Uncertainty{Name: name, Label: label, States: states}
+}
+
+// StateP makes a state of an uncertainty with its prior probability.
+func StateP(label string, p Expr) *State { return &State{Label: label, Prob: p} }
+
+// RestState makes the state that takes the probability the others leave.
+func RestState(label string) *State { return &State{Label: label} }
+
+// NewTest makes an imperfect test of an uncertainty, with its cost (nil:
+// free) and its readings.
+func NewTest(name, label, on string, cost Expr, readings ...*Reading) *Test {
+	return &Test{Name: name, Label: label, On: on, Cost: cost, Readings: readings}
+}
+
+// ReadingIf makes a reading of a test with its likelihoods, each
+// P(reading | state) from If.
+func ReadingIf(label string, given ...*Likelihood) *Reading {
+	return &Reading{Label: label, Given: given}
+}
+
+// RestReading makes the reading that takes, for each state, the likelihood
+// the others leave; given may name states where it has its own.
+func RestReading(label string, given ...*Likelihood) *Reading {
+	return &Reading{Label: label, Given: given, Rest: true}
+}
+
+// If is the likelihood P(reading | state) for a reading.
+func If(state string, p Expr) *Likelihood { return &Likelihood{State: state, Prob: p} }
 
 // String describes the node briefly (for debugging).
 func (n *Node) String() string {
 	return fmt.Sprintf("%s %q (%d branches)", n.Kind, n.Display(), len(n.Branches))
+}
+
+// DefaultNodeLimit is the largest tree a reader builds unless told
+// otherwise: a model that expands past it is refused with a clear error
+// rather than exhausting memory.
+const DefaultNodeLimit = 5_000_000
+
+// QuoteList writes labels for a message: "a", "b", "c".
+func QuoteList(xs []string) string {
+	q := make([]string, len(xs))
+	for i, x := range xs {
+		q[i] = fmt.Sprintf("%q", x)
+	}
+	return strings.Join(q, ", ")
 }

@@ -8,6 +8,7 @@ import (
 	"io"
 	"strings"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/lang"
 	"github.com/forkcast/forkcast/render"
@@ -49,7 +50,7 @@ func breakevenCommand() *cli.Command {
 			"policy reaches is watched; BRANCH/DECISION picks the one reached through a\n" +
 			"branch of that label, e.g. --at 'No survey/Drill or sell'.\n\n" +
 			"A switch is exact when the two options' values are equal there; otherwise it is\n" +
-			"found to " + fmt.Sprint(tree.DivisionScale) + " decimal places and marked approximate (≈).",
+			"found to " + fmt.Sprint(compiled.DivisionScale) + " decimal places and marked approximate (≈).",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "vary", Usage: "the input to vary: `NAME`, UNCERTAINTY:STATE or NODE/BRANCH"},
 			&cli.StringFlag{Name: "in", Usage: "search `LOW..HIGH` (default: the parameter's own range, or 0..1 for a probability)"},
@@ -78,7 +79,7 @@ func breakevenCommand() *cli.Command {
 				return err
 			}
 			l.printWarnings(c)
-			be, err := eval.FindBreakeven(l.Model, opts)
+			be, err := eval.FindBreakeven(c.Context, l.Compiled, opts)
 			var re *eval.RequestError
 			switch {
 			case errors.As(err, &re):
@@ -205,7 +206,7 @@ func printBreakeven(w io.Writer, m *tree.Model, be *eval.Breakeven) {
 	for _, sw := range be.Switches {
 		exact := "exact"
 		if !sw.Exact {
-			exact = fmt.Sprintf("approximate, to %d decimal places", tree.DivisionScale)
+			exact = fmt.Sprintf("approximate, to %d decimal places", compiled.DivisionScale)
 		}
 		fmt.Fprintf(w, "Switch at %s = %s (%s): %s below, %s above\n", name, f.show(sw.At, sw.Exact), exact,
 			quoted(be.Options[sw.Below]), quoted(be.Options[sw.Above]))

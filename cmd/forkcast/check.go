@@ -31,7 +31,7 @@ func checkCommand() *cli.Command {
 			if err != nil {
 				return err
 			}
-			sol, err := eval.Solve(l.Model)
+			sol, err := eval.Solve(l.Compiled)
 			if err != nil {
 				return modelErr("%v", err)
 			}

@@ -7,6 +7,7 @@ import (
 	"path/filepath"
 	"strings"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/examples"
 	"github.com/forkcast/forkcast/lang"
@@ -16,10 +17,11 @@ import (
 
 // loaded is a model read from the command line's FILE.
 type loaded struct {
-	Model *tree.Model
-	Name  string // as the user gave it, for messages
-	Src   []byte
-	Diags tree.Diagnostics // warnings (errors stop loading)
+	Model    *tree.Model     // as written
+	Compiled *compiled.Model // checked and compiled
+	Name     string          // as the user gave it, for messages
+	Src      []byte
+	Diags    tree.Diagnostics // warnings (errors stop loading)
 }
 
 // maxNodesFlag is shared by every command that reads a model.
@@ -87,16 +89,19 @@ func loadModel(c *cli.Context) (*loaded, error) {
 		return nil, err
 	}
 	limit := c.Int(maxNodesFlag.Name)
-	var m *tree.Model
+	var cm *compiled.Model
 	var ds tree.Diagnostics
 	if isJSON {
+		var m *tree.Model
 		m, ds = tree.ReadJSON(src, limit)
 		if !ds.HasErrors() {
-			ds = append(ds, m.Resolve(nil)...)
+			var cs tree.Diagnostics
+			cm, cs = compiled.Compile(m)
+			ds = append(ds, cs...)
 		}
 		ds = ds.Sort()
 	} else {
-		m, ds = lang.Load(src, lang.Options{NodeLimit: limit})
+		cm, ds = lang.Load(src, lang.Options{NodeLimit: limit})
 	}
 	shown := name
 	if name == "-" {
@@ -110,7 +115,7 @@ func loadModel(c *cli.Context) (*loaded, error) {
 		}
 		return nil, modelErr("%s: %d error%s; nothing was solved", shown, n, plural(n))
 	}
-	return &loaded{Model: m, Name: shown, Src: src, Diags: ds}, nil
+	return &loaded{Model: cm.Source(), Compiled: cm, Name: shown, Src: src, Diags: ds}, nil
 }
 
 // loadAndSolve is what every analysis command starts with: read FILE,
@@ -121,7 +126,7 @@ func loadAndSolve(c *cli.Context) (*loaded, *eval.Solution, error) {
 		return nil, nil, err
 	}
 	l.printWarnings(c)
-	sol, err := eval.Solve(l.Model)
+	sol, err := eval.Solve(l.Compiled)
 	if err != nil {
 		return nil, nil, modelErr("%v", err)
 	}

@@ -7,6 +7,7 @@ import (
 	"strconv"
 	"strings"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/tree"
@@ -53,26 +54,7 @@ func solveCommand() *cli.Command {
 }
 
 // writeSolvedJSON writes the annotated tree as DESIGN.md specifies.
-func writeSolvedJSON(w io.Writer, sol *eval.Solution) error {
-	byNode := make(map[*tree.Node]*eval.Solved, len(sol.Nodes()))
-	for i := range sol.Nodes() {
-		s := &sol.Nodes()[i]
-		byNode[s.Node] = s
-	}
-	return tree.WriteJSON(w, sol.Model, tree.JSONOptions{
-		Value: func(n *tree.Node) decimal.Decimal { return byNode[n].Value() },
-		Best: func(n *tree.Node) []string {
-			s := byNode[n]
-			best := s.Best()
-			labels := make([]string, len(best))
-			for i, b := range best {
-				labels[i] = n.Branches[b].Label
-			}
-			return labels
-		},
-		Probabilities: true,
-	})
-}
+func writeSolvedJSON(w io.Writer, sol *eval.Solution) error { return sol.WriteJSON(w) }
 
 // printer formats money and probabilities for one model.
 type printer struct {
@@ -117,9 +99,9 @@ func printSolution(w io.Writer, sol *eval.Solution, withTree bool) {
 		word = "expected cost: "
 	}
 	fmt.Fprintf(w, "%s  %s\n", word, p.money(sol.Value()))
-	if !m.Exact() {
-		fmt.Fprintf(w, "note:            a fraction or a Bayes posterior was rounded at %d decimal places;\n"+
-			"                 the figures are exact to that precision\n", tree.DivisionScale)
+	if !sol.Exact() {
+		fmt.Fprintf(w, "note:            a fraction was rounded at %d decimal places;\n"+
+			"                 the figures are exact to that precision\n", compiled.DivisionScale)
 	}
 	fmt.Fprintln(w)
 	fmt.Fprintln(w, "Recommended policy")
@@ -272,14 +254,15 @@ func printTree(p printer, sol *eval.Solution) {
 		var parts []string
 		parts = append(parts, mark+quoted(b.Label))
 		if parent.Node.Kind == tree.KindChance {
-			parts = append(parts, render.Percent(b.P, 2))
+			parts = append(parts, render.Percent(parent.Prob(s.Via()), 2))
 		}
-		if cs := p.cash(b.C); cs != "" {
+		cash := parent.Cash(s.Via())
+		if cs := p.cash(cash); cs != "" {
 			parts = append(parts, cs)
 		}
 		line := strings.Join(parts, "  ")
 		if s.Node.Kind == tree.KindEnd {
-			fmt.Fprintf(w, "%s%s  -> %s\n", prefix, line, p.money(s.Value().Add(b.C)))
+			fmt.Fprintf(w, "%s%s  -> %s\n", prefix, line, p.money(s.Value().Add(cash)))
 			continue
 		}
 		fmt.Fprintf(w, "%s%s\n", prefix, line)
@@ -306,7 +289,7 @@ func choiceNote(s *eval.Solved) string {
 	switch {
 	case s.Node.Kind == tree.KindDecision && s.Chosen() >= 0:
 		return "  take " + quoted(s.Node.Branches[s.Chosen()].Label)
-	case !s.Node.TestCost.IsZero():
+	case !s.TestCost().IsZero():
 		return "  (includes the test's cost)"
 	}
 	return ""

@@ -7,6 +7,7 @@ import (
 	"io"
 	"strings"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/tree"
@@ -50,7 +51,7 @@ func voiCommand() *cli.Command {
 			if err != nil {
 				return err
 			}
-			info, err := eval.ValueOfInformation(sol, eval.VOIOptions{MaxScenarios: c.Int("max-scenarios")})
+			info, err := eval.ValueOfInformation(c.Context, sol, eval.VOIOptions{MaxScenarios: c.Int("max-scenarios")})
 			if err != nil {
 				return modelErr("%v", err)
 			}
@@ -147,7 +148,7 @@ func printTestValue(w io.Writer, m *tree.Model, tv *eval.TestValue, words voiWor
 	if t.Label != "" {
 		title += "  " + quoted(t.Label)
 	}
-	fmt.Fprintf(w, "%s, on %s, costs %s\n", title, u.Name, money(t.CostValue))
+	fmt.Fprintf(w, "%s, on %s, costs %s\n", title, u.Name, money(tv.Cost))
 	pct := func(p decimal.Decimal) string { return render.Percent(p, 2) }
 	head := []string{"likelihood P(reading | state)", "prior"}
 	for _, rd := range t.Readings {
@@ -183,7 +184,7 @@ func printTestValue(w io.Writer, m *tree.Model, tv *eval.TestValue, words voiWor
 	}
 	textTable(w, "    ", 3, right, rows)
 	if !tb.Exact {
-		fmt.Fprintf(w, "    (posteriors shown rounded; computed to %d decimal places)\n", tree.DivisionScale)
+		fmt.Fprintf(w, "    (posteriors shown rounded; computed to %d decimal places)\n", compiled.DivisionScale)
 	}
 	for _, s := range tv.Sites {
 		d := s.Decision
@@ -200,7 +201,7 @@ func printTestValue(w io.Writer, m *tree.Model, tv *eval.TestValue, words voiWor
 		line(words.value+" deciding without the test", money(s.Without))
 		line(words.value+" with the test, before its cost", money(s.WithBeforeCost))
 		line("EVSI: what the test's information is worth", money(s.EVSI))
-		line("the test's cost", money(t.CostValue))
+		line("the test's cost", money(tv.Cost))
 		line("expected net "+words.gain+" of testing (EVSI − cost)", money(s.NetGain))
 		line("the most worth paying for the test", money(s.MostToPay))
 		line("EVPI of "+u.Name+" against deciding without the test", money(s.EVPI))
@@ -217,7 +218,7 @@ func printTestValue(w io.Writer, m *tree.Model, tv *eval.TestValue, words voiWor
 		case eval.Indifferent:
 			fmt.Fprintln(w, "  Recommendation: either way: the test is expected to pay exactly its cost.")
 		default:
-			fmt.Fprintf(w, "  Recommendation: decide without the test: its information is worth %s, less than its cost of %s.\n", money(s.MostToPay), money(t.CostValue))
+			fmt.Fprintf(w, "  Recommendation: decide without the test: its information is worth %s, less than its cost of %s.\n", money(s.MostToPay), money(tv.Cost))
 		}
 	}
 	for _, msg := range tv.Warnings {
@@ -316,7 +317,7 @@ func writeVOIJSON(w io.Writer, m *tree.Model, info *eval.Information) error {
 	}
 	for _, tv := range info.Tests {
 		tb := tv.Table
-		tj := testVOIJSON{Name: tv.Test.Name, Label: tv.Test.Label, On: tv.Test.On, Cost: tv.Test.CostValue.String(),
+		tj := testVOIJSON{Name: tv.Test.Name, Label: tv.Test.Label, On: tv.Test.On, Cost: tv.Cost.String(),
 			Exact: tb.Exact, Sites: []siteJSON{}, Warnings: append([]string{}, tv.Warnings...)}
 		for s, st := range tb.Uncertainty.States {
 			tj.States = append(tj.States, stateJSON{Label: st.Label, Prior: tb.Prior[s].String()})

@@ -10,34 +10,41 @@ import (
 	"fmt"
 	"os"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
 
-func d(s string) decimal.Decimal { return decimal.RequireFromString(s) }
+// n is a number as an expression.
+func n(s string) tree.Expr { return tree.Num(decimal.RequireFromString(s)) }
 
 func main() {
-	breakdown := func(repair string) *tree.Node {
+	breakdown := func(repair tree.Expr) *tree.Node {
 		return tree.Chance("Breakdown this year",
-			tree.Outcome("Breaks down", d("0.3"), d(repair).Neg(), nil),
-			tree.RestOutcome("Keeps running", decimal.Zero, nil))
+			tree.Outcome("Breaks down", tree.Ref("p_break"), tree.Cost(repair), nil),
+			tree.RestOutcome("Keeps running", tree.NoCash, nil))
 	}
 	m := &tree.Model{
 		Title:    "Press replacement",
 		Currency: "EUR",
+		Params: []*tree.Param{
+			tree.Input("p_break", n("0.3")).Within(n("0.1"), n("0.5")),
+			tree.Input("new_press", n("42000")),
+		},
 		Root: tree.Decision("Press",
-			tree.Choice("Replace now", d("-42000"), nil),
-			tree.Choice("Overhaul", d("-9000"), breakdown("30000")),
-			tree.Choice("Run as is", decimal.Zero, breakdown("70000")),
+			tree.Choice("Replace now", tree.Cost(tree.Ref("new_press")), nil),
+			tree.Choice("Overhaul", tree.Cost(n("9000")), breakdown(n("30000"))),
+			tree.Choice("Run as is", tree.NoCash, breakdown(n("70000"))),
 		),
 	}
-	if ds := m.Resolve(nil); ds.HasErrors() {
+	c, ds := compiled.Compile(m)
+	if ds.HasErrors() {
 		ds.Print(os.Stderr, "", nil)
 		os.Exit(1)
 	}
-	sol, err := eval.Solve(m)
+	sol, err := eval.Solve(c)
 	if err != nil {
 		fmt.Fprintln(os.Stderr, err)
 		os.Exit(1)
@@ -54,4 +61,16 @@ func main() {
 	margin, runnerUp, _ := root.Margin()
 	fmt.Printf("take %q, better by %s than %q\n", root.Node.Branches[root.Chosen()].Label,
 		render.Money(margin, m.Currency), root.Node.Branches[runnerUp].Label)
+
+	// The same compiled model, re-solved with a likelier breakdown: only the
+	// figures that depend on p_break are evaluated again.
+	p, _ := c.Set("p_break", decimal.RequireFromString("0.45"))
+	c2, err := c.With(p)
+	if err != nil {
+		fmt.Fprintln(os.Stderr, err)
+		os.Exit(1)
+	}
+	sol2, _ := eval.Solve(c2)
+	fmt.Printf("with a 45%% chance of a breakdown: take %q, expected value %s\n",
+		sol2.Root.Node.Branches[sol2.Root.Chosen()].Label, render.Money(sol2.Value(), m.Currency))
 }

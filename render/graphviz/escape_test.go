@@ -41,9 +41,9 @@ func hostileModel() *tree.Model {
 	root := tree.Decision(hostile[0].label)
 	for k, h := range hostile {
 		var outcomes []*tree.Branch
-		outcomes = append(outcomes, tree.Outcome(h.label, decimal.RequireFromString("0.5"), decimal.NewFromInt(int64(k)), nil))
-		outcomes = append(outcomes, tree.RestOutcome(fmt.Sprintf("other %d", k), decimal.Zero, nil))
-		root.Branches = append(root.Branches, tree.Choice(h.label, decimal.NewFromInt(-1), tree.Chance(h.label, outcomes...)))
+		outcomes = append(outcomes, tree.Outcome(h.label, tree.Num(decimal.RequireFromString("0.5")), tree.Gain(tree.Num(decimal.NewFromInt(int64(k)))), nil))
+		outcomes = append(outcomes, tree.RestOutcome(fmt.Sprintf("other %d", k), tree.Gain(tree.Num(decimal.Zero)), nil))
+		root.Branches = append(root.Branches, tree.Choice(h.label, tree.Gain(tree.Num(decimal.NewFromInt(-1))), tree.Chance(h.label, outcomes...)))
 	}
 	return &tree.Model{Title: strings.Join(func() []string {
 		var ls []string

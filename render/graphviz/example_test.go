@@ -7,6 +7,7 @@ import (
 	"log"
 	"regexp"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/render/graphviz"
@@ -21,18 +22,19 @@ func umbrella() *eval.Solution {
 		Title:    "Umbrella",
 		Currency: "EUR",
 		Root: tree.Decision("Take an umbrella?",
-			tree.Choice("Take it", d("-2"), tree.Chance("Weather",
-				tree.Outcome("Rain", d("0.3"), d("10"), nil),
-				tree.RestOutcome("Dry", d("5"), nil))),
-			tree.Choice("Leave it", d("0"), tree.Chance("Weather",
-				tree.Outcome("Rain", d("0.3"), d("-20"), nil),
-				tree.RestOutcome("Dry", d("10"), nil))),
+			tree.Choice("Take it", tree.Gain(tree.Num(d("-2"))), tree.Chance("Weather",
+				tree.Outcome("Rain", tree.Num(d("0.3")), tree.Gain(tree.Num(d("10"))), nil),
+				tree.RestOutcome("Dry", tree.Gain(tree.Num(d("5"))), nil))),
+			tree.Choice("Leave it", tree.NoCash, tree.Chance("Weather",
+				tree.Outcome("Rain", tree.Num(d("0.3")), tree.Gain(tree.Num(d("-20"))), nil),
+				tree.RestOutcome("Dry", tree.Gain(tree.Num(d("10"))), nil))),
 		),
 	}
-	if ds := m.Resolve(nil); ds.HasErrors() {
+	c, ds := compiled.Compile(m)
+	if ds.HasErrors() {
 		log.Fatal(ds)
 	}
-	sol, err := eval.Solve(m)
+	sol, err := eval.Solve(c)
 	if err != nil {
 		log.Fatal(err)
 	}

@@ -8,6 +8,7 @@ import (
 	"testing"
 	"time"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/render/internal/fixtures"
@@ -36,8 +37,9 @@ func FuzzSVG(f *testing.F) {
 	r := renderer(f)
 	f.Fuzz(func(t *testing.T, data []byte, ob byte) {
 		m := fixtures.FromBytes(data)
-		if ds := m.Resolve(nil); ds.HasErrors() {
-			t.Skipf("does not resolve: %v", ds)
+		c, ds := compiled.Compile(m)
+		if ds.HasErrors() {
+			t.Skipf("does not compile: %v", ds)
 		}
 		opts := render.Options{PolicyOnly: ob&1 != 0, MaxDepth: int(ob>>1) % 4}
 		if ob&0x80 != 0 {
@@ -46,7 +48,7 @@ func FuzzSVG(f *testing.F) {
 		var svg bytes.Buffer
 		var err error
 		fixtures.Within(t, 20*time.Second, 512<<20, func() {
-			sol, serr := eval.Solve(m)
+			sol, serr := eval.Solve(c)
 			if serr != nil {
 				err = serr
 				return

@@ -353,9 +353,8 @@ func checkDrawing(t *testing.T, sol *eval.Solution, opts Options, svg []byte) {
 				}
 			}
 			checkBranchGeometry(t, id, g, groups[fmt.Sprintf("e%d", i)], groups[fmt.Sprintf("f%d", i)])
-			b := s.Parent().Node.Branches[s.Via()]
 			if s.Parent().Node.Kind == tree.KindChance {
-				hasText(t, groups[fmt.Sprintf("b%d", i)], Percent(b.P, 2))
+				hasText(t, groups[fmt.Sprintf("b%d", i)], Percent(s.Parent().Prob(s.Via()), 2))
 			}
 			if s.Parent().Node.Kind == tree.KindDecision {
 				hasText(t, groups[fmt.Sprintf("b%d", i)], option(s.Parent().BranchValue(s.Via())))
@@ -592,13 +591,13 @@ func TestOptionsCompareWithTheirOwnCash(t *testing.T) {
 		Title: "Supplier for the depot scanners", Currency: "EUR", Objective: tree.Min,
 		Root: tree.Decision("Supplier",
 			// 300,000 + (0.5 · 18,000 + 0.5 · 300,000) = 300,000 + 159,000
-			tree.Choice("Low bid, setup fee", decimal.NewFromInt(300_000), tree.Chance("Low bidder's delivery",
-				tree.Outcome("Smooth", decimal.RequireFromString("0.5"), decimal.NewFromInt(18_000), nil),
-				tree.RestOutcome("Troubled", decimal.NewFromInt(300_000), nil))),
+			tree.Choice("Low bid, setup fee", tree.Cost(tree.Num(decimal.NewFromInt(300_000))), tree.Chance("Low bidder's delivery",
+				tree.Outcome("Smooth", tree.Num(decimal.RequireFromString("0.5")), tree.Cost(tree.Num(decimal.NewFromInt(18_000))), nil),
+				tree.RestOutcome("Troubled", tree.Cost(tree.Num(decimal.NewFromInt(300_000))), nil))),
 			// 0.5 · 411,000 + 0.5 · 500,000 = 455,500
-			tree.Choice("Established vendor", decimal.Zero, tree.Chance("Vendor's delivery",
-				tree.Outcome("Smooth", decimal.RequireFromString("0.5"), decimal.NewFromInt(411_000), nil),
-				tree.RestOutcome("Troubled", decimal.NewFromInt(500_000), nil))),
+			tree.Choice("Established vendor", tree.Cost(tree.Num(decimal.Zero)), tree.Chance("Vendor's delivery",
+				tree.Outcome("Smooth", tree.Num(decimal.RequireFromString("0.5")), tree.Cost(tree.Num(decimal.NewFromInt(411_000))), nil),
+				tree.RestOutcome("Troubled", tree.Cost(tree.Num(decimal.NewFromInt(500_000))), nil))),
 		),
 	}
 	sol := fixtures.Solve(t, m)
@@ -694,8 +693,8 @@ func TestPNG(t *testing.T) {
 	var root *tree.Node
 	for i := 0; i < 300; i++ {
 		root = tree.Decision(fmt.Sprintf("Step %d", i),
-			tree.Choice("Go on", decimal.NewFromInt(1), root),
-			tree.Choice("Stop", decimal.Zero, nil))
+			tree.Choice("Go on", tree.Gain(tree.Num(decimal.NewFromInt(1))), root),
+			tree.Choice("Stop", tree.NoCash, nil))
 	}
 	buf.Reset()
 	// The refusal comes from the layout's size, before any painting: a

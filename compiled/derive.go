@@ -1,0 +1,327 @@
+package compiled
+
+import (
+	"fmt"
+	"math/big"
+	"sync"
+
+	"github.com/forkcast/forkcast/internal/exact"
+	"github.com/forkcast/forkcast/tree"
+)
+
+// Rollback works on masses instead of probabilities.
+//
+// The mass of a node is the probability of reaching it from the root,
+// counting chance outcomes only (decisions are choices, not events): the
+// product of the plain chance probabilities on its path times, for every
+// named uncertainty, the joint probability of the states and test readings
+// seen on the way. Where a test was read, that joint probability is
+// P(state) × Π P(reading | state) summed over the states still possible —
+// Bayes' rule without its division. So masses are products of the model's
+// own figures and stay exact.
+//
+// The kernel then rolls back T(n) = mass(n) × (the value from n on, plus
+// the cash on the branch into n): T of an end is its mass times its cash
+// and payoff (E below), a chance node adds its children's T, a decision
+// takes the largest. Comparing T at a decision compares values (all its
+// options share its mass), so a rollback is additions and comparisons of
+// integers at one scale, with no division anywhere; a node's value is T
+// over its mass, divided only when someone asks for it.
+//
+// A branch of probability 0 leads to a subtree nobody reaches; its mass
+// would be 0 and its values undefined. Such a subtree is rolled back in a
+// frame of its own ("restart"): its masses start again as if the branch had
+// been taken (a known state stays known; a reading of probability 0 leaves
+// the prior as it was), and its T adds nothing to the node above it.
+type derived struct {
+	mass    []exact.Num
+	restart []bool // nil when no subtree has a frame of its own
+	scale   int32  // E and T are integers: value × 10^scale
+	e       []wide
+	eBig    []*big.Int // set when E does not fit in 128 bits at the scale
+	exact   bool
+
+	bigOnce sync.Once
+	bigE    []*big.Int
+	fltOnce sync.Once
+	fltE    []float64
+	fltMass []float64
+}
+
+// ctx is what is known about the named uncertainties on the way to a
+// node: for each one seen, the joint probability of each state with the
+// readings and outcomes so far.
+type ctx struct {
+	u    []int32
+	j    [][]exact.Num
+	prod exact.Num // Π over u of Σ j[u]: the joint probability of everything seen
+}
+
+func (x *ctx) joint(c *Model, u int32) []exact.Num {
+	if x != nil {
+		for i, v := range x.u {
+			if v == u {
+				return x.j[i]
+			}
+		}
+	}
+	return c.prior[u]
+}
+
+// with returns a context with u's joint vector replaced.
+func (x *ctx) with(c *Model, u int32, j []exact.Num) *ctx {
+	y := &ctx{}
+	if x != nil {
+		y.u = append(make([]int32, 0, len(x.u)+1), x.u...)
+		y.j = append(make([][]exact.Num, 0, len(x.j)+1), x.j...)
+	}
+	found := false
+	for i, v := range y.u {
+		if v == u {
+			y.j[i] = j
+			found = true
+		}
+	}
+	if !found {
+		y.u = append(y.u, u)
+		y.j = append(y.j, j)
+	}
+	y.prod = exact.One
+	for _, v := range y.j {
+		y.prod = c.pool.Mul(y.prod, sum(c.pool, v))
+	}
+	return y
+}
+
+func sum(pool *exact.Pool, v []exact.Num) exact.Num {
+	s := exact.Zero
+	for _, x := range v {
+		s = pool.Add(s, x)
+	}
+	return s
+}
+
+// derive computes the masses and E of c's figures. With check it also
+// reports what only the masses show (a test reading of probability 0, a
+// probability written under a named node that differs from the one the
+// declarations give).
+func (c *Model) derive(check bool) (*derived, tree.Diagnostics) {
+	sh := c.sh
+	n := len(sh.kind)
+	pool := c.pool
+	d := &derived{mass: make([]exact.Num, n), exact: true}
+	var ds tree.Diagnostics
+	d.mass[0] = exact.One
+	named := sh.unc != nil
+	var plain []exact.Num
+	var ctxs []*ctx
+	if named {
+		plain = make([]exact.Num, n)
+		ctxs = make([]*ctx, n)
+		plain[0] = exact.One
+	}
+	zeroWarned := map[int32]bool{}
+	markRestart := func(k int) {
+		if d.restart == nil {
+			d.restart = make([]bool, n)
+		}
+		d.restart[k] = true
+	}
+	for i := 0; i < n; i++ {
+		from, to := int(sh.first[i]), int(sh.first[i+1])
+		if from == to {
+			continue
+		}
+		mi := d.mass[i]
+		switch {
+		case sh.kind[i] == tree.KindDecision:
+			for k := from; k < to; k++ {
+				d.mass[k] = mi
+				if named {
+					plain[k], ctxs[k] = plain[i], ctxs[i]
+				}
+			}
+		case !named || sh.unc[i] < 0:
+			// A plain chance node.
+			for k := from; k < to; k++ {
+				p := c.prob[k]
+				if named {
+					plain[k], ctxs[k] = pool.Mul(plain[i], p), ctxs[i]
+				}
+				if p.IsZero() {
+					markRestart(k)
+					d.mass[k] = exact.One
+					if named {
+						plain[k] = exact.One
+						d.mass[k] = prodOf(ctxs[k])
+					}
+					continue
+				}
+				d.mass[k] = pool.Mul(mi, p)
+			}
+		default:
+			u := sh.unc[i]
+			t := sh.test[i]
+			j := ctxs[i].joint(c, u)
+			for k := from; k < to; k++ {
+				o := sh.out[k]
+				nj := make([]exact.Num, len(j))
+				if t >= 0 {
+					for s := range j {
+						nj[s] = pool.Mul(j[s], c.lik[t][o][s])
+					}
+				} else {
+					nj[o] = j[o]
+				}
+				x := ctxs[i].with(c, u, nj)
+				plain[k] = plain[i]
+				if x.prod.IsZero() {
+					// Never reached: a frame of its own. A known state
+					// stays known; a reading that cannot occur leaves the
+					// uncertainty as it was before it.
+					markRestart(k)
+					if t >= 0 {
+						x = ctxs[i].with(c, u, j)
+						if x.prod.IsZero() {
+							x = ctxs[i].with(c, u, c.prior[u])
+						}
+						if check && !zeroWarned[t] {
+							zeroWarned[t] = true
+							b := c.Branch(k)
+							ds.Warn(b.Pos, "the subtree under it can never be reached; check the likelihoods", "reading %q of test %q has probability 0 here", b.Label, sh.tests[t].Name)
+						}
+					} else {
+						unit := make([]exact.Num, len(j))
+						unit[o] = exact.One
+						x = ctxs[i].with(c, u, unit)
+					}
+					plain[k] = exact.One
+				}
+				ctxs[k] = x
+				d.mass[k] = pool.Mul(plain[k], x.prod)
+			}
+			if check {
+				c.checkGiven(i, d, &ds)
+			}
+		}
+	}
+	d.e = nil
+	c.weigh(d)
+	return d, ds
+}
+
+func prodOf(x *ctx) exact.Num {
+	if x == nil {
+		return exact.One
+	}
+	return x.prod
+}
+
+// checkGiven checks the probabilities written under a named node (solved
+// JSON carries them, revised by Bayes' rule, so it reads back): each must
+// be the one the declarations give there; any other is a mistake, never
+// silently replaced.
+func (c *Model) checkGiven(i int, d *derived, ds *tree.Diagnostics) {
+	n := c.sh.nodes[i]
+	from := int(c.sh.first[i])
+	what := fmt.Sprintf("uncertainty %q", n.Uncertainty)
+	if n.Test != "" {
+		what = fmt.Sprintf("test %q", n.Test)
+	}
+	for j, b := range n.Branches {
+		if b.Prob == nil || c.sh.out[from+j] < 0 {
+			continue
+		}
+		p, err := compileExpr(c.pool, b.Prob, func(nm *tree.Name) (int32, *EvalError) {
+			if s, ok := c.sh.slotOf[nm.Name]; ok {
+				return s, nil
+			}
+			return 0, &EvalError{Pos: nm.At, Msg: fmt.Sprintf("unknown name %q", nm.Name)}
+		})
+		if err != nil {
+			ds.Add(err.Pos, err.Hint, "%s", err.Msg)
+			continue
+		}
+		v, _, err := p.eval(c.pool, c.in, nil)
+		if err != nil {
+			ds.Add(err.Pos, err.Hint, "%s", err.Msg)
+			continue
+		}
+		want := c.probOf(d, from+j)
+		if !c.pool.Equal(v, want) {
+			ds.Add(b.Prob.Pos(), "remove it: the probability comes from the declaration", "branch %q under %s has probability %s of its own, but the declaration gives %s here", b.Label, what, c.pool.Dec(v), c.pool.Dec(want))
+		}
+	}
+}
+
+// probOf is the probability of the branch into node k: its figure under a
+// plain chance node, mass(k)/mass(parent) under a named one (rounded at
+// DivisionScale when that is no finite decimal), 0 when k is never reached.
+func (c *Model) probOf(d *derived, k int) exact.Num {
+	p := c.sh.parent[k]
+	if p < 0 {
+		return exact.One
+	}
+	if c.sh.kind[p] != tree.KindChance {
+		return exact.Zero
+	}
+	if c.sh.unc == nil || c.sh.unc[p] < 0 {
+		return c.prob[k]
+	}
+	if d.restart != nil && d.restart[k] {
+		return exact.Zero
+	}
+	q, _ := c.pool.Div(d.mass[k], d.mass[p], DivisionScale)
+	return q
+}
+
+// own is what node i adds itself, beside the cash on the branch into it:
+// an end's payoff, or a test's cost (negative) at the node that runs it.
+func (c *Model) own(i int) exact.Num {
+	if c.sh.test != nil && c.sh.test[i] >= 0 {
+		return c.pool.Neg(c.tcost[c.sh.test[i]])
+	}
+	return c.payoff[i]
+}
+
+// weigh computes E = mass × (cash + own) for every node at one scale.
+func (c *Model) weigh(d *derived) {
+	n := len(d.mass)
+	pool := c.pool
+	es := make([]exact.Num, n)
+	scale := int32(0)
+	for i := 0; i < n; i++ {
+		v := pool.Add(c.cash[i], c.own(i))
+		if v.IsZero() {
+			continue
+		}
+		e := pool.Mul(d.mass[i], v)
+		es[i] = e
+		if p := pool.Places(e); p > scale {
+			scale = p
+		}
+	}
+	d.scale = scale
+	if scale <= 38 {
+		w := make([]wide, n)
+		ok := true
+		for i, e := range es {
+			if e.IsZero() {
+				continue
+			}
+			var x exact.Wide
+			if x, ok = pool.WideOf(e, scale); !ok {
+				break
+			}
+			w[i] = wide(x)
+		}
+		if ok {
+			d.e = w
+			return
+		}
+	}
+	d.eBig = make([]*big.Int, n)
+	for i, e := range es {
+		d.eBig[i], _ = pool.BigOf(e, scale)
+	}
+}
