@@ -152,6 +152,9 @@ func drawTarget(c *cli.Context, name string) (out string, format drawFormat, err
 		}
 	}
 	if out != "" && out != "-" {
+		if st, err := os.Stat(out); err == nil && st.IsDir() {
+			return "", "", modelErr("-o %s is a directory; give the name of the picture to write", shown(out))
+		}
 		ext := filepath.Ext(out)
 		byExt, known := extFormat(ext)
 		switch {

@@ -98,6 +98,7 @@ func TestDrawErrors(t *testing.T) {
 		fmt.Fprintf(&many, "  \"Option %d\"  gain %d\n", i, i)
 	}
 	tall := writeFile(t, "tall.fork", many.String())
+	sub := t.TempDir()
 	dir := t.TempDir()
 	out := filepath.Join(dir, "x.svg")
 	jpg, png, ctl := filepath.Join(dir, "out.jpg"), filepath.Join(dir, "out.png"), filepath.Join(dir, "\x1b[2J.jpg")
@@ -116,6 +117,7 @@ func TestDrawErrors(t *testing.T) {
 		{"extension against format", []string{"draw", "example:sourcing", "--format", "svg", "-o", png}, 2, "is PNG by its extension, but --format says SVG"},
 		{"control characters in OUT", []string{"draw", "example:sourcing", "-o", ctl}, 2, `\x1b[2J.jpg`},
 		{"png too big", []string{"draw", tall, "-o", filepath.Join(dir, "tall.png")}, 2, "pixels is too big (at most 32768 a side)"},
+		{"directory as OUT", []string{"draw", "example:sourcing", "-o", sub}, 1, "is a directory; give the name of the picture"},
 		{"missing dir", []string{"draw", "example:sourcing", "-o", filepath.Join(t.TempDir(), "no", "such", "x.svg")}, 1, "no such file or directory"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
