@@ -121,10 +121,12 @@ type builder struct {
 	percentLets  map[string]*percentLet
 	chances      []plainChance // plain chance nodes as written
 	strays       map[*frame][]strayItem
-	cash         []pendingCash
-	rootLine     int
-	sawNodeTop   bool
-	firstLine    int
+	// suggestBudget is what is left of the work suggestions may do.
+	suggestBudget int
+	cash          []pendingCash
+	rootLine      int
+	sawNodeTop    bool
+	firstLine     int
 }
 
 func (b *builder) errAt(p tree.Pos, n int, hint, format string, args ...any) {
@@ -356,7 +358,7 @@ func (b *builder) unknownKeyword(l *srcLine, parent *frame) {
 			hint = "the lines under " + parent.desc() + " are its branches, each starting with a quoted label"
 		}
 	}
-	msg := fmt.Sprintf("unknown keyword %q", first.Value)
+	msg := fmt.Sprintf("unknown keyword %q", shorten(first.Value))
 	if s := suggest(strings.ToLower(first.Value), list); s != "" {
 		msg += fmt.Sprintf(" (did you mean `%s`?)", s)
 	} else if lk, ok := lineKinds[strings.ToLower(first.Value)]; ok && lk != kRisk {

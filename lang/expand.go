@@ -24,7 +24,7 @@ func (b *builder) expand() {
 		d := b.subs[u.name]
 		if d == nil {
 			hint := "define it at the top level with `subtree " + u.name + "`, with one node indented beneath it"
-			if s := suggest(u.name, names); s != "" {
+			if s := suggestWithin(u.name, names, &b.suggestBudget); s != "" {
 				hint = fmt.Sprintf("did you mean %q (defined on line %d)?", s, b.subs[s].line)
 			} else if len(names) > 0 && len(names) <= 10 {
 				hint = "the subtrees defined are " + quoteList(names) + "; or " + hint

@@ -35,6 +35,8 @@ func Parse(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
 		headers: map[lineKind]int{},
 		subs:    map[string]*subtreeDef{},
 		useAt:   map[*tree.Node]*useRef{},
+
+		suggestBudget: suggestBudget,
 	}
 	if b.limit <= 0 {
 		b.limit = tree.DefaultNodeLimit

@@ -129,7 +129,17 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 	out.endCol = col
 	depth, minusRun := 0, 0
 	badUTF8 := false // reported once a line
-	strayEnd, strayRun := 0, ""
+	// A run of stray characters is one diagnostic; its message is written
+	// once the line is read (rewriting it for every character would take
+	// time quadratic in the run).
+	strayEnd, strayAt := 0, 0
+	type run struct{ diag, from, to int }
+	var runs []run
+	defer func() {
+		for _, r := range runs {
+			(*ds)[r.diag].Summary = fmt.Sprintf("unexpected characters %q", shorten(s[r.from:r.to]))
+		}
+	}()
 	i := 0
 	for i < len(s) {
 		r, size := utf8.DecodeRuneInString(s[i:])
@@ -298,9 +308,12 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 		}
 		if n := len(*ds); out.lexErr && n > 0 && strayEnd == c && r != utf8.RuneError && hint == (*ds)[n-1].Hint {
 			// A run of stray characters is one mistake.
-			strayRun += string(r)
 			(*ds)[n-1].Len++
-			(*ds)[n-1].Summary = fmt.Sprintf("unexpected characters %q", strayRun)
+			if k := len(runs) - 1; k >= 0 && runs[k].diag == n-1 {
+				runs[k].to = i + size
+			} else {
+				runs = append(runs, run{diag: n - 1, from: strayAt, to: i + size})
+			}
 		} else if r == utf8.RuneError && size == 1 {
 			if !badUTF8 {
 				errAt(c, 1, "save the file as UTF-8 text", "invalid UTF-8 in the line")
@@ -308,7 +321,7 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 			badUTF8 = true
 		} else {
 			errAt(c, 1, hint, "unexpected character %q", r)
-			strayRun = string(r)
+			strayAt = i
 		}
 		i += size
 		col++

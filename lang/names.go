@@ -115,19 +115,20 @@ func (b *builder) checkNames() {
 			b.usedAsMoney(r)
 			continue // defined below its use: Resolve says where
 		}
-		msg := fmt.Sprintf("unknown name %q", r.name)
-		hint := "define it with `let " + r.name + " = ...` above this line"
+		name := shorten(r.name)
+		msg := fmt.Sprintf("unknown name %q", name)
+		hint := "define it with `let " + name + " = ...` above this line"
 		cands := b.lets.order
 		if r.ctx == ctxProb {
 			cands = append(cands[:len(cands):len(cands)], "rest")
 		}
-		switch s := suggest(r.name, cands); {
+		switch s := suggestWithin(r.name, cands, &b.suggestBudget); {
 		case s == "rest":
 			msg += " (did you mean `rest`?)"
 			hint = "`rest` takes whatever probability the others leave"
 		case s != "":
 			msg += fmt.Sprintf(" (did you mean `%s`?)", s)
-			hint = fmt.Sprintf("`%s` is the input defined on line %d; or define %s with `let %s = ...` above this line", s, b.lets.line[s], r.name, r.name)
+			hint = fmt.Sprintf("`%s` is the input defined on line %d; or define %s with `let %s = ...` above this line", s, b.lets.line[s], name, name)
 		case b.uncs.has(r.name):
 			hint = fmt.Sprintf("%s is an uncertainty (line %d), not an input: a chance node on it is written `chance %s`; a calculation uses inputs defined with `let`", r.name, b.uncs.line[r.name], r.name)
 		case b.tests.has(r.name):
@@ -156,19 +157,19 @@ func (b *builder) checkRefs() {
 				"%q is an uncertainty, not a test", r.name)
 			continue
 		}
-		list, noun := &b.uncs, "uncertainty"
-		msg := fmt.Sprintf("unknown uncertainty %q", r.name)
-		hint := "declare it with `uncertainty " + r.name + "` above the tree"
+		list, noun, name := &b.uncs, "uncertainty", shorten(r.name)
+		msg := fmt.Sprintf("unknown uncertainty %q", name)
+		hint := "declare it with `uncertainty " + name + "` above the tree"
 		switch r.kind {
 		case refTest:
 			list, noun = &b.tests, "test"
-			msg = fmt.Sprintf("unknown test %q", r.name)
-			hint = "declare it with `test " + r.name + " on ...` above the tree"
+			msg = fmt.Sprintf("unknown test %q", name)
+			hint = "declare it with `test " + name + " on ...` above the tree"
 		case refOn:
-			msg = fmt.Sprintf("test %q is on %q, which is not a declared uncertainty", r.test, r.name)
-			hint = "declare it with `uncertainty " + r.name + "` above the test"
+			msg = fmt.Sprintf("test %q is on %q, which is not a declared uncertainty", shorten(r.test), name)
+			hint = "declare it with `uncertainty " + name + "` above the test"
 		}
-		if s := suggest(r.name, list.order); s != "" {
+		if s := suggestWithin(r.name, list.order, &b.suggestBudget); s != "" {
 			msg += fmt.Sprintf(" (did you mean `%s`?)", s)
 			hint = fmt.Sprintf("`%s` is the %s declared on line %d; or %s", s, noun, list.line[s], hint)
 		} else if b.lets.has(r.name) {

@@ -1,6 +1,7 @@
 package lang
 
 import (
+	"fmt"
 	"strings"
 
 	"github.com/shopspring/decimal"
@@ -54,12 +55,29 @@ func parseNumber(text string) (v decimal.Decimal, msg, hint string) {
 	return v, "", ""
 }
 
+// MaxDigits is the most digits a number may be written with. It is far
+// more than any amount or probability needs (a division is carried to 50
+// decimal places), and it keeps reading a number quick: converting digits
+// to a decimal takes time that grows with the square of their count.
+const MaxDigits = 100
+
 // readNumber reads a number as written: digits with single _ between
-// digits, at most one decimal point, and an optional % at the end.
+// digits, at most one decimal point, and an optional % at the end. Its time
+// is linear in the length of text.
 func readNumber(text string) (decimal.Decimal, *NumberError) {
 	var v decimal.Decimal
 	fail := func(problem, hint string) (decimal.Decimal, *NumberError) {
 		return v, &NumberError{Text: text, Problem: problem, Hint: hint}
+	}
+	digits := 0
+	for i := 0; i < len(text); i++ {
+		if text[i] >= '0' && text[i] <= '9' {
+			digits++
+		}
+	}
+	if digits > MaxDigits {
+		return fail(fmt.Sprintf("has %s digits; a number may have at most %d", grouped(digits), MaxDigits),
+			"round it; for very large amounts, count in a larger unit (thousands or millions) throughout the model")
 	}
 	body, percent := strings.CutSuffix(text, "%")
 	switch {

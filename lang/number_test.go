@@ -3,7 +3,13 @@ package lang
 import (
 	"errors"
 	"fmt"
+	"math/big"
+	"strings"
 	"testing"
+	"time"
+
+	"github.com/forkcast/forkcast/tree"
+	"github.com/shopspring/decimal"
 )
 
 // TestParseNumber checks the number reader the command line shares with
@@ -72,4 +78,33 @@ func ExampleParseNumber() {
 	// Output:
 	// 0.125
 	// 1__000 has two _ in a row
+}
+
+// TestNumberDigits checks the limit on the digits of a number: at the
+// limit the value is exact (compared with math/big), past it an error at
+// the number's position, and a very long number is refused quickly.
+func TestNumberDigits(t *testing.T) {
+	digits := strings.Repeat("1234567890", MaxDigits/10)
+	v, err := ParseNumber(digits[:MaxDigits-2] + "." + digits[MaxDigits-2:])
+	want, _ := new(big.Int).SetString(digits, 10)
+	if err != nil || !v.Shift(2).Equal(decimal.NewFromBigInt(want, 0)) {
+		t.Errorf("%d digits: %v, %v", MaxDigits, v, err)
+	}
+	_, err = ParseNumber(digits + "7%")
+	var ne *NumberError
+	if !errors.As(err, &ne) || ne.Problem != fmt.Sprintf("has %d digits; a number may have at most %d", MaxDigits+1, MaxDigits) {
+		t.Errorf("%d digits: %v", MaxDigits+1, err)
+	}
+
+	// Three million digits took 30 s to read when the conversion was
+	// quadratic; the limit makes it a quick error at the position.
+	src := "let a = " + strings.Repeat("7", 3_000_000) + "\ndecision \"D\"\n  \"x\"  gain a\n"
+	start := time.Now()
+	_, ds := Load([]byte(src), Options{})
+	if took := time.Since(start); took > 10*time.Second {
+		t.Errorf("3,000,000 digits read in %v", took)
+	}
+	if len(ds) != 1 || ds[0].Pos != (tree.Pos{Line: 1, Col: 9}) || !strings.Contains(ds[0].Summary, "has 3,000,000 digits") || len(ds[0].Summary) > 200 {
+		t.Errorf("got %v", ds)
+	}
 }

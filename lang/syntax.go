@@ -4,6 +4,7 @@ import (
 	"errors"
 	"fmt"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/alecthomas/participle/v2"
 	"github.com/alecthomas/participle/v2/lexer"
@@ -105,13 +106,13 @@ func describe(t lexer.Token) string {
 	case lexer.EOF:
 		return "end of the line"
 	case tokString:
-		return "label " + t.Value
+		return "label " + shorten(t.Value)
 	case tokNumber:
-		return "number " + t.Value
+		return "number " + shorten(t.Value)
 	case tokIdent:
-		return "word " + t.Value
+		return "word " + shorten(t.Value)
 	}
-	return "`" + t.Value + "`"
+	return "`" + shorten(t.Value) + "`"
 }
 
 // the puts an article before a description.
@@ -197,7 +198,7 @@ func syntaxError(err error, k lineKind, role itemRole, lx lexed) tree.Diagnostic
 		if from == idx {
 			d.Summary = "the percent sign comes before the number"
 		}
-		d.Hint = "write the percent sign right after the number: " + strings.TrimSuffix(num, "%") + "%"
+		d.Hint = "write the percent sign right after the number: " + shorten(strings.TrimSuffix(num, "%")) + "%"
 		return d
 	}
 	switch {
@@ -212,8 +213,8 @@ func syntaxError(err error, k lineKind, role itemRole, lx lexed) tree.Diagnostic
 		d.Summary = "a range (LOW .. HIGH) only goes on a let line"
 		d.Hint = "give the value itself here; put the range on the let that defines it: let NAME = VALUE in LOW .. HIGH"
 	case k == kItem && role == roleBranch && t.Type == tokNumber && prevNumber && !hasKeywordBefore(lx, idx, "gain", "cost"):
-		d.Summary = fmt.Sprintf("the amount %s needs `gain` or `cost` before it", t.Value)
-		d.Hint = fmt.Sprintf("write gain %s for money received, or cost %s for money paid", t.Value, t.Value)
+		d.Summary = fmt.Sprintf("the amount %s needs `gain` or `cost` before it", shorten(t.Value))
+		d.Hint = fmt.Sprintf("write gain %s for money received, or cost %s for money paid", shorten(t.Value), shorten(t.Value))
 	case t.Type == tokKeyword && exp == "a name":
 		d.Summary = fmt.Sprintf("`%s` is a reserved word and cannot be a name", t.Value)
 		d.Hint = "the reserved words are gain, cost, rest, if, in and on; pick another name"
@@ -224,10 +225,10 @@ func syntaxError(err error, k lineKind, role itemRole, lx lexed) tree.Diagnostic
 			d.Hint += ", or move the calculation to a `let` and use its name"
 		}
 	case t.Value == "," && idx > 0 && lx.toks[idx-1].Type == tokNumber && adjacent(lx, idx-1, idx) && idx+1 < len(lx.toks) && lx.toks[idx+1].Type == tokNumber && adjacent(lx, idx, idx+1):
-		d.Summary = fmt.Sprintf("a comma inside the number %s,%s", lx.toks[idx-1].Value, lx.toks[idx+1].Value)
-		d.Hint = "group digits with _ instead: " + lx.toks[idx-1].Value + "_" + lx.toks[idx+1].Value
+		d.Summary = fmt.Sprintf("a comma inside the number %s,%s", shorten(lx.toks[idx-1].Value), shorten(lx.toks[idx+1].Value))
+		d.Hint = "group digits with _ instead: " + shorten(lx.toks[idx-1].Value) + "_" + shorten(lx.toks[idx+1].Value)
 	case t.Type == tokIdent && exp == "" && (k == kChance || k == kDecision || k == kTitle || k == kUncertainty || k == kTest):
-		d.Summary = fmt.Sprintf("unexpected word %s: a label goes in double quotes", t.Value)
+		d.Summary = fmt.Sprintf("unexpected word %s: a label goes in double quotes", shorten(t.Value))
 	case exp != "" && t.EOF():
 		d.Summary = fmt.Sprintf("the line ends where %s was expected", exp)
 	case exp != "":
@@ -306,13 +307,32 @@ func joinFrom(lx lexed, i int) string {
 
 // suggest returns the word in list closest to w, if it is a likely typo.
 func suggest(w string, list []string) string {
+	budget := suggestBudget
+	return suggestWithin(w, list, &budget)
+}
+
+// suggestBudget bounds the work of suggestions in one file, in cells of
+// the edit-distance table: thousands of unknown names against thousands of
+// lets must not take minutes. Past it, names get no suggestion.
+const suggestBudget = 20_000_000
+
+// suggestWithin is suggest, spending from *budget.
+func suggestWithin(w string, list []string, budget *int) string {
 	best, bestD := "", 3
+	n := utf8.RuneCountInString(w)
 	for _, c := range list {
 		if c == w {
 			continue
 		}
+		m := utf8.RuneCountInString(c)
+		if n-m >= bestD || m-n >= bestD || m/2 < 1 {
+			continue // the lengths alone rule it out
+		}
+		if *budget -= n * m; *budget < 0 {
+			return ""
+		}
 		d := distance(w, c)
-		if d < bestD && d <= len(c)/2 {
+		if d < bestD && d <= m/2 {
 			best, bestD = c, d
 		}
 	}

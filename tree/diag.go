@@ -169,7 +169,7 @@ const snippetWidth = 100
 // control sequence in a model reaches the terminal that shows the message.
 func (ds Diagnostics) Print(w io.Writer, file string, src []byte) {
 	var lines [][]byte
-	if src != nil {
+	if src != nil && len(ds) > 0 {
 		lines = SplitLines(src)
 	}
 	file = Printable(file)
