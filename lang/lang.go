@@ -27,7 +27,7 @@ var getParsers = sync.OnceValue(newParsers)
 // with every `use` expanded (possibly partial when there are errors), and
 // every syntax and structure problem found in the file, sorted by position.
 // It does not evaluate expressions or check probabilities: that is
-// [tree.Model.Resolve], which [Load] runs.
+// [compiled.Compile], which [Load] runs.
 func Parse(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
 	b := &builder{
 		limit:   opts.NodeLimit,

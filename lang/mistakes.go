@@ -190,7 +190,7 @@ func (b *builder) rangePercent(name string, value, lo, hi exprValue, lx lexed) {
 		lv = bv.Shift(-2)
 	}
 	if lv.GreaterThan(hv) {
-		return // not just the missing %: Resolve says the range runs downwards
+		return // not just the missing %: compiling says the range runs downwards
 	}
 	fixed := func(n *eNum) string {
 		if n == bare {

@@ -11,7 +11,8 @@ import (
 // Names are checked here, while the file is read, so that a name that is
 // defined nowhere gets a suggestion from the names that are (a let, an
 // uncertainty, a test, or `rest` where a probability stands). A name that
-// is defined, but below its use, is left to Resolve, which says where.
+// is defined, but below its use, is left to compiled.Compile, which says
+// where.
 
 // declared is the names one kind of line defines, in file order, with the
 // line of the first definition. Every such line counts, even one placed
@@ -113,7 +114,7 @@ func (b *builder) checkNames() {
 	for _, r := range b.pendingNames {
 		if b.lets.has(r.name) {
 			b.usedAsMoney(r)
-			continue // defined below its use: Resolve says where
+			continue // defined below its use: compiling says where
 		}
 		name := shorten(r.name)
 		msg := fmt.Sprintf("unknown name %q", name)

@@ -114,7 +114,7 @@ func scan(src []byte) []*srcLine {
 }
 
 // fillLen gives a caret span to diagnostics that have none (those from
-// Resolve, which knows positions but not the text): the width of the token
+// compiling, which knows positions but not the text): the width of the token
 // at the position, or of the whole parenthesised group starting there.
 func fillLen(src []byte, ds tree.Diagnostics) {
 	var lines [][]byte
