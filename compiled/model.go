@@ -30,11 +30,13 @@ type Model struct {
 	sh   *shape
 	pool *exact.Pool
 
-	in        []exact.Num // input values, by slot (the order of the `let`s)
-	inInexact []bool      // per slot: the value went through a rounded division; nil when none did
-	cash      []exact.Num // per node: net value of the branch into it
-	prob      []exact.Num // per node: probability of the branch into it, under a plain chance node
-	payoff    []exact.Num // per node: an end node's own value (net)
+	in        []exact.Num       // input values, by slot (the order of the `let`s)
+	inInexact []bool            // per slot: the value went through a rounded division; nil when none did
+	fixed     []bool            // per slot: given a value by With, no longer computed from its expression; nil when none was
+	pinned    map[[2]int32]bool // probabilities given a value by With: {-1, node} or {uncertainty, state}
+	cash      []exact.Num       // per node: net value of the branch into it
+	prob      []exact.Num       // per node: probability of the branch into it, under a plain chance node
+	payoff    []exact.Num       // per node: an end node's own value (net)
 	prior     [][]exact.Num
 	lik       [][][]exact.Num // per test: [reading][state]
 	tcost     []exact.Num     // per test

@@ -82,9 +82,14 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 	if c.inInexact != nil {
 		n.inInexact = append([]bool(nil), c.inInexact...)
 	}
+	if c.fixed != nil {
+		n.fixed = append([]bool(nil), c.fixed...)
+	}
 	w := &writer{c: &n, orig: c}
-	set := map[int32]bool{} // input slots given a value
-	var queue []int32       // slots whose readers must be evaluated
+	for k := range c.pinned {
+		w.markDirect(k[0], k[1])
+	}
+	var queue []int32 // slots whose readers must be evaluated
 	for _, s := range settings {
 		v := n.pool.Of(s.Value)
 		switch s.Target.kind {
@@ -93,7 +98,10 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 			if n.inInexact != nil {
 				n.inInexact[s.Target.i] = false
 			}
-			set[s.Target.i] = true
+			if n.fixed == nil {
+				n.fixed = make([]bool, len(n.in))
+			}
+			n.fixed[s.Target.i] = true
 			queue = append(queue, s.Target.i)
 		case figPrior:
 			w.prior(s.Target.i, s.Target.j, v)
@@ -114,7 +122,7 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 				continue
 			}
 			f := c.sh.dyn[fi]
-			if f.kind == figInput && set[f.i] {
+			if f.kind == figInput && n.fixed != nil && n.fixed[f.i] {
 				continue // given its own value: no longer computed
 			}
 			reached[fi] = true
@@ -131,6 +139,9 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 	var ds tree.Diagnostics
 	for _, fi := range order {
 		f := c.sh.dyn[fi]
+		if (f.kind == figProb && w.setDirectly(f.i)) || (f.kind == figPrior && w.stateSetDirectly(f.i, f.j)) {
+			continue // a setting gave it its value
+		}
 		v, isExact, err := f.prog.eval(n.pool, n.in, n.inInexact)
 		if err != nil {
 			ds = append(ds, tree.Diagnostic{Severity: tree.Error, Pos: err.Pos, Summary: err.Msg, Hint: err.Hint})
@@ -168,6 +179,7 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 	if ds.HasErrors() {
 		return nil, &InvalidError{Diagnostics: ds.Errors().Sort()}
 	}
+	n.pinned = w.direct
 	if w.probsChanged {
 		d, _ := n.derive(false)
 		n.d = d
