@@ -1,10 +1,14 @@
 package lang
 
 import (
-	"io"
+	"fmt"
 	"reflect"
+	"runtime/debug"
+	"strings"
 	"testing"
+	"time"
 
+	"github.com/alecthomas/participle/v2/lexer"
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 )
@@ -40,9 +44,72 @@ decision "Sourcing route"
   "Lease per depot"  gain 12 * 61_000
 `
 
+// Budgets of one fuzz input. The node limit bounds what an input may
+// build; the time limit is far above what any input within it should take,
+// so an input that passes it is a defect to find, not a slow machine.
+const (
+	fuzzNodeLimit = 20_000
+	fuzzMaxInput  = 1 << 20
+	fuzzLoadTime  = 10 * time.Second
+	fuzzExprTime  = 2 * time.Second
+)
+
+// underBudget runs check on its own goroutine and fails the test if it
+// panics, reports a problem, or runs past limit: a slow input then fails
+// the fuzz run (and is saved as a reproducer) instead of stalling it.
+func underBudget(t *testing.T, limit time.Duration, check func() string) {
+	t.Helper()
+	if problem := runBudgeted(limit, check); problem != "" {
+		t.Fatal(problem)
+	}
+}
+
+// runBudgeted runs check and returns its problem, a panic with its stack,
+// or a note that it ran past limit (it is then left running: a goroutine
+// cannot be stopped, but the run it belongs to fails).
+func runBudgeted(limit time.Duration, check func() string) string {
+	done := make(chan string, 1)
+	go func() {
+		defer func() {
+			if p := recover(); p != nil {
+				done <- fmt.Sprintf("panic: %v\n%s", p, debug.Stack())
+			}
+		}()
+		done <- check()
+	}()
+	timer := time.NewTimer(limit)
+	defer timer.Stop()
+	select {
+	case problem := <-done:
+		return problem
+	case <-timer.C:
+		return fmt.Sprintf("over the time budget of %v", limit)
+	}
+}
+
+// TestRunBudgeted checks that the budget of a fuzz input catches what it
+// is there to catch.
+func TestRunBudgeted(t *testing.T) {
+	if got := runBudgeted(time.Second, func() string { return "" }); got != "" {
+		t.Errorf("quick and clean: %q", got)
+	}
+	if got := runBudgeted(time.Second, func() string { return "wrong" }); got != "wrong" {
+		t.Errorf("a problem: %q", got)
+	}
+	if got := runBudgeted(time.Second, func() string { panic("boom") }); !strings.HasPrefix(got, "panic: boom\n") {
+		t.Errorf("a panic: %q", got)
+	}
+	release := make(chan struct{})
+	defer close(release)
+	if got := runBudgeted(10*time.Millisecond, func() string { <-release; return "" }); !strings.HasPrefix(got, "over the time budget") {
+		t.Errorf("a stall: %q", got)
+	}
+}
+
 // FuzzLoad checks that no input makes the reader panic, that a model read
 // without errors has a tree, that every diagnostic has a position and
 // prints, and that the fast path agrees with participle on every line.
+// Every input runs under a node limit and a time budget of its own.
 func FuzzLoad(f *testing.F) {
 	for _, s := range []string{
 		designExample, fullExample, doubling(3), string(genModel(3, 2)),
@@ -51,6 +118,9 @@ func FuzzLoad(f *testing.F) {
 		"subtree a\n  use a\nuse a\n", "\"a\" 1 + 2 gain -3 cost f(1, 2)\n",
 		"test t on u cost 1\n  \"r\" 1% if \"s\", rest\nuncertainty u\n  \"s\" 1\n  \"t\" rest\ntest t\n  \"r\"\n",
 		"decision “Go”\n  \"a\":  gain €1,000\n",
+		"# mac\rdecision \"D\"\r  \"a\" gain 1\r\n  \"b\"\r",
+		"decision \"D\x1b\"\n  \"a\x07\"\n  \"b\" gain 1 \x00\n",
+		"let p = 30% in 5 .. 40%\ndecision \"D\"\n  \"a\" cost 100 + 20%\n    chance \"C\"\n      \"x\" p\n      \"y\" rets\n",
 	} {
 		f.Add([]byte(s))
 	}
@@ -59,51 +129,173 @@ func FuzzLoad(f *testing.F) {
 	}
 	ps := getParsers()
 	f.Fuzz(func(t *testing.T, src []byte) {
-		m, ds := Parse(src, Options{NodeLimit: 20_000})
-		if m == nil {
-			t.Fatal("nil model")
+		if len(src) > fuzzMaxInput {
+			t.Skip("larger than the input budget")
 		}
-		if !ds.HasErrors() && m.Root == nil {
-			t.Fatal("no errors but no tree")
-		}
-		if !ds.HasErrors() {
-			// What reads without errors compiles, or says why not, and
-			// what compiles solves.
-			c, cs := compiled.Compile(m)
-			if (c == nil) != cs.HasErrors() {
-				t.Fatalf("compiled %v with errors %v", c != nil, cs)
-			}
-			if c != nil {
-				c.Rollback()
-			}
-			ds = append(ds, cs...)
-		}
-		for _, d := range ds {
-			if !d.Pos.IsValid() || d.Summary == "" {
-				t.Fatalf("diagnostic without position or text: %#v", d)
-			}
-		}
-		ds.Print(io.Discard, "fuzz.fork", src)
-		tree.Walk(m.Root, func(n *tree.Node, _ int) bool {
-			if n.Kind == kindUse {
-				t.Fatal("placeholder left in the model")
-			}
-			return true
-		})
-		for _, l := range scan(src) {
-			if len(l.lx.toks) == 0 || l.lx.noParse {
-				continue
-			}
-			ps.parseLine(l)
-			fast := fastParse(l.kind, l.lx.toks)
-			if fast == nil {
-				continue
-			}
-			slow := &srcLine{num: l.num, indent: l.indent, lx: l.lx}
-			ps.slowParse(slow)
-			if slow.err != nil || !reflect.DeepEqual(fast, slow.ast) {
-				t.Fatalf("line %d: fast path %#v, participle %#v (%v)", l.num, fast, slow.ast, slow.err)
-			}
-		}
+		underBudget(t, fuzzLoadTime, func() string { return checkLoad(src, ps) })
 	})
+}
+
+// checkLoad reads src and returns what is wrong with the result ("" when
+// nothing is).
+func checkLoad(src []byte, ps *parsers) string {
+	m, ds := Parse(src, Options{NodeLimit: fuzzNodeLimit})
+	if m == nil {
+		return "nil model"
+	}
+	if !ds.HasErrors() && m.Root == nil {
+		return "no errors but no tree"
+	}
+	if !ds.HasErrors() {
+		// What reads without errors compiles, or says why not, and
+		// what compiles solves.
+		c, cs := compiled.Compile(m)
+		if (c == nil) != cs.HasErrors() {
+			return fmt.Sprintf("compiled %v with errors %v", c != nil, cs)
+		}
+		if c != nil {
+			c.Rollback()
+		}
+		ds = append(ds, cs...)
+	}
+	for _, d := range ds {
+		if !d.Pos.IsValid() || d.Summary == "" {
+			return fmt.Sprintf("diagnostic without position or text: %#v", d)
+		}
+	}
+	var out strings.Builder
+	ds.Print(&out, "fuzz.fork", src)
+	for _, r := range out.String() {
+		if r != '\n' && (r < 0x20 || r >= 0x7f && r < 0xa0) {
+			return fmt.Sprintf("a control character %U reaches the printed diagnostics", r)
+		}
+	}
+	placeholder := false
+	tree.Walk(m.Root, func(n *tree.Node, _ int) bool {
+		placeholder = placeholder || n.Kind == kindUse
+		return !placeholder
+	})
+	if placeholder {
+		return "placeholder left in the model"
+	}
+	for _, l := range scan(src) {
+		if len(l.lx.toks) == 0 || l.lx.noParse {
+			continue
+		}
+		ps.parseLine(l)
+		fast := fastParse(l.kind, l.lx.toks)
+		if fast == nil {
+			continue
+		}
+		slow := &srcLine{num: l.num, indent: l.indent, lx: l.lx}
+		ps.slowParse(slow)
+		if slow.err != nil || !reflect.DeepEqual(fast, slow.ast) {
+			return fmt.Sprintf("line %d: fast path %#v, participle %#v (%v)", l.num, fast, slow.ast, slow.err)
+		}
+	}
+	return ""
+}
+
+// FuzzExpr feeds the expression parser alone: any text as a calculation.
+// No input may panic or take long; a calculation that reads prints (as
+// written, and as tree.Expr renders it) to text that reads back to the
+// same calculation; and participle, given the same tokens on a let line,
+// reads the same expression as the hand-written parser.
+func FuzzExpr(f *testing.F) {
+	for _, s := range []string{
+		"1", "1 + 2 * 3", "-(a - -b) / 4%", "f(1, g(x), (2))", "((((1))))", "10 - 3 - 2",
+		"licence + 60_000 + 20%", "x * (y + z) - 3 / 4", "rest", "-rest * 2",
+		"1__0", "1 +", "(1", "a b", "1..2", "%65", "65 %", "f(", "f(1,)", ")",
+		strings.Repeat("-", 40) + "1", strings.Repeat("(", 40) + "1" + strings.Repeat(")", 40),
+		"1" + strings.Repeat(" + 1", 200), "\"label\" + 1", "1e6", ".5", "5.",
+	} {
+		f.Add(s)
+	}
+	ps := getParsers()
+	f.Fuzz(func(t *testing.T, text string) {
+		if len(text) > fuzzMaxInput {
+			t.Skip("larger than the input budget")
+		}
+		underBudget(t, fuzzExprTime, func() string { return checkExpr(text, ps) })
+	})
+}
+
+// readExpr reads text as one whole calculation; ok is false when it does
+// not read (a lexer error, a syntax error, or tokens left over).
+func readExpr(text string) (e exprValue, lx lexed, ok bool) {
+	var ds tree.Diagnostics
+	lx = lexLine(text, 1, 1, &ds)
+	if lx.noParse || lx.lexErr {
+		return nil, lx, false
+	}
+	c := &cursor{toks: lx.toks, eof: lexer.EOFToken(lexer.Position{Line: 1, Column: lx.endCol})}
+	e, err := exprOn(c)
+	if err != nil || c.i != len(c.toks) {
+		return nil, lx, false
+	}
+	return e, lx, true
+}
+
+// checkExpr reads text as a calculation and returns what is wrong with the
+// result ("" when nothing is).
+func checkExpr(text string, ps *parsers) string {
+	e, lx, ok := readExpr(text)
+
+	// Participle on `let x = TEXT`: the same expression, or an error
+	// where the hand-written parser stopped too.
+	let := append([]lexer.Token{
+		{Type: tokIdent, Value: "let", Pos: lexer.Position{Line: 1, Column: 1}},
+		{Type: tokIdent, Value: "x", Pos: lexer.Position{Line: 1, Column: 1}},
+		{Type: tokPunct, Value: "=", Pos: lexer.Position{Line: 1, Column: 1}},
+	}, lx.toks...)
+	if !lx.noParse && !lx.lexErr && len(lx.toks) > 0 && !hasToken(lx.toks, "in") {
+		g, err := parseWith(ps.let, let, lexer.Position{Line: 1, Column: lx.endCol})
+		switch {
+		case ok && err != nil:
+			return fmt.Sprintf("%q: the parser reads it, participle does not: %v", text, err)
+		case !ok && err == nil:
+			return fmt.Sprintf("%q: participle reads it, the parser does not", text)
+		case ok && !reflect.DeepEqual(g.Value, e):
+			return fmt.Sprintf("%q: the parser reads %#v, participle %#v", text, e, g.Value)
+		}
+	}
+	if !ok {
+		return ""
+	}
+	b := &builder{}
+	x := b.expr(e, ctxCash, lx)
+	rendered := x.String()
+
+	// As written: the same structure.
+	written := exprText(e)
+	e2, lx2, ok := readExpr(written)
+	if !ok {
+		return fmt.Sprintf("%q prints as %q, which does not read", text, written)
+	}
+	if got := b.expr(e2, ctxCash, lx2).String(); got != rendered {
+		return fmt.Sprintf("%q prints as %q, which reads as %s, not %s", text, written, got, rendered)
+	}
+	// As rendered (fully parenthesised): the same, when its nesting is
+	// within the limit the lexer sets.
+	var ds tree.Diagnostics
+	if lexLine(rendered, 1, 1, &ds).noParse {
+		return ""
+	}
+	e3, lx3, ok := readExpr(rendered)
+	if !ok {
+		return fmt.Sprintf("%q renders as %q, which does not read", text, rendered)
+	}
+	if got := b.expr(e3, ctxCash, lx3).String(); got != rendered {
+		return fmt.Sprintf("%q renders as %q, which reads as %s", text, rendered, got)
+	}
+	return ""
+}
+
+func hasToken(toks []lexer.Token, v string) bool {
+	for _, t := range toks {
+		if t.Value == v {
+			return true
+		}
+	}
+	return false
 }
