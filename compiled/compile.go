@@ -48,8 +48,10 @@ type compiler struct {
 	used     map[string]bool
 	dupParam map[*tree.Param]bool
 	ds       tree.Diagnostics
-	visible  int32 // slots below this are in scope for the expression being compiled
-	work     group // reused while checking sibling probabilities
+	visible  int32       // slots below this are in scope for the expression being compiled
+	work     group       // reused while checking sibling probabilities
+	random   []bool      // per input slot: a distribution feeds it
+	current  *tree.Param // the input being compiled, if any
 }
 
 // look resolves a name to its input slot.
@@ -77,7 +79,7 @@ func (k *compiler) figure(e tree.Expr, kind figKind, i, j, kk int32) (exact.Num,
 	if num, ok := e.(*tree.Number); ok {
 		return k.pool.Of(num.Value), true // the common case: a number as written
 	}
-	p, err := compileExpr(k.pool, e, k.look)
+	p, err := compileExpr(k.pool, e, k.look, k.source)
 	if err != nil {
 		// Every name in the expression counts as used, or the others
 		// would be reported as unused too.
@@ -93,16 +95,102 @@ func (k *compiler) figure(e tree.Expr, kind figKind, i, j, kk int32) (exact.Num,
 	if !isExact {
 		k.c.rounded = true
 		if kind == figInput {
-			if k.c.inInexact == nil {
-				k.c.inInexact = make([]bool, len(k.m.Params))
-			}
-			k.c.inInexact[i] = true
+			k.inexactSlot(i)
 		}
+	}
+	if kind == figInput && k.readsRandom(p) {
+		k.random[i] = true
 	}
 	if !p.isConst() {
 		k.c.sh.dyn = append(k.c.sh.dyn, dynFig{kind: kind, i: i, j: j, k: kk, prog: p})
 	}
 	return v, true
+}
+
+// inexactSlot marks input slot i as having gone through a rounded division.
+func (k *compiler) inexactSlot(i int32) {
+	for len(k.c.inInexact) < len(k.c.in) {
+		k.c.inInexact = append(k.c.inInexact, false)
+	}
+	k.c.inInexact[i] = true
+}
+
+// readsRandom reports whether p reads a slot that a distribution feeds.
+func (k *compiler) readsRandom(p *program) bool {
+	for _, s := range p.slots {
+		if k.random[s] {
+			return true
+		}
+	}
+	return false
+}
+
+// source gives a distribution written in an expression an input slot of
+// its own: a random input, worth its mean in every exact analysis and
+// drawn by simulation. Its arguments may read inputs, but not random ones
+// and not other distributions.
+func (k *compiler) source(call *tree.Call) (int32, *EvalError) {
+	var nested *tree.Call
+	for _, a := range call.Args {
+		walkExpr(a, func(e tree.Expr) {
+			if c, ok := e.(*tree.Call); ok && nested == nil {
+				nested = c
+			}
+		})
+	}
+	if nested != nil {
+		return 0, &EvalError{Pos: nested.At, Msg: fmt.Sprintf("a distribution inside %s(...)", call.Func),
+			Hint: "a distribution's arguments are figures (numbers, inputs, calculations); define the inner one with its own `let`"}
+	}
+	p, err := compileExpr(k.pool, call, k.look, nil)
+	if err != nil {
+		return 0, err
+	}
+	for _, s := range p.slots {
+		if k.random[s] {
+			return 0, &EvalError{Pos: call.At, Msg: fmt.Sprintf("the arguments of %s(...) read %q, which is random", call.Func, k.m.Params[s].Name),
+				Hint: "give a distribution fixed figures or inputs that are not themselves drawn from a distribution"}
+		}
+	}
+	slot := int32(len(k.c.in))
+	v, isExact, err := p.eval(k.pool, k.c.in, k.c.inInexact)
+	if err != nil {
+		return 0, err
+	}
+	k.c.in = append(k.c.in, v)
+	k.random = append(k.random, true)
+	if !isExact {
+		k.c.rounded = true
+		k.inexactSlot(slot)
+	}
+	let := int32(-1)
+	if k.current != nil && k.current.Expr == tree.Expr(call) {
+		let = k.visible
+	}
+	k.c.sh.sources = append(k.c.sh.sources, source{call: call, slot: slot, prog: p, let: let})
+	if !p.isConst() {
+		k.c.sh.dyn = append(k.c.sh.dyn, dynFig{kind: figInput, i: slot, prog: p})
+	}
+	return slot, nil
+}
+
+// walkExpr calls f for e and every expression inside it.
+func walkExpr(e tree.Expr, f func(tree.Expr)) {
+	if e == nil {
+		return
+	}
+	f(e)
+	switch e := e.(type) {
+	case *tree.Unary:
+		walkExpr(e.X, f)
+	case *tree.Binary:
+		walkExpr(e.X, f)
+		walkExpr(e.Y, f)
+	case *tree.Call:
+		for _, a := range e.Args {
+			walkExpr(a, f)
+		}
+	}
 }
 
 func (k *compiler) diag(err *EvalError) {
@@ -116,9 +204,11 @@ func (k *compiler) params() {
 	sh.params = k.m.Params
 	sh.ranges = make([]rangeProg, len(k.m.Params))
 	k.c.in = make([]exact.Num, len(k.m.Params))
+	k.random = make([]bool, len(k.m.Params))
 	seen := map[string]*tree.Param{}
 	for slot, p := range k.m.Params {
 		k.visible = int32(slot)
+		k.current = p
 		if prev := seen[p.Name]; prev != nil {
 			k.ds.Add(p.Pos, fmt.Sprintf("it was first defined at %s; give this one another name", prev.Pos), "%q is defined twice", p.Name)
 			k.dupParam[p] = true
@@ -142,12 +232,15 @@ func (k *compiler) params() {
 		sh.slotOf[p.Name] = int32(slot)
 	}
 	k.visible = int32(len(k.m.Params))
+	k.current = nil
 }
 
 // rangeEnd compiles one end of an input's range (it may read earlier
 // inputs, but is not a figure of the tree).
 func (k *compiler) rangeEnd(e tree.Expr) (exact.Num, *program) {
-	p, err := compileExpr(k.pool, e, k.look)
+	p, err := compileExpr(k.pool, e, k.look, func(c *tree.Call) (int32, *EvalError) {
+		return 0, &EvalError{Pos: c.At, Msg: "a distribution in a range", Hint: "a range is two figures: LOW .. HIGH"}
+	})
 	if err != nil {
 		tree.Names(e, func(n *tree.Name) { k.used[n.Name] = true })
 		k.diag(err)
@@ -647,7 +740,7 @@ func (k *compiler) matchLabels(n *tree.Node, what string, labels []string, set f
 // when it is made (affected), so a long chain of inputs costs nothing here.
 func (k *compiler) feeds() {
 	sh := k.c.sh
-	sh.readers = make([][]int32, len(sh.params))
+	sh.readers = make([][]int32, len(k.c.in))
 	for fi, f := range sh.dyn {
 		for _, r := range f.prog.slots {
 			sh.readers[r] = append(sh.readers[r], int32(fi))

@@ -37,7 +37,7 @@ type derived struct {
 	mass    []exact.Num
 	restart []bool // nil when no subtree has a frame of its own
 	scale   int32  // E and T are integers: value × 10^scale
-	e       []wide
+	e       []exact.Wide
 	eBig    []*big.Int // set when E does not fit in 128 bits at the scale
 	exact   bool
 
@@ -48,16 +48,42 @@ type derived struct {
 	fltMass []float64
 }
 
+// arith is the arithmetic the mass pass needs, so that one pass serves
+// exact figures and their float64 twins.
+type arith[T any] interface {
+	mul(a, b T) T
+	add(a, b T) T
+	isZero(a T) bool
+	one() T
+	zero() T
+}
+
+type exactArith struct{ pool *exact.Pool }
+
+func (a exactArith) mul(x, y exact.Num) exact.Num { return a.pool.Mul(x, y) }
+func (a exactArith) add(x, y exact.Num) exact.Num { return a.pool.Add(x, y) }
+func (exactArith) isZero(x exact.Num) bool        { return x.IsZero() }
+func (exactArith) one() exact.Num                 { return exact.One }
+func (exactArith) zero() exact.Num                { return exact.Zero }
+
+type floatArith struct{}
+
+func (floatArith) mul(x, y float64) float64 { return x * y }
+func (floatArith) add(x, y float64) float64 { return x + y }
+func (floatArith) isZero(x float64) bool    { return x == 0 }
+func (floatArith) one() float64             { return 1 }
+func (floatArith) zero() float64            { return 0 }
+
 // ctx is what is known about the named uncertainties on the way to a
 // node: for each one seen, the joint probability of each state with the
 // readings and outcomes so far.
-type ctx struct {
+type ctx[T any] struct {
 	u    []int32
-	j    [][]exact.Num
-	prod exact.Num // Π over u of Σ j[u]: the joint probability of everything seen
+	j    [][]T
+	prod T // Π over u of Σ j[u]: the joint probability of everything seen
 }
 
-func (x *ctx) joint(c *Model, u int32) []exact.Num {
+func joint[T any](x *ctx[T], prior [][]T, u int32) []T {
 	if x != nil {
 		for i, v := range x.u {
 			if v == u {
@@ -65,15 +91,15 @@ func (x *ctx) joint(c *Model, u int32) []exact.Num {
 			}
 		}
 	}
-	return c.prior[u]
+	return prior[u]
 }
 
 // with returns a context with u's joint vector replaced.
-func (x *ctx) with(c *Model, u int32, j []exact.Num) *ctx {
-	y := &ctx{}
+func with[T any](ar arith[T], x *ctx[T], u int32, j []T) *ctx[T] {
+	y := &ctx[T]{}
 	if x != nil {
 		y.u = append(make([]int32, 0, len(x.u)+1), x.u...)
-		y.j = append(make([][]exact.Num, 0, len(x.j)+1), x.j...)
+		y.j = append(make([][]T, 0, len(x.j)+1), x.j...)
 	}
 	found := false
 	for i, v := range y.u {
@@ -86,57 +112,56 @@ func (x *ctx) with(c *Model, u int32, j []exact.Num) *ctx {
 		y.u = append(y.u, u)
 		y.j = append(y.j, j)
 	}
-	y.prod = exact.One
+	y.prod = ar.one()
 	for _, v := range y.j {
-		y.prod = c.pool.Mul(y.prod, sum(c.pool, v))
+		s := ar.zero()
+		for _, x := range v {
+			s = ar.add(s, x)
+		}
+		y.prod = ar.mul(y.prod, s)
 	}
 	return y
 }
 
-func sum(pool *exact.Pool, v []exact.Num) exact.Num {
-	s := exact.Zero
-	for _, x := range v {
-		s = pool.Add(s, x)
+func prodOf[T any](ar arith[T], x *ctx[T]) T {
+	if x == nil {
+		return ar.one()
 	}
-	return s
+	return x.prod
 }
 
-// derive computes the masses and E of c's figures. With check it also
-// reports what only the masses show (a test reading of probability 0, a
-// probability written under a named node that differs from the one the
-// declarations give).
-func (c *Model) derive(check bool) (*derived, tree.Diagnostics) {
-	sh := c.sh
+// masses computes every node's mass and the frames of their own (see the
+// comment on derived) from the probabilities of plain chance branches, the
+// priors and the likelihoods. zeroReading is called for a test reading
+// that cannot occur where it stands (k, the node under it; t, the test).
+func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, zeroReading func(k int, t int32)) (mass []T, restart []bool) {
 	n := len(sh.kind)
-	pool := c.pool
-	d := &derived{mass: make([]exact.Num, n), exact: true}
-	var ds tree.Diagnostics
-	d.mass[0] = exact.One
+	mass = make([]T, n)
+	mass[0] = ar.one()
 	named := sh.unc != nil
-	var plain []exact.Num
-	var ctxs []*ctx
+	var plain []T
+	var ctxs []*ctx[T]
 	if named {
-		plain = make([]exact.Num, n)
-		ctxs = make([]*ctx, n)
-		plain[0] = exact.One
+		plain = make([]T, n)
+		ctxs = make([]*ctx[T], n)
+		plain[0] = ar.one()
 	}
-	zeroWarned := map[int32]bool{}
 	markRestart := func(k int) {
-		if d.restart == nil {
-			d.restart = make([]bool, n)
+		if restart == nil {
+			restart = make([]bool, n)
 		}
-		d.restart[k] = true
+		restart[k] = true
 	}
 	for i := 0; i < n; i++ {
 		from, to := int(sh.first[i]), int(sh.first[i+1])
 		if from == to {
 			continue
 		}
-		mi := d.mass[i]
+		mi := mass[i]
 		switch {
 		case sh.kind[i] == tree.KindDecision:
 			for k := from; k < to; k++ {
-				d.mass[k] = mi
+				mass[k] = mi
 				if named {
 					plain[k], ctxs[k] = plain[i], ctxs[i]
 				}
@@ -144,77 +169,99 @@ func (c *Model) derive(check bool) (*derived, tree.Diagnostics) {
 		case !named || sh.unc[i] < 0:
 			// A plain chance node.
 			for k := from; k < to; k++ {
-				p := c.prob[k]
+				p := prob[k]
 				if named {
-					plain[k], ctxs[k] = pool.Mul(plain[i], p), ctxs[i]
+					plain[k], ctxs[k] = ar.mul(plain[i], p), ctxs[i]
 				}
-				if p.IsZero() {
+				if ar.isZero(p) {
 					markRestart(k)
-					d.mass[k] = exact.One
+					mass[k] = ar.one()
 					if named {
-						plain[k] = exact.One
-						d.mass[k] = prodOf(ctxs[k])
+						plain[k] = ar.one()
+						mass[k] = prodOf(ar, ctxs[k])
 					}
 					continue
 				}
-				d.mass[k] = pool.Mul(mi, p)
+				mass[k] = ar.mul(mi, p)
 			}
 		default:
 			u := sh.unc[i]
 			t := sh.test[i]
-			j := ctxs[i].joint(c, u)
+			j := joint(ctxs[i], prior, u)
 			for k := from; k < to; k++ {
 				o := sh.out[k]
-				nj := make([]exact.Num, len(j))
+				nj := make([]T, len(j))
 				if t >= 0 {
 					for s := range j {
-						nj[s] = pool.Mul(j[s], c.lik[t][o][s])
+						nj[s] = ar.mul(j[s], lik[t][o][s])
 					}
 				} else {
+					for s := range nj {
+						nj[s] = ar.zero()
+					}
 					nj[o] = j[o]
 				}
-				x := ctxs[i].with(c, u, nj)
+				x := with(ar, ctxs[i], u, nj)
 				plain[k] = plain[i]
-				if x.prod.IsZero() {
+				if ar.isZero(x.prod) {
 					// Never reached: a frame of its own. A known state
 					// stays known; a reading that cannot occur leaves the
 					// uncertainty as it was before it.
 					markRestart(k)
 					if t >= 0 {
-						x = ctxs[i].with(c, u, j)
-						if x.prod.IsZero() {
-							x = ctxs[i].with(c, u, c.prior[u])
+						x = with(ar, ctxs[i], u, j)
+						if ar.isZero(x.prod) {
+							x = with(ar, ctxs[i], u, prior[u])
 						}
-						if check && !zeroWarned[t] {
-							zeroWarned[t] = true
-							b := c.Branch(k)
-							ds.Warn(b.Pos, "the subtree under it can never be reached; check the likelihoods", "reading %q of test %q has probability 0 here", b.Label, sh.tests[t].Name)
+						if zeroReading != nil {
+							zeroReading(k, t)
 						}
 					} else {
-						unit := make([]exact.Num, len(j))
-						unit[o] = exact.One
-						x = ctxs[i].with(c, u, unit)
+						unit := make([]T, len(j))
+						for s := range unit {
+							unit[s] = ar.zero()
+						}
+						unit[o] = ar.one()
+						x = with(ar, ctxs[i], u, unit)
 					}
-					plain[k] = exact.One
+					plain[k] = ar.one()
 				}
 				ctxs[k] = x
-				d.mass[k] = pool.Mul(plain[k], x.prod)
+				mass[k] = ar.mul(plain[k], x.prod)
 			}
-			if check {
+		}
+	}
+	return mass, restart
+}
+
+// derive computes the masses and E of c's figures. With check it also
+// reports what only the masses show (a test reading of probability 0, a
+// probability written under a named node that differs from the one the
+// declarations give).
+func (c *Model) derive(check bool) (*derived, tree.Diagnostics) {
+	var ds tree.Diagnostics
+	zeroWarned := map[int32]bool{}
+	var zero func(k int, t int32)
+	if check {
+		zero = func(k int, t int32) {
+			if !zeroWarned[t] {
+				zeroWarned[t] = true
+				b := c.Branch(k)
+				ds.Warn(b.Pos, "the subtree under it can never be reached; check the likelihoods", "reading %q of test %q has probability 0 here", b.Label, c.sh.tests[t].Name)
+			}
+		}
+	}
+	d := &derived{exact: true}
+	d.mass, d.restart = masses[exact.Num](c.sh, exactArith{c.pool}, c.prob, c.prior, c.lik, zero)
+	if check && c.sh.unc != nil {
+		for i := range c.sh.kind {
+			if c.sh.kind[i] == tree.KindChance && c.sh.unc[i] >= 0 {
 				c.checkGiven(i, d, &ds)
 			}
 		}
 	}
-	d.e = nil
 	c.weigh(d)
 	return d, ds
-}
-
-func prodOf(x *ctx) exact.Num {
-	if x == nil {
-		return exact.One
-	}
-	return x.prod
 }
 
 // checkGiven checks the probabilities written under a named node (solved
@@ -237,6 +284,9 @@ func (c *Model) checkGiven(i int, d *derived, ds *tree.Diagnostics) {
 				return s, nil
 			}
 			return 0, &EvalError{Pos: nm.At, Msg: fmt.Sprintf("unknown name %q", nm.Name)}
+		}, func(call *tree.Call) (int32, *EvalError) {
+			return 0, &EvalError{Pos: call.At, Msg: "a distribution as the probability of a branch under " + what,
+				Hint: "remove it: the probability comes from the declaration"}
 		})
 		if err != nil {
 			ds.Add(err.Pos, err.Hint, "%s", err.Msg)
@@ -303,17 +353,15 @@ func (c *Model) weigh(d *derived) {
 	}
 	d.scale = scale
 	if scale <= 38 {
-		w := make([]wide, n)
+		w := make([]exact.Wide, n)
 		ok := true
 		for i, e := range es {
 			if e.IsZero() {
 				continue
 			}
-			var x exact.Wide
-			if x, ok = pool.WideOf(e, scale); !ok {
+			if w[i], ok = pool.WideOf(e, scale); !ok {
 				break
 			}
-			w[i] = wide(x)
 		}
 		if ok {
 			d.e = w

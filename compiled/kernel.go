@@ -11,33 +11,31 @@ import (
 // integers (the usual case), on big integers when the figures outgrow 128
 // bits, and on float64 for simulation. See derive.go for what T and E are.
 
-// number is what the kernel needs of a number type.
-type number[T any] interface {
-	add(T) (T, bool) // ok is false on overflow
-	less(T) bool
-	equal(T) bool
+// ops is what the kernel needs of a number type T: a zero-size type whose
+// methods do T's arithmetic, so that T itself may be a plain float64.
+type ops[T any] interface {
+	add(a, b T) (T, bool) // ok is false on overflow
+	less(a, b T) bool
+	equal(a, b T) bool
 }
 
-type wide exact.Wide
+type wideOps struct{}
 
-func (a wide) add(b wide) (wide, bool) {
-	s, ok := exact.Wide(a).Add(exact.Wide(b))
-	return wide(s), ok
-}
-func (a wide) less(b wide) bool  { return exact.Wide(a).Less(exact.Wide(b)) }
-func (a wide) equal(b wide) bool { return a == b }
+func (wideOps) add(a, b exact.Wide) (exact.Wide, bool) { return a.Add(b) }
+func (wideOps) less(a, b exact.Wide) bool              { return a.Less(b) }
+func (wideOps) equal(a, b exact.Wide) bool             { return a == b }
 
-type flt float64
+type floatOps struct{}
 
-func (a flt) add(b flt) (flt, bool) { return a + b, true }
-func (a flt) less(b flt) bool       { return a < b }
-func (a flt) equal(b flt) bool      { return a == b }
+func (floatOps) add(a, b float64) (float64, bool) { return a + b, true }
+func (floatOps) less(a, b float64) bool           { return a < b }
+func (floatOps) equal(a, b float64) bool          { return a == b }
 
-type bigNum struct{ x *big.Int }
+type bigOps struct{}
 
-func (a bigNum) add(b bigNum) (bigNum, bool) { return bigNum{new(big.Int).Add(a.x, b.x)}, true }
-func (a bigNum) less(b bigNum) bool          { return a.x.Cmp(b.x) < 0 }
-func (a bigNum) equal(b bigNum) bool         { return a.x.Cmp(b.x) == 0 }
+func (bigOps) add(a, b *big.Int) (*big.Int, bool) { return new(big.Int).Add(a, b), true }
+func (bigOps) less(a, b *big.Int) bool            { return a.Cmp(b) < 0 }
+func (bigOps) equal(a, b *big.Int) bool           { return a.Cmp(b) == 0 }
 
 // tiedBit marks, in best, a decision with more than one optimal branch.
 const tiedBit = 1 << 30
@@ -47,7 +45,8 @@ const tiedBit = 1 << 30
 // its E plus the largest child T (or the child policy names, when policy is
 // not nil), an end's its E. best gets each decision's first optimal branch
 // (tiedBit set when another ties with it). ok is false on overflow.
-func rollback[T number[T]](sh *shape, restart []bool, e, t []T, best []int32, policy []int32) bool {
+func rollback[T any, O ops[T]](sh *shape, restart []bool, e, t []T, best []int32, policy []int32) bool {
+	var o O
 	ok := true
 	first, kind := sh.first, sh.kind
 	for i := len(kind) - 1; i >= 0; i-- {
@@ -60,7 +59,7 @@ func rollback[T number[T]](sh *shape, restart []bool, e, t []T, best []int32, po
 					continue
 				}
 				var good bool
-				if acc, good = acc.add(t[k]); !good {
+				if acc, good = o.add(acc, t[k]); !good {
 					ok = false
 				}
 			}
@@ -76,9 +75,9 @@ func rollback[T number[T]](sh *shape, restart []bool, e, t []T, best []int32, po
 				ties := int32(0)
 				for k := from + 1; k < to; k++ {
 					switch {
-					case m.less(t[k]):
+					case o.less(m, t[k]):
 						m, b, ties = t[k], k-from, 0
-					case t[k].equal(m):
+					case o.equal(t[k], m):
 						ties = tiedBit
 					}
 				}
@@ -86,7 +85,7 @@ func rollback[T number[T]](sh *shape, restart []bool, e, t []T, best []int32, po
 			}
 			best[i] = b
 			var good bool
-			if acc, good = acc.add(t[from+b&^tiedBit]); !good {
+			if acc, good = o.add(acc, t[from+b&^tiedBit]); !good {
 				ok = false
 			}
 		}

@@ -17,6 +17,7 @@
 package compiled
 
 import (
+	"github.com/forkcast/forkcast/dist"
 	"github.com/forkcast/forkcast/internal/exact"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
@@ -72,11 +73,22 @@ type shape struct {
 	restState   []int32
 	restReading [][]int32
 
+	sources []source  // the distributions written in the model, each an input slot after the `let`s
 	dyn     []dynFig  // figures that read inputs, inputs first in slot order
 	readers [][]int32 // per slot: the dyn figures that read it directly
 }
 
 type rangeProg struct{ low, high *program }
+
+// source is a distribution written in the model: the call, the input slot
+// that stands for it, the program of its mean, and the `let` it is the
+// whole expression of (-1 when none).
+type source struct {
+	call *tree.Call
+	slot int32
+	prog *program
+	let  int32
+}
 
 // figKind says which array a dynamic figure lives in.
 type figKind uint8
@@ -241,6 +253,9 @@ type Input struct {
 	HasRange  bool
 	// Exact is false when the value went through a rounded division.
 	Exact bool
+	// Dist is the distribution the input is written as (`let x =
+	// pert(...)`), nil for a plain figure; its Value is then the mean.
+	Dist dist.Distribution
 }
 
 // Inputs lists the inputs in definition order.
@@ -265,6 +280,11 @@ func (c *Model) InputNamed(name string) (Input, bool) {
 func (c *Model) input(slot int) Input {
 	p := c.sh.params[slot]
 	in := Input{Name: p.Name, Param: p, Value: c.pool.Dec(c.in[slot]), Exact: c.inInexact == nil || !c.inInexact[slot]}
+	for _, src := range c.sh.sources {
+		if src.let == int32(slot) {
+			in.Dist, _, _, _ = meanOf(functions[src.call.Func], src.prog.args(c.pool, c.in))
+		}
+	}
 	if r := c.sh.ranges[slot]; r.low != nil {
 		lo, _, err1 := r.low.eval(c.pool, c.in, nil)
 		hi, _, err2 := r.high.eval(c.pool, c.in, nil)

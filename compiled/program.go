@@ -3,8 +3,10 @@ package compiled
 import (
 	"fmt"
 
+	"github.com/forkcast/forkcast/dist"
 	"github.com/forkcast/forkcast/internal/exact"
 	"github.com/forkcast/forkcast/tree"
+	"github.com/shopspring/decimal"
 )
 
 // DivisionScale is the number of decimal places a division is carried to.
@@ -34,6 +36,7 @@ const (
 	opSub
 	opMul
 	opDiv
+	opCall // a distribution of arg arguments, written at expr (a *tree.Call): its mean
 )
 
 type op struct {
@@ -44,9 +47,10 @@ type op struct {
 }
 
 type program struct {
-	ops    []op
-	consts []exact.Num
-	slots  []int32 // the input slots the program reads, each once
+	ops     []op
+	consts  []exact.Num
+	fconsts []float64 // consts in float64, for simulation
+	slots   []int32   // the input slots the program reads, each once
 }
 
 // EvalError is an expression that cannot be evaluated: an unknown name, a
@@ -63,9 +67,14 @@ func (e *EvalError) Error() string { return e.Pos.String() + ": " + e.Msg }
 // scope resolves names while compiling: the slot of a name, or an error.
 type scope func(n *tree.Name) (int32, *EvalError)
 
-// compileExpr compiles e. A program that reads no input is evaluated at
-// once: constant is then true and value holds it.
-func compileExpr(pool *exact.Pool, e tree.Expr, look scope) (p *program, err *EvalError) {
+// sourceOf turns a distribution written in an expression into the input
+// slot that stands for it (see funcs.go), or an error.
+type sourceOf func(c *tree.Call) (int32, *EvalError)
+
+// compileExpr compiles e. A distribution in e becomes the input slot
+// source gives it; with a nil source, the distribution itself is compiled
+// (opCall: its mean).
+func compileExpr(pool *exact.Pool, e tree.Expr, look scope, source sourceOf) (p *program, err *EvalError) {
 	p = &program{}
 	seen := map[int32]bool{}
 	var walk func(e tree.Expr) *EvalError
@@ -115,7 +124,32 @@ func compileExpr(pool *exact.Pool, e tree.Expr, look scope) (p *program, err *Ev
 			}
 			p.ops = append(p.ops, o)
 		case *tree.Call:
-			return &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown function %q", e.Func)}
+			fn, ok := functions[e.Func]
+			if !ok {
+				return &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown function %q", e.Func),
+					Hint: "the functions are the distributions " + functionNames()}
+			}
+			if n := len(e.Args); n < fn.min || (fn.max >= 0 && n > fn.max) {
+				return &EvalError{Pos: e.At, Msg: argError(e.Func, fn, n)}
+			}
+			if source != nil {
+				slot, err := source(e)
+				if err != nil {
+					return err
+				}
+				p.ops = append(p.ops, op{code: opSlot, arg: slot, at: e.At})
+				if !seen[slot] {
+					seen[slot] = true
+					p.slots = append(p.slots, slot)
+				}
+				return nil
+			}
+			for _, a := range e.Args {
+				if err := walk(a); err != nil {
+					return err
+				}
+			}
+			p.ops = append(p.ops, op{code: opCall, arg: int32(len(e.Args)), at: e.At, expr: e})
 		default:
 			return &EvalError{Pos: e.Pos(), Msg: fmt.Sprintf("unknown expression %T", e)}
 		}
@@ -123,6 +157,10 @@ func compileExpr(pool *exact.Pool, e tree.Expr, look scope) (p *program, err *Ev
 	}
 	if err := walk(e); err != nil {
 		return nil, err
+	}
+	p.fconsts = make([]float64, len(p.consts))
+	for i, c := range p.consts {
+		p.fconsts[i] = pool.Float64(c)
 	}
 	return p, nil
 }
@@ -150,6 +188,28 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 			continue
 		case opNeg:
 			st[len(st)-1] = pool.Neg(st[len(st)-1])
+			continue
+		case opCall:
+			call := o.expr.(*tree.Call)
+			n := int(o.arg)
+			args := make([]decimal.Decimal, n)
+			for i := range args {
+				args[i] = pool.Dec(st[len(st)-n+i])
+			}
+			st = st[:len(st)-n]
+			_, mean, ok, err := meanOf(functions[call.Func], args)
+			if err != nil {
+				at, msg := call.At, err.Error()
+				if ae, isArg := err.(*dist.ArgError); isArg {
+					msg = ae.Msg
+					if ae.Arg >= 0 && ae.Arg < n {
+						at = call.Args[ae.Arg].Pos()
+					}
+				}
+				return exact.Zero, false, &EvalError{Pos: at, Msg: msg, Hint: "write it as " + functions[call.Func].usage}
+			}
+			isExact = isExact && ok
+			st = append(st, pool.Of(mean))
 			continue
 		}
 		x, y := st[len(st)-2], st[len(st)-1]
@@ -186,8 +246,10 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 }
 
 // evalFloat runs the program in float64 on the input values in (for
-// simulation).
-func (p *program) evalFloat(consts []float64, in []float64) float64 {
+// simulation). A program with a distribution in it is never run in float64:
+// simulation draws the distribution's slot instead.
+func (p *program) evalFloat(in []float64) float64 {
+	consts := p.fconsts
 	var buf [16]float64
 	st := buf[:0]
 	for _, o := range p.ops {

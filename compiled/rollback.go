@@ -1,8 +1,8 @@
 package compiled
 
 import (
+	"math"
 	"math/big"
-	"unsafe"
 
 	"github.com/forkcast/forkcast/internal/exact"
 	"github.com/forkcast/forkcast/tree"
@@ -15,10 +15,10 @@ import (
 // model afterwards changes them.
 type Rollback struct {
 	c      *Model
-	wide   []wide     // T as 128-bit integers at c's scale, or
-	bigs   []*big.Int // as big integers when they outgrew 128 bits
-	best   []int32    // per decision: first optimal branch, tiedBit when tied
-	follow bool       // the decisions follow a given policy
+	wide   []exact.Wide // T as 128-bit integers at c's scale, or
+	bigs   []*big.Int   // as big integers when they outgrew 128 bits
+	best   []int32      // per decision: first optimal branch, tiedBit when tied
+	follow bool         // the decisions follow a given policy
 }
 
 // Rollback rolls c back: every decision takes its best branch (the first in
@@ -30,30 +30,42 @@ func (c *Model) Rollback() *Rollback { return c.rollback(nil) }
 // value of a fixed plan is wanted under other inputs.
 func (c *Model) Follow(policy []int32) *Rollback { return c.rollback(policy) }
 
-func (c *Model) rollback(policy []int32) *Rollback {
+// RollbackInto is Rollback reusing the arrays of dst, a rollback of a
+// model of the same tree that the caller no longer needs (its figures are
+// overwritten): the loop of a sweep or a simulation, without allocating
+// per sample. dst may be nil.
+func (c *Model) RollbackInto(dst *Rollback) *Rollback { return c.rollbackInto(dst, nil) }
+
+func (c *Model) rollback(policy []int32) *Rollback { return c.rollbackInto(nil, policy) }
+
+func (c *Model) rollbackInto(dst *Rollback, policy []int32) *Rollback {
 	d := c.d
 	n := len(c.sh.kind)
-	r := &Rollback{c: c, best: make([]int32, n), follow: policy != nil}
+	r := &Rollback{c: c, follow: policy != nil}
+	if dst != nil && len(dst.best) == n {
+		r.best, r.wide, r.bigs = dst.best, dst.wide, dst.bigs
+		*dst = Rollback{}
+	} else {
+		r.best = make([]int32, n)
+	}
 	if d.e != nil {
-		t := make([]wide, n)
-		if rollback(c.sh, d.restart, d.e, t, r.best, policy) {
-			r.wide = t
+		if len(r.wide) != n {
+			r.wide = make([]exact.Wide, n)
+		}
+		if rollback[exact.Wide, wideOps](c.sh, d.restart, d.e, r.wide, r.best, policy) {
+			r.bigs = nil
 			return r
 		}
 	}
-	e := c.bigE()
-	t := make([]bigNum, n)
-	rollback(c.sh, d.restart, e, t, r.best, policy)
+	r.wide = nil
 	r.bigs = make([]*big.Int, n)
-	for i, x := range t {
-		r.bigs[i] = x.x
-	}
+	rollback[*big.Int, bigOps](c.sh, d.restart, c.bigE(), r.bigs, r.best, policy)
 	return r
 }
 
 // bigE is E as big integers, made once when first needed (figures that
 // outgrew 128 bits, or sums that overflowed them).
-func (c *Model) bigE() []bigNum {
+func (c *Model) bigE() []*big.Int {
 	d := c.d
 	d.bigOnce.Do(func() {
 		n := len(c.sh.kind)
@@ -63,18 +75,14 @@ func (c *Model) bigE() []bigNum {
 			case d.eBig != nil:
 				d.bigE[i] = d.eBig[i]
 			case d.e != nil:
-				d.bigE[i] = exact.Wide(d.e[i]).Big()
+				d.bigE[i] = d.e[i].Big()
 			}
 			if d.bigE[i] == nil {
 				d.bigE[i] = new(big.Int)
 			}
 		}
 	})
-	out := make([]bigNum, len(d.bigE))
-	for i, x := range d.bigE {
-		out[i] = bigNum{x}
-	}
-	return out
+	return d.bigE
 }
 
 // Model is the compiled model rolled back.
@@ -83,7 +91,7 @@ func (r *Rollback) Model() *Model { return r.c }
 // t is node i's T as a decimal: mass × (value from i on + cash into i).
 func (r *Rollback) t(i int) decimal.Decimal {
 	if r.wide != nil {
-		return exact.Wide(r.wide[i]).Decimal(r.c.d.scale)
+		return r.wide[i].Decimal(r.c.d.scale)
 	}
 	return decimal.NewFromBigInt(r.bigs[i], -r.c.d.scale)
 }
@@ -92,7 +100,7 @@ func (r *Rollback) t(i int) decimal.Decimal {
 // siblings under a decision (they share its mass).
 func (r *Rollback) cmpT(a, b int) int {
 	if r.wide != nil {
-		return exact.Wide(r.wide[a]).Cmp(exact.Wide(r.wide[b]))
+		return r.wide[a].Cmp(r.wide[b])
 	}
 	return r.bigs[a].Cmp(r.bigs[b])
 }
@@ -186,7 +194,7 @@ func (r *Rollback) Policy() []int32 {
 }
 
 // floatE is E in float64, made once when first needed.
-func (c *Model) floatE() []flt {
+func (c *Model) floatE() []float64 {
 	d := c.d
 	d.fltOnce.Do(func() {
 		n := len(c.sh.kind)
@@ -194,22 +202,14 @@ func (c *Model) floatE() []flt {
 		for i := 0; i < n; i++ {
 			switch {
 			case d.e != nil:
-				d.fltE[i] = exact.Wide(d.e[i]).Float64(d.scale)
+				d.fltE[i] = d.e[i].Float64(d.scale)
 			default:
 				f, _ := new(big.Float).SetInt(d.eBig[i]).Float64()
-				d.fltE[i] = f / pow10f(d.scale)
+				d.fltE[i] = f / math.Pow(10, float64(d.scale))
 			}
 		}
 	})
-	return *(*[]flt)(unsafe.Pointer(&d.fltE))
-}
-
-func pow10f(n int32) float64 {
-	f := 1.0
-	for ; n > 0; n-- {
-		f *= 10
-	}
-	return f
+	return d.fltE
 }
 
 // RollbackFloat rolls c back in float64 (the twin of Rollback for
@@ -217,8 +217,7 @@ func pow10f(n int32) float64 {
 // root's expected value (net). t and best are work space of Len() entries
 // each, reused across calls; best receives each decision's choice.
 func (c *Model) RollbackFloat(t []float64, best []int32) float64 {
-	tt := *(*[]flt)(unsafe.Pointer(&t))
-	rollback(c.sh, c.d.restart, c.floatE(), tt, best, nil)
+	rollback[float64, floatOps](c.sh, c.d.restart, c.floatE(), t, best, nil)
 	return t[0]
 }
 

@@ -415,7 +415,7 @@ func (c *Model) reweigh(old *derived, nodes []int32) *derived {
 		return d
 	}
 	d.scale = old.scale
-	d.e = append([]wide(nil), old.e...)
+	d.e = append([]exact.Wide(nil), old.e...)
 	for _, i := range nodes {
 		v := c.pool.Add(c.cash[i], c.own(int(i)))
 		e := c.pool.Mul(d.mass[i], v)
@@ -426,7 +426,7 @@ func (c *Model) reweigh(old *derived, nodes []int32) *derived {
 			c.weigh(d)
 			return d
 		}
-		d.e[i] = wide(x)
+		d.e[i] = x
 	}
 	return d
 }

@@ -1,0 +1,94 @@
+package compiled
+
+import (
+	"fmt"
+	"sort"
+	"strings"
+
+	"github.com/forkcast/forkcast/dist"
+	"github.com/shopspring/decimal"
+)
+
+// The functions of the language are the published distributions under
+// their usual names. A distribution written in a model is a random input:
+// every exact analysis uses its mean (exact where the mean is rational, as
+// it is for PERT, triangular, uniform, normal and discrete), and
+// simulation draws it.
+
+// function is one distribution the language knows.
+type function struct {
+	usage string // how it is written, for messages
+	min   int    // fewest arguments
+	max   int    // most arguments (-1: any number)
+	// make builds the distribution from exact arguments.
+	make func(args []decimal.Decimal) (dist.Distribution, error)
+}
+
+var functions = map[string]function{
+	"pert": {"pert(LOW, LIKELY, HIGH)", 3, 3, func(a []decimal.Decimal) (dist.Distribution, error) {
+		return dist.NewPERTExact(a[0], a[1], a[2])
+	}},
+	"triangular": {"triangular(LOW, LIKELY, HIGH)", 3, 3, func(a []decimal.Decimal) (dist.Distribution, error) {
+		return dist.NewTriangularExact(a[0], a[1], a[2])
+	}},
+	"uniform": {"uniform(LOW, HIGH)", 2, 2, func(a []decimal.Decimal) (dist.Distribution, error) {
+		return dist.NewUniformExact(a[0], a[1])
+	}},
+	"normal": {"normal(MEAN, SD)", 2, 2, func(a []decimal.Decimal) (dist.Distribution, error) {
+		return dist.NewNormalExact(a[0], a[1])
+	}},
+	"lognormal": {"lognormal(P10, P90)", 2, 2, func(a []decimal.Decimal) (dist.Distribution, error) {
+		return dist.NewLogNormalPercentilesExact(decimal.New(1, -1), a[0], decimal.New(9, -1), a[1])
+	}},
+	"discrete": {"discrete(VALUE, PROBABILITY, VALUE, PROBABILITY, ...)", 2, -1, func(a []decimal.Decimal) (dist.Distribution, error) {
+		if len(a)%2 != 0 {
+			return nil, &dist.ArgError{Func: "discrete", Arg: len(a) - 1, Msg: "the last value has no probability: give values and probabilities in pairs"}
+		}
+		var vs, ps []decimal.Decimal
+		for i := 0; i < len(a); i += 2 {
+			vs, ps = append(vs, a[i]), append(ps, a[i+1])
+		}
+		d, err := dist.NewDiscreteExact(vs, ps)
+		if ae, ok := err.(*dist.ArgError); ok {
+			// The constructor blames an outcome; point at its value.
+			ae.Arg *= 2
+		}
+		return d, err
+	}},
+}
+
+// functionNames lists the functions, for messages.
+func functionNames() string {
+	var names []string
+	for n := range functions {
+		names = append(names, n)
+	}
+	sort.Strings(names)
+	return strings.Join(names, ", ")
+}
+
+// meanOf builds the distribution and returns its mean as a decimal, exact
+// when it is a rational with a finite decimal expansion; otherwise rounded
+// at DivisionScale places and exact is false.
+func meanOf(fn function, args []decimal.Decimal) (d dist.Distribution, mean decimal.Decimal, exact bool, err error) {
+	d, err = fn.make(args)
+	if err != nil {
+		return nil, decimal.Zero, false, err
+	}
+	if r, ok := d.MeanExact(); ok {
+		m := decimal.NewFromBigRat(r, DivisionScale)
+		return d, m, m.Rat().Cmp(r) == 0, nil
+	}
+	return d, decimal.NewFromFloat(d.Mean()), false, nil
+}
+
+func argError(name string, fn function, n int) string {
+	want := fmt.Sprint(fn.min)
+	switch {
+	case fn.max < 0:
+		want = fmt.Sprintf("at least %d", fn.min)
+	case fn.max != fn.min:
+		want = fmt.Sprintf("%d to %d", fn.min, fn.max)
+	}
+	return fmt.Sprintf("%s takes %s arguments, not %d: write %s", name, want, n, fn.usage)
+}
