@@ -606,84 +606,17 @@ func stateNames(u *tree.Uncertainty) []string {
 
 func quoteAll(xs []string) string { return tree.QuoteList(xs) }
 
-// pathHas reports whether a branch labelled via lies on the path from the
-// root to s.
-func pathHas(s *Solved, via string) bool {
-	for c := s; c.Parent() != nil; c = c.Parent() {
-		if c.Parent().Node.Branches[c.Via()].Label == via {
-			return true
-		}
-	}
-	return false
-}
-
 // decision picks the decision to watch, on the solution at the current
-// value: the first in model order that matches.
+// value (see WatchedDecision).
 func (s *search) decision(base *Solution, at string) error {
-	nodes := base.Nodes()
-	pick := -1
-	switch {
-	case at != "":
-		var all []int
-		for i := range nodes {
-			if n := nodes[i].Node; n.Kind == tree.KindDecision && n.Label == at {
-				all = append(all, i)
-			}
-		}
-		if len(all) == 0 {
-			// BRANCH/DECISION: the decision with that label reached
-			// through a branch with that label, to tell apart decisions
-			// that share a label (a subtree used in several places).
-			if i := strings.LastIndex(at, "/"); i > 0 {
-				via, errV := unquotePart(at[:i])
-				label, errL := unquotePart(at[i+1:])
-				if errV == nil && errL == nil {
-					for j := range nodes {
-						if n := nodes[j].Node; n.Kind == tree.KindDecision && n.Label == label && pathHas(&nodes[j], via) {
-							all = append(all, j)
-						}
-					}
-				}
-			}
-		}
-		if len(all) == 0 {
-			var labels []string
-			seen := map[string]bool{}
-			for i := range nodes {
-				if n := nodes[i].Node; n.Kind == tree.KindDecision && !seen[n.Label] {
-					seen[n.Label] = true
-					labels = append(labels, n.Label)
-				}
-			}
-			return reqErr("no decision labelled %q; the decisions are %s", at, quoteAll(labels))
-		}
-		reach := base.Reachable()
-		pick = all[0]
-		for _, i := range all {
-			if reach[i] {
-				pick = i
-				break
-			}
-		}
-		if len(all) > 1 {
-			s.be.Notes = append(s.be.Notes, fmt.Sprintf("%d decisions are labelled %q; watching the first one the optimal policy reaches (after %s)", len(all), at, pathText(&nodes[pick])))
-		}
-	case nodes[0].Node.Kind == tree.KindDecision:
-		pick = 0
-	default:
-		reach := base.Reachable()
-		for i := range nodes {
-			if nodes[i].Node.Kind == tree.KindDecision && reach[i] {
-				pick = i
-				break
-			}
-		}
-		if pick < 0 {
-			return reqErr("the model has no decision to watch")
-		}
-		s.be.Notes = append(s.be.Notes, fmt.Sprintf("the root is not a decision; watching the first decision on the optimal path, %q (after %s)", nodes[pick].Node.Label, pathText(&nodes[pick])))
+	d, notes, err := WatchedDecision(base, at)
+	if err != nil {
+		return err
 	}
-	d := &nodes[pick]
+	if d == nil {
+		return reqErr("the model has no decision to watch")
+	}
+	s.be.Notes = append(s.be.Notes, notes...)
 	s.node = d.Number()
 	s.be.Decision = d.Node
 	for _, b := range d.Path() {
