@@ -63,16 +63,31 @@ func (sol *Solution) Ranges() []Range {
 	return out
 }
 
-// Dominated warns about options that can never pay: a branch of a decision
-// whose best possible outcome is no better than the worst possible outcome
-// of another branch of the same decision. A decision whose options are all
-// certain (a fallback such as walking away) gets no warning: a certain
-// worse option is a plain choice, not a mistake. Each option is named with
-// the first option in model order that dominates it.
-func Dominated(sol *Solution) tree.Diagnostics {
+// Dominated warns about options no decision maker who prefers more to
+// less would choose. An option whose best possible outcome is no better
+// than the worst possible outcome of another branch of the same decision
+// is dominated in every outcome. Otherwise, an option is dominated in
+// distribution when another branch is better by first-order stochastic
+// dominance, the optimal policy followed after the decision (see
+// RiskProfiles): at least as high a chance of beating any figure, and a
+// higher chance for some. A decision whose options are all certain (a
+// fallback such as walking away) gets no warning: a certain worse option
+// is a plain choice, not a mistake. Each option is named with the first
+// option in model order that dominates it.
+//
+// The distributions cost a walk of each decision's subtree; past
+// DefaultMaxOutcomes path ends in all, the remaining decisions are checked
+// by their ranges only, and a warning says so.
+func Dominated(sol *Solution) tree.Diagnostics { return dominated(sol, DefaultMaxOutcomes) }
+
+// dominated is Dominated with maxEnds path ends for the distributions.
+func dominated(sol *Solution, maxEnds int) tree.Diagnostics {
 	c := sol.Compiled
 	rs := sol.ranges()
 	var ds tree.Diagnostics
+	w := &lotteryWalk{c: c, max: maxEnds, option: "DefaultMaxOutcomes",
+		policy: func(i int) int { return sol.r.Best(i) }}
+	budgetLeft := true
 	for x := range sol.nodes {
 		s := &sol.nodes[x]
 		if s.Node.Kind != tree.KindDecision {
@@ -97,6 +112,7 @@ func Dominated(sol *Solution) tree.Diagnostics {
 				best[j] = best[j-1]
 			}
 		}
+		warned := make([]bool, k)
 		for a := 0; a < k; a++ {
 			ra := rs[from+a]
 			first := sort.Search(k, func(j int) bool { return !best[j].LessThan(ra.Hi) })
@@ -110,9 +126,47 @@ func Dominated(sol *Solution) tree.Diagnostics {
 				ab, bb := s.Node.Branches[a], s.Node.Branches[b]
 				ds.Warn(ab.Pos, "drop it, or check its figures",
 					"option %q of %q is dominated: in every outcome it does no better than %q", ab.Label, s.Node.Display(), bb.Label)
+				warned[a] = true
 				break
 			}
 		}
+		if budgetLeft && !stochasticallyDominated(w, s, warned, &ds) {
+			budgetLeft = false
+			ds.Warn(s.Node.Pos, "check the options of the decisions after it with `forkcast profile --at DECISION`",
+				"options from decision %q on were checked for dominance by their ranges only: their distributions would take more than %d path ends", s.Node.Display(), w.max)
+		}
 	}
 	return ds
+}
+
+// stochasticallyDominated warns about each option of decision s not yet
+// warned about that another option dominates by first order. It returns
+// false when the walk passed its budget.
+func stochasticallyDominated(w *lotteryWalk, s *Solved, warned []bool, ds *tree.Diagnostics) bool {
+	c := w.c
+	i := s.Number()
+	lots := make([]lottery, len(warned))
+	for j := range lots {
+		l, err := w.lottery(c.Child(i, j))
+		if err != nil {
+			return false
+		}
+		lots[j] = l
+	}
+	more := prefers(c.Objective())
+	for a := range lots {
+		if warned[a] {
+			continue
+		}
+		for b := range lots {
+			if b == a || dominance(lots[b], lots[a]) != 1 {
+				continue
+			}
+			ab, bb := s.Node.Branches[a], s.Node.Branches[b]
+			ds.Warn(ab.Pos, "drop it, or check its figures (`forkcast profile` shows both distributions)",
+				"option %q of %q is dominated in distribution: %q is better for every decision maker who %s (its chance of doing at least as well as any figure is never lower)", ab.Label, s.Node.Display(), bb.Label, more)
+			break
+		}
+	}
+	return true
 }

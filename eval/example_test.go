@@ -81,3 +81,40 @@ func ExampleFindBreakeven() {
 	// Output:
 	// at fee = 55 (exact: true): Carrier below, Own fleet above
 }
+
+// The risk profile of each option of a decision: every payoff with its
+// probability, the chance of a loss, and which option dominates which.
+func ExampleRiskProfiles() {
+	n := func(s string) tree.Expr { return tree.Num(decimal.RequireFromString(s)) }
+	m := &tree.Model{Root: tree.Decision("Bid",
+		tree.Choice("Bid high", tree.Cost(n("20")), tree.Chance("Award",
+			tree.Outcome("Won", n("0.3"), tree.Gain(n("200")), nil),
+			tree.RestOutcome("Lost", tree.NoCash, nil))),
+		tree.Choice("Bid low", tree.Cost(n("20")), tree.Chance("Award",
+			tree.Outcome("Won", n("0.6"), tree.Gain(n("90")), nil),
+			tree.RestOutcome("Lost", tree.NoCash, nil))),
+		tree.Choice("Bid late", tree.Cost(n("30")), tree.Chance("Award",
+			tree.Outcome("Won", n("0.6"), tree.Gain(n("90")), nil),
+			tree.RestOutcome("Lost", tree.NoCash, nil))),
+		tree.Choice("No bid", tree.NoCash, nil),
+	)}
+	c, _ := compiled.Compile(m)
+	sol, _ := eval.Solve(c)
+	ps, err := eval.RiskProfiles(context.Background(), sol, eval.ProfileOptions{})
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for _, p := range ps.Options {
+		fmt.Printf("%s: mean %s, P(loss) %s, outcomes %v\n", p.Label, p.Mean, p.Loss, p.Outcomes)
+	}
+	for _, d := range ps.Dominance {
+		fmt.Println(ps.Sentence(d))
+	}
+	// Output:
+	// Bid high: mean 40, P(loss) 0.7, outcomes [{-20 0.7} {180 0.3}]
+	// Bid low: mean 34, P(loss) 0.4, outcomes [{-20 0.4} {70 0.6}]
+	// Bid late: mean 24, P(loss) 0.4, outcomes [{-30 0.4} {60 0.6}]
+	// No bid: mean 0, P(loss) 0, outcomes [{0 1}]
+	// "Bid low" is better than "Bid late" for every decision maker who prefers more to less (first-order stochastic dominance)
+}

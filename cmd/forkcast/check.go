@@ -21,7 +21,10 @@ func checkCommand() *cli.Command {
 			"Errors (exit status 1) stop a model from being solved: syntax, unknown names,\n" +
 			"probabilities outside [0, 1] or not summing to 1, duplicate labels, cycles.\n" +
 			"Warnings do not: branches with probability 0, options that are worse than\n" +
-			"another option of the same decision in every outcome, `let`s never used.",
+			"another option of the same decision in every outcome or in distribution\n" +
+			"(first-order stochastic dominance: the other has at least as high a chance\n" +
+			"of beating any figure, with the best choices made after it), `let`s never\n" +
+			"used.",
 		Flags: []cli.Flag{
 			&cli.IntFlag{Name: "warnings", Value: 50, Usage: "show at most `N` warnings (-1: all); errors are always all shown"},
 			maxNodesFlag,
