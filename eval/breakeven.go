@@ -363,7 +363,7 @@ func (s *search) target(opts BreakevenOptions) error {
 		case in.HasRange:
 			lo, hi = in.Low, in.High
 		default:
-			return reqErr("parameter %q has no range: give the search one, or write `let %s = ... in LOW .. HIGH` in the model", in.Name, in.Name)
+			return reqErr("parameter %q has no range: give BreakevenOptions.Low and High, or write `let %s = ... in LOW .. HIGH` in the model", in.Name, in.Name)
 		}
 		if lo.GreaterThan(hi) {
 			return reqErr("the range %s..%s runs downwards: write the smaller bound first", lo, hi)

@@ -170,16 +170,3 @@ func plural(n int) string {
 	}
 	return "s"
 }
-
-// describe is a short phrase for a node, for text output.
-func describe(n *tree.Node) string {
-	switch {
-	case n.Test != "" && n.Label == "":
-		return fmt.Sprintf("test %s", n.Test)
-	case n.Uncertainty != "" && n.Label == "":
-		return fmt.Sprintf("chance %s", n.Uncertainty)
-	case n.Kind == tree.KindEnd:
-		return "end"
-	}
-	return fmt.Sprintf("%s %q", n.Kind, n.Label)
-}

@@ -10,10 +10,12 @@
 package main
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
 	"strconv"
 	"strings"
 	"unicode"
@@ -32,16 +34,32 @@ const (
 	exitModel    = 1 // the model, or a file named, cannot be used
 	exitUsage    = 2 // the command line is wrong
 	exitInternal = 3 // a bug in forkcast: a panic caught at the top
+	// exitInterrupted: stopped by Ctrl-C (SIGINT) before the work was
+	// done; 128 + the signal's number, as shells report it.
+	exitInterrupted = 130
 )
 
 // exitStatusHelp is the exit status paragraph of `forkcast --help`.
 const exitStatusHelp = "Exit status: 0 success; 1 the model has errors, or a file named cannot be\n" +
 	"read or written (missing, a directory, a symbolic link as output); 2 the\n" +
 	"command line is wrong (unknown command or flag, a flag value out of range,\n" +
-	"a missing FILE argument); 3 an internal error in forkcast (please report it)."
+	"a missing FILE argument); 3 an internal error in forkcast (please report it);\n" +
+	"130 interrupted with Ctrl-C before the work was done (nothing is written)."
 
-func main() {
-	os.Exit(guard(os.Stderr, func() int { return run(os.Args, os.Stdin, os.Stdout, os.Stderr) }))
+func main() { os.Exit(mainStatus(os.Args)) }
+
+// mainStatus runs the command as the process does: Ctrl-C (SIGINT)
+// cancels the running analysis through its context, which then stops
+// with a message and exitInterrupted; a second Ctrl-C ends the process
+// at once.
+func mainStatus(args []string) int {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	go func() {
+		<-ctx.Done()
+		stop()
+	}()
+	return guard(os.Stderr, func() int { return runContext(ctx, args, os.Stdin, os.Stdout, os.Stderr) })
 }
 
 // guard runs the command and turns a panic, which is always a bug, into an
@@ -71,6 +89,11 @@ func commands() []*cli.Command {
 
 // run is main without the process: tests call it with their own streams.
 func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	return runContext(context.Background(), args, stdin, stdout, stderr)
+}
+
+// runContext is run with a context that the commands' work stops with.
+func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 	notFound := false // an unknown command was named, also as `help NAME`
 	app := &cli.App{
 		Name:  "forkcast",
@@ -107,7 +130,7 @@ func run(args []string, stdin io.Reader, stdout, stderr io.Writer) int {
 		fmt.Fprintf(stderr, "forkcast: %v\n(run with --help to see how to use it)\n", err)
 		return exitUsage
 	}
-	err = app.Run(args)
+	err = app.RunContext(ctx, args)
 	if err == nil {
 		if notFound {
 			return exitUsage
@@ -150,7 +173,7 @@ func leastCount(name string) int {
 	switch name {
 	case "warnings":
 		return -1
-	case "max-nodes", "max-scenarios", "wrap":
+	case "max-nodes", "max-scenarios", "max-work", "max-samples", "wrap":
 		return 1
 	}
 	return 0

@@ -160,3 +160,27 @@ func TestBreakevenErrors(t *testing.T) {
 		}
 	}
 }
+
+// A budget reached names the flag that raises it, not the library's
+// option; so does a request the model cannot answer as it stands.
+func TestMessagesNameFlags(t *testing.T) {
+	for _, c := range []struct {
+		args   []string
+		stream string // "stdout" or "stderr"
+		code   int
+		want   string
+	}{
+		{[]string{"breakeven", "example:sourcing", "--vary", "licence", "--max-samples", "5"}, "stderr", 1, "more than 5 rollbacks (raise --max-samples to allow more)"},
+		{[]string{"voi", "example:sourcing", "--max-work", "5"}, "stderr", 1, "(raise --max-work to allow more)"},
+		{[]string{"voi", "example:release", "--max-scenarios", "1"}, "stdout", 0, "more than 1 joint states of the named uncertainties (raise --max-scenarios to allow more)"},
+		{[]string{"voi", "example:release", "--max-scenarios", "1", "--json"}, "stdout", 0, "(raise --max-scenarios to allow more)"},
+		{[]string{"breakeven", "example:sourcing", "--vary", "benefit"}, "stderr", 2, "has no range: give --in LOW..HIGH, or write `let benefit = ... in LOW .. HIGH`"},
+		{[]string{"breakeven", "example:sourcing", "--vary", "licence", "--max-samples", "0"}, "stderr", 2, "--max-samples 0: give a number of at least 1"},
+	} {
+		code, out, errs := forkcast(t, "", c.args...)
+		got := map[string]string{"stdout": out, "stderr": errs}[c.stream]
+		if code != c.code || !strings.Contains(got, c.want) || strings.Contains(out+errs, "Options.") {
+			t.Errorf("%v: exit %d, stdout:\n%s\nstderr:\n%s\nwant exit %d and %q on %s", c.args, code, out, errs, c.code, c.want, c.stream)
+		}
+	}
+}

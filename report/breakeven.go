@@ -1,0 +1,228 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/forkcast/forkcast/compiled"
+	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/render"
+	"github.com/forkcast/forkcast/tree"
+	"github.com/shopspring/decimal"
+)
+
+// BreakevenOptions say how the breakeven report is worded.
+type BreakevenOptions struct {
+	// Names renames the library options that the search's notes mention.
+	Names OptionNames
+}
+
+// BreakevenReport is the report of a breakeven search: every value of the
+// input at which the best option of the watched decision changes, every
+// option's value there, and which option is best on each stretch of the
+// range.
+//
+// Its JSON shape (every figure an exact decimal string):
+//
+//	{"title", "objective", "currency",
+//	 "vary", "kind" ("parameter", "state" or "branch"), "what",
+//	 "current", "low", "high", "narrowed", "adjust",
+//	 "decision", "path": [...], "options": [...],
+//	 "switches": [{"at", "exact", "below", "above",
+//	               "values": [{"option", "value"}]}],
+//	 "segments": [{"from", "to", "best"}],
+//	 "notes": [...]}
+type BreakevenReport struct {
+	// Model is the compiled model searched (its values, not the file's,
+	// when inputs were set).
+	Model   *compiled.Model
+	Result  *eval.Breakeven
+	Options BreakevenOptions
+}
+
+// Breakeven is the report of be, a breakeven search of c
+// (eval.FindBreakeven).
+func Breakeven(c *compiled.Model, be *eval.Breakeven, opts BreakevenOptions) *BreakevenReport {
+	return &BreakevenReport{Model: c, Result: be, Options: opts}
+}
+
+// beFormat shows values of the varied input: a probability as a percent,
+// anything else as a plain number; an approximate one rounded, with ≈.
+type beFormat struct {
+	prob bool
+}
+
+func inputFormat(m *tree.Model, be *eval.Breakeven) beFormat {
+	if be.Vary.Kind != eval.VaryParam {
+		return beFormat{prob: true}
+	}
+	// A parameter written as a probability somewhere counts as one.
+	used := false
+	look := func(e tree.Expr) {
+		tree.Names(e, func(n *tree.Name) { used = used || n.Name == be.Vary.Name })
+	}
+	for _, u := range m.Uncertainties {
+		for _, s := range u.States {
+			look(s.Prob)
+		}
+	}
+	for _, t := range m.Tests {
+		for _, rd := range t.Readings {
+			for _, l := range rd.Given {
+				look(l.Prob)
+			}
+		}
+	}
+	tree.Walk(m.Root, func(n *tree.Node, _ int) bool {
+		for _, b := range n.Branches {
+			look(b.Prob)
+		}
+		return true
+	})
+	return beFormat{prob: used}
+}
+
+func (f beFormat) show(x decimal.Decimal, exact bool) string {
+	var s string
+	if f.prob {
+		s = render.Percent(x, 4)
+		if !x.Mul(decimal.NewFromInt(100)).Round(4).Equal(x.Mul(decimal.NewFromInt(100))) {
+			exact = false
+		}
+	} else {
+		r := x.Round(6)
+		if !r.Equal(x) {
+			exact = false
+		}
+		s = render.Grouped(r.String())
+	}
+	if !exact {
+		return "≈" + s
+	}
+	return s
+}
+
+// WriteText writes the search, each switch with every option's value
+// there, and the best option over the range.
+func (r *BreakevenReport) WriteText(out io.Writer) error {
+	w := newTextOut(out)
+	m, be := r.Model.Source(), r.Result
+	note := r.Options.Names.Apply
+	cur := m.Currency
+	money := func(d decimal.Decimal) string { return render.Money(d, cur) }
+	f := inputFormat(m, be)
+	if m.Title != "" {
+		w.ln(m.Title)
+	}
+	w.f("breakeven of %s, now %s, over %s .. %s\n", be.What, f.show(be.Current, true), f.show(be.Low, true), f.show(be.High, true))
+	w.f("watching decision %s", quoted(be.Decision.Display()))
+	if len(be.Path) > 0 {
+		w.f(" (after %s)", strings.Join(quotedAll(be.Path), " → "))
+	}
+	w.ln()
+	if be.Adjust != "" {
+		w.f("as it moves, %s\n", be.Adjust)
+	}
+	for _, n := range be.Notes {
+		w.f("note: %s\n", note(n))
+	}
+	w.ln()
+	name := be.Vary.String()
+	if len(be.Switches) == 0 {
+		w.f("No switch: %s is best over the whole range.\n", quoted(be.Options[be.Segments[0].Best]))
+	}
+	for _, sw := range be.Switches {
+		exact := "exact"
+		if !sw.Exact {
+			exact = fmt.Sprintf("approximate, to %d decimal places", compiled.DivisionScale)
+		}
+		w.f("Switch at %s = %s (%s): %s below, %s above\n", name, f.show(sw.At, sw.Exact), exact,
+			quoted(be.Options[sw.Below]), quoted(be.Options[sw.Above]))
+		var rows [][]string
+		for j, o := range be.Options {
+			rows = append(rows, []string{o, money(sw.Values[j])})
+		}
+		textTable(w, "    ", 3, []bool{false, true}, rows)
+	}
+	w.ln()
+	w.ln("Best option over the range")
+	var rows [][]string
+	for _, sg := range be.Segments {
+		rows = append(rows, []string{f.show(sg.From, true), "..", f.show(sg.To, true), "  " + be.Options[sg.Best]})
+	}
+	textTable(w, "  ", 1, []bool{true, false, true, false}, rows)
+	if len(be.Switches) > 0 {
+		w.ln("(at a switch the options tie; ties go to the first option in the model)")
+	}
+	return w.Flush()
+}
+
+type breakevenJSON struct {
+	Title     string        `json:"title,omitempty"`
+	Objective string        `json:"objective"`
+	Currency  string        `json:"currency,omitempty"`
+	Vary      string        `json:"vary"`
+	Kind      string        `json:"kind"`
+	What      string        `json:"what"`
+	Current   string        `json:"current"`
+	Low       string        `json:"low"`
+	High      string        `json:"high"`
+	Narrowed  bool          `json:"narrowed"`
+	Adjust    string        `json:"adjust,omitempty"`
+	Decision  string        `json:"decision"`
+	Path      []string      `json:"path"`
+	Options   []string      `json:"options"`
+	Switches  []switchJSON  `json:"switches"`
+	Segments  []segmentJSON `json:"segments"`
+	Notes     []string      `json:"notes"`
+}
+
+type switchJSON struct {
+	At     string        `json:"at"`
+	Exact  bool          `json:"exact"`
+	Below  string        `json:"below"`
+	Above  string        `json:"above"`
+	Values []optionValue `json:"values"`
+}
+
+type optionValue struct {
+	Option string `json:"option"`
+	Value  string `json:"value"`
+}
+
+type segmentJSON struct {
+	From string `json:"from"`
+	To   string `json:"to"`
+	Best string `json:"best"`
+}
+
+// WriteJSON writes the search in the shape described on BreakevenReport.
+func (r *BreakevenReport) WriteJSON(w io.Writer) error { return writeJSON(w, r.shape()) }
+
+// MarshalJSON is WriteJSON's document, compact.
+func (r *BreakevenReport) MarshalJSON() ([]byte, error) { return marshalJSON(r.WriteJSON) }
+
+func (r *BreakevenReport) shape() breakevenJSON {
+	m, be := r.Model.Source(), r.Result
+	kind := map[eval.VaryKind]string{eval.VaryParam: "parameter", eval.VaryState: "state", eval.VaryBranch: "branch"}[be.Vary.Kind]
+	out := breakevenJSON{Title: m.Title, Objective: m.Objective.String(), Currency: m.Currency,
+		Vary: be.Vary.String(), Kind: kind, What: be.What, Current: be.Current.String(),
+		Low: be.Low.String(), High: be.High.String(), Narrowed: be.Narrowed, Adjust: be.Adjust,
+		Decision: be.Decision.Display(), Path: append([]string{}, be.Path...), Options: be.Options,
+		Switches: []switchJSON{}, Segments: []segmentJSON{}, Notes: []string{}}
+	for _, n := range be.Notes {
+		out.Notes = append(out.Notes, r.Options.Names.Apply(n))
+	}
+	for _, sw := range be.Switches {
+		sj := switchJSON{At: sw.At.String(), Exact: sw.Exact, Below: be.Options[sw.Below], Above: be.Options[sw.Above]}
+		for j, o := range be.Options {
+			sj.Values = append(sj.Values, optionValue{Option: o, Value: sw.Values[j].String()})
+		}
+		out.Switches = append(out.Switches, sj)
+	}
+	for _, sg := range be.Segments {
+		out.Segments = append(out.Segments, segmentJSON{From: sg.From.String(), To: sg.To.String(), Best: be.Options[sg.Best]})
+	}
+	return out
+}
