@@ -281,6 +281,11 @@ func FindBreakeven(ctx context.Context, c *compiled.Model, opts BreakevenOptions
 	if err := s.decision(base, opts.At); err != nil {
 		return nil, err
 	}
+	if s.be.Vary.Kind == VaryParam {
+		if err := s.feasible(); err != nil {
+			return nil, err
+		}
+	}
 	return s.run(opts)
 }
 
@@ -294,6 +299,11 @@ type search struct {
 	settings   func(x decimal.Decimal) []compiled.Setting
 	node       int // compiled number of the decision watched
 	maxSamples int
+	// used is the rollbacks spent before this search by the analysis it
+	// is part of, counted against maxSamples; budgetOption names the
+	// option that raises the budget ("" for BreakevenOptions.MaxSamples).
+	used         int
+	budgetOption string
 }
 
 // sample is the watched decision at one value of the input: every option's
@@ -641,8 +651,12 @@ func pathText(s *Solved) string {
 
 // with is the compiled model with the input at x.
 func (s *search) with(x decimal.Decimal) (*compiled.Model, error) {
-	if s.be.Samples >= s.maxSamples {
-		return nil, &BudgetError{What: fmt.Sprintf("more than %d rollbacks", s.maxSamples), Option: "BreakevenOptions.MaxSamples"}
+	if s.used+s.be.Samples >= s.maxSamples {
+		opt := s.budgetOption
+		if opt == "" {
+			opt = "BreakevenOptions.MaxSamples"
+		}
+		return nil, &BudgetError{What: fmt.Sprintf("more than %d rollbacks", s.maxSamples), Option: opt}
 	}
 	if err := s.ctx.Err(); err != nil {
 		return nil, err
@@ -785,13 +799,10 @@ func (s *search) stuck(bad decimal.Decimal) error {
 	return &RequestError{Msg: msg}
 }
 
+// run searches the range (narrowed by feasible first, for a parameter)
+// for switches.
 func (s *search) run(opts BreakevenOptions) (*Breakeven, error) {
 	be := s.be
-	if be.Vary.Kind == VaryParam {
-		if err := s.feasible(); err != nil {
-			return nil, err
-		}
-	}
 	n := opts.Grid
 	if n <= 0 {
 		n = DefaultGrid
