@@ -118,3 +118,30 @@ func ExampleRiskProfiles() {
 	// No bid: mean 0, P(loss) 0, outcomes [{0 1}]
 	// "Bid low" is better than "Bid late" for every decision maker who prefers more to less (first-order stochastic dominance)
 }
+
+// With a risk tolerance of 50 a sure 40 beats 0 or 100 at even chances,
+// whose expected value is 50: the caution costs 10 in expected value.
+func ExampleSolveRiskAverse() {
+	n := func(s string) tree.Expr { return tree.Num(decimal.RequireFromString(s)) }
+	m := &tree.Model{Root: tree.Decision("Pick",
+		tree.Choice("Gamble", tree.NoCash, tree.Chance("Coin",
+			tree.Outcome("Heads", n("0.5"), tree.Gain(n("100")), nil),
+			tree.RestOutcome("Tails", tree.NoCash, nil))),
+		tree.Choice("Sure", tree.Gain(n("40")), nil),
+	)}
+	c, _ := compiled.Compile(m)
+	sol, _ := eval.Solve(c)
+	rs, err := eval.SolveRiskAverse(sol, decimal.NewFromInt(50))
+	if err != nil {
+		fmt.Println(err)
+		return
+	}
+	for j, b := range m.Root.Branches {
+		fmt.Printf("%s: EMV %s, CE %s, premium %s\n", b.Label, rs.Averse.Root.BranchValue(j), rs.BranchValue(0, j).Round(2), rs.Premium(0, j).Round(2))
+	}
+	fmt.Println("take:", m.Root.Branches[rs.Chosen(0)].Label, "at a cost of", rs.Cost())
+	// Output:
+	// Gamble: EMV 50, CE 28.31, premium 21.69
+	// Sure: EMV 40, CE 40, premium 0
+	// take: Sure at a cost of 10
+}

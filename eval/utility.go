@@ -160,8 +160,11 @@ func (rs *RiskSolution) figure(net float64) decimal.Decimal {
 }
 
 // roundSig is x to RiskDigits significant digits, as a decimal.
-func roundSig(x float64) decimal.Decimal {
-	d, err := decimal.NewFromString(strconv.FormatFloat(x, 'e', RiskDigits-1, 64))
+func roundSig(x float64) decimal.Decimal { return roundDigits(x, RiskDigits) }
+
+// roundDigits is x to n significant digits, as a decimal.
+func roundDigits(x float64, n int) decimal.Decimal {
+	d, err := decimal.NewFromString(strconv.FormatFloat(x, 'e', n-1, 64))
 	if err != nil {
 		return decimal.Zero // not reached: the fold keeps every figure finite
 	}

@@ -1,6 +1,7 @@
 package eval
 
 import (
+	"context"
 	"errors"
 	"math"
 	"math/rand"
@@ -253,5 +254,56 @@ func TestRiskAversePolicy(t *testing.T) {
 		if !errors.As(err, &re) {
 			t.Errorf("R = %s: err %v, want a RequestError", bad, err)
 		}
+	}
+}
+
+// The tolerance at which a sure 40 and 0-or-100 at even chances are worth
+// the same: −R ln((1 + e^(−100/R))/2) = 40 at R = 121.630347633149…
+// (solved with 30-digit arithmetic, mpmath's findroot). Below it the sure
+// thing is taken, above it the gamble (the expected-value choice).
+func TestToleranceBreakeven(t *testing.T) {
+	m := &tree.Model{Root: tree.Decision("Pick",
+		lotteryOption("Gamble", tree.Gain, "0:0.5", "100:0.5"), lotteryOption("Sure", tree.Gain, "40"))}
+	sol := mustSolve(t, m)
+	tb, err := FindToleranceBreakeven(context.Background(), sol, ToleranceOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(tb.Switches) != 1 || tb.Neutral != 0 {
+		t.Fatalf("switches %+v, neutral %d", tb.Switches, tb.Neutral)
+	}
+	sw := tb.Switches[0]
+	if sw.Below != 1 || sw.Above != 0 || !relClose(sw.At.InexactFloat64(), 121.630347633149, 1e-11) {
+		t.Errorf("switch %+v", sw)
+	}
+	if !relClose(sw.CE[0].InexactFloat64(), 40, 1e-10) || !sw.CE[1].Equal(dec("40")) {
+		t.Errorf("CEs at the switch %v", sw.CE)
+	}
+	// The default range: the payoffs span 100, so 0.1 .. 100,000.
+	if !tb.Low.Equal(dec("0.1")) || !tb.High.Equal(dec("100000")) || len(tb.Segments) != 2 {
+		t.Errorf("range %s..%s, segments %+v", tb.Low, tb.High, tb.Segments)
+	}
+	// A range with no switch in it.
+	lo, hi := dec("200"), dec("1000")
+	tb, err = FindToleranceBreakeven(context.Background(), sol, ToleranceOptions{Low: &lo, High: &hi})
+	if err != nil || len(tb.Switches) != 0 || tb.Segments[0].Best != 0 {
+		t.Fatalf("200..1000: %+v, %v", tb, err)
+	}
+	// Bad requests and the budget.
+	zero := dec("0")
+	for _, o := range []ToleranceOptions{{Low: &zero, High: &hi}, {Low: &hi, High: &lo}, {At: "Nowhere"}} {
+		var re *RequestError
+		if _, err := FindToleranceBreakeven(context.Background(), sol, o); !errors.As(err, &re) {
+			t.Errorf("%+v: err %v, want a RequestError", o, err)
+		}
+	}
+	var be *BudgetError
+	if _, err := FindToleranceBreakeven(context.Background(), sol, ToleranceOptions{MaxSamples: 10}); !errors.As(err, &be) {
+		t.Errorf("err %v, want a BudgetError", err)
+	}
+	certain := &tree.Model{Root: tree.Decision("Pick", lotteryOption("A", tree.Gain, "1"), lotteryOption("B", tree.Gain, "2"))}
+	var re *RequestError
+	if _, err := FindToleranceBreakeven(context.Background(), mustSolve(t, certain), ToleranceOptions{}); !errors.As(err, &re) {
+		t.Errorf("certain options: err %v, want a RequestError", err)
 	}
 }
