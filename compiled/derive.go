@@ -33,14 +33,26 @@ import (
 // frame of its own ("restart"): its masses start again as if the branch had
 // been taken (a known state stays known; a reading of probability 0 leaves
 // the prior as it was), and its T adds nothing to the node above it.
+//
+// A very deep tree would make masses of thousands of digits (a chain of
+// 100,000 chance nodes of 30% has masses down to 0.3^100000). Where a mass
+// would need more than MaxMassPlaces decimal places, its subtree too gets a
+// frame of its own, its masses starting again near 1, and adds rho × its T
+// to the node above, where rho is the mass it would have had (and, below a
+// test, the joint probabilities are rescaled to sum to 1, rounded at
+// DivisionScale places). The rollback is then no longer exact, and the
+// model says so; no figure grows without bound.
 type derived struct {
 	mass    []exact.Num
-	restart []bool // nil when no subtree has a frame of its own
-	scale   int32  // E and T are integers: value × 10^scale
+	restart []bool      // nil when no subtree has a frame of its own
+	rho     []exact.Num // per frame start: what its T is worth above it; nil when every frame start is a branch of probability 0
+	scale   int32       // E and T are integers: value × 10^scale
 	e       []exact.Wide
 	eBig    []*big.Int // set when E does not fit in 128 bits at the scale
 	exact   bool
 
+	rhoOnce sync.Once
+	rhoBig  []*big.Int
 	bigOnce sync.Once
 	bigE    []*big.Int
 	fltOnce sync.Once
@@ -56,6 +68,12 @@ type arith[T any] interface {
 	isZero(a T) bool
 	one() T
 	zero() T
+	// tooLong reports whether a mass needs a frame of its own to stay
+	// bounded; scale(a, b) is a / b for a frame's rho and normalize makes a
+	// joint vector sum to 1, both rounded.
+	tooLong(a T) bool
+	scale(a, b T) T
+	normalize(j []T) []T
 }
 
 type exactArith struct{ pool *exact.Pool }
@@ -65,14 +83,43 @@ func (a exactArith) add(x, y exact.Num) exact.Num { return a.pool.Add(x, y) }
 func (exactArith) isZero(x exact.Num) bool        { return x.IsZero() }
 func (exactArith) one() exact.Num                 { return exact.One }
 func (exactArith) zero() exact.Num                { return exact.Zero }
+func (a exactArith) tooLong(x exact.Num) bool     { return x.IsBig() && a.pool.Places(x) > MaxMassPlaces }
+func (a exactArith) scale(x, y exact.Num) exact.Num {
+	q, _ := a.pool.Div(x, y, a.pool.Places(x)+DivisionScale)
+	return q
+}
+func (a exactArith) normalize(j []exact.Num) []exact.Num {
+	sum := exact.Zero
+	for _, x := range j {
+		sum = a.pool.Add(sum, x)
+	}
+	out := make([]exact.Num, len(j))
+	for i, x := range j {
+		out[i], _ = a.pool.Div(x, sum, DivisionScale)
+	}
+	return out
+}
 
 type floatArith struct{}
 
-func (floatArith) mul(x, y float64) float64 { return x * y }
-func (floatArith) add(x, y float64) float64 { return x + y }
-func (floatArith) isZero(x float64) bool    { return x == 0 }
-func (floatArith) one() float64             { return 1 }
-func (floatArith) zero() float64            { return 0 }
+func (floatArith) mul(x, y float64) float64   { return x * y }
+func (floatArith) add(x, y float64) float64   { return x + y }
+func (floatArith) isZero(x float64) bool      { return x == 0 }
+func (floatArith) one() float64               { return 1 }
+func (floatArith) zero() float64              { return 0 }
+func (floatArith) tooLong(float64) bool       { return false }
+func (floatArith) scale(x, y float64) float64 { return x / y }
+func (floatArith) normalize(j []float64) []float64 {
+	sum := 0.0
+	for _, x := range j {
+		sum += x
+	}
+	out := make([]float64, len(j))
+	for i, x := range j {
+		out[i] = x / sum
+	}
+	return out
+}
 
 // ctx is what is known about the named uncertainties on the way to a
 // node: for each one seen, the joint probability of each state with the
@@ -134,7 +181,7 @@ func prodOf[T any](ar arith[T], x *ctx[T]) T {
 // comment on derived) from the probabilities of plain chance branches, the
 // priors and the likelihoods. zeroReading is called for a test reading
 // that cannot occur where it stands (k, the node under it; t, the test).
-func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, zeroReading func(k int, t int32)) (mass []T, restart []bool) {
+func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, zeroReading func(k int, t int32)) (mass []T, restart []bool, rho []T) {
 	n := len(sh.kind)
 	mass = make([]T, n)
 	mass[0] = ar.one()
@@ -151,6 +198,33 @@ func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, z
 			restart = make([]bool, n)
 		}
 		restart[k] = true
+	}
+	// bound gives node k a frame of its own when its mass grew too long.
+	bound := func(k int) {
+		if !ar.tooLong(mass[k]) {
+			return
+		}
+		was := mass[k]
+		mass[k] = ar.one()
+		if named {
+			plain[k] = ar.one()
+			if x := ctxs[k]; x != nil {
+				y := &ctx[T]{}
+				for i, u := range x.u {
+					y = with(ar, y, u, ar.normalize(x.j[i]))
+				}
+				ctxs[k] = y
+				mass[k] = y.prod
+			}
+		}
+		markRestart(k)
+		if rho == nil {
+			rho = make([]T, n)
+			for i := range rho {
+				rho[i] = ar.zero()
+			}
+		}
+		rho[k] = ar.scale(was, mass[k])
 	}
 	for i := 0; i < n; i++ {
 		from, to := int(sh.first[i]), int(sh.first[i+1])
@@ -230,8 +304,13 @@ func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, z
 				mass[k] = ar.mul(plain[k], x.prod)
 			}
 		}
+		for k := from; k < to; k++ {
+			if restart == nil || !restart[k] {
+				bound(k)
+			}
+		}
 	}
-	return mass, restart
+	return mass, restart, rho
 }
 
 // derive computes the masses and E of c's figures. With check it also
@@ -252,7 +331,8 @@ func (c *Model) derive(check bool) (*derived, tree.Diagnostics) {
 		}
 	}
 	d := &derived{exact: true}
-	d.mass, d.restart = masses[exact.Num](c.sh, exactArith{c.pool}, c.prob, c.prior, c.lik, zero)
+	d.mass, d.restart, d.rho = masses[exact.Num](c.sh, exactArith{c.pool}, c.prob, c.prior, c.lik, zero)
+	d.exact = d.rho == nil
 	if check && c.sh.unc != nil {
 		for i := range c.sh.kind {
 			if c.sh.kind[i] == tree.KindChance && c.sh.unc[i] >= 0 {
@@ -318,10 +398,14 @@ func (c *Model) probOf(d *derived, k int) exact.Num {
 	if c.sh.unc == nil || c.sh.unc[p] < 0 {
 		return c.prob[k]
 	}
+	m := d.mass[k]
 	if d.restart != nil && d.restart[k] {
-		return exact.Zero
+		if d.rho == nil || d.rho[k].IsZero() {
+			return exact.Zero // never reached
+		}
+		m = c.pool.Mul(d.rho[k], m) // its mass in the frame above
 	}
-	q, _ := c.pool.Div(d.mass[k], d.mass[p], DivisionScale)
+	q, _ := c.pool.Div(m, d.mass[p], DivisionScale)
 	return q
 }
 

@@ -103,6 +103,7 @@ type Floats struct {
 	tcost   []float64
 	mass    []float64
 	restart []bool
+	rho     []float64
 	e, t    []float64
 	best    []int32
 	// order lists the figures the random inputs reach, in evaluation
@@ -190,7 +191,7 @@ func (c *Model) NewFloats() *Floats {
 			f.probs = true
 		}
 	}
-	f.mass, f.restart = masses[float64](c.sh, floatArith{}, f.prob, f.prior, f.lik, nil)
+	f.mass, f.restart, f.rho = masses[float64](c.sh, floatArith{}, f.prob, f.prior, f.lik, nil)
 	f.weigh()
 	return f
 }
@@ -230,7 +231,7 @@ func (f *Floats) Draw(x []float64) error {
 		if err := f.rests(); err != nil {
 			return err
 		}
-		f.mass, f.restart = masses[float64](c.sh, floatArith{}, f.prob, f.prior, f.lik, nil)
+		f.mass, f.restart, f.rho = masses[float64](c.sh, floatArith{}, f.prob, f.prior, f.lik, nil)
 	}
 	f.weigh()
 	return nil
@@ -297,7 +298,7 @@ func (f *Floats) weigh() {
 // Rollback rolls the float64 copy back and returns the root's expected
 // value (net).
 func (f *Floats) Rollback() float64 {
-	rollback[float64, floatOps](f.c.sh, f.restart, f.e, f.t, f.best, nil)
+	rollback[float64, float64, floatOps](f.c.sh, f.restart, f.rho, f.e, f.t, f.best, nil)
 	return f.t[0]
 }
 

@@ -13,10 +13,13 @@ import (
 
 // ops is what the kernel needs of a number type T: a zero-size type whose
 // methods do T's arithmetic, so that T itself may be a plain float64.
-type ops[T any] interface {
+type ops[T, R any] interface {
 	add(a, b T) (T, bool) // ok is false on overflow
 	less(a, b T) bool
 	equal(a, b T) bool
+	// addScaled is a + t × r, for a frame's T weighted by its rho; ok is
+	// false when the type cannot do it (then the big integers can).
+	addScaled(a, t T, r R) (T, bool)
 }
 
 type wideOps struct{}
@@ -24,12 +27,18 @@ type wideOps struct{}
 func (wideOps) add(a, b exact.Wide) (exact.Wide, bool) { return a.Add(b) }
 func (wideOps) less(a, b exact.Wide) bool              { return a.Less(b) }
 func (wideOps) equal(a, b exact.Wide) bool             { return a == b }
+func (wideOps) addScaled(a, _ exact.Wide, _ struct{}) (exact.Wide, bool) {
+	return a, false
+}
 
 type floatOps struct{}
 
 func (floatOps) add(a, b float64) (float64, bool) { return a + b, true }
 func (floatOps) less(a, b float64) bool           { return a < b }
 func (floatOps) equal(a, b float64) bool          { return a == b }
+func (floatOps) addScaled(a, t, r float64) (float64, bool) {
+	return a + t*r, true
+}
 
 type bigOps struct{}
 
@@ -37,15 +46,35 @@ func (bigOps) add(a, b *big.Int) (*big.Int, bool) { return new(big.Int).Add(a, b
 func (bigOps) less(a, b *big.Int) bool            { return a.Cmp(b) < 0 }
 func (bigOps) equal(a, b *big.Int) bool           { return a.Cmp(b) == 0 }
 
+// rhoScale is the scale of a rho as a big integer: rho × 10^rhoScale.
+const rhoScale = MaxMassPlaces + 2*DivisionScale
+
+var rhoUnit = new(big.Int).Exp(big.NewInt(10), big.NewInt(rhoScale), nil)
+
+// addScaled is a + t × r / 10^rhoScale, rounded half away from zero.
+func (bigOps) addScaled(a, t, r *big.Int) (*big.Int, bool) {
+	p := new(big.Int).Mul(t, r)
+	q, m := new(big.Int).QuoRem(p, rhoUnit, new(big.Int))
+	if m.CmpAbs(new(big.Int).Rsh(rhoUnit, 1)) >= 0 {
+		if p.Sign() < 0 {
+			q.Sub(q, big.NewInt(1))
+		} else {
+			q.Add(q, big.NewInt(1))
+		}
+	}
+	return q.Add(q, a), true
+}
+
 // tiedBit marks, in best, a decision with more than one optimal branch.
 const tiedBit = 1 << 30
 
 // rollback fills t from e bottom-up: a chance node's T is its E plus its
-// children's T (a child in a frame of its own adds nothing), a decision's
+// children's T (a child in a frame of its own adds its rho times its T, or
+// nothing when rho is nil or 0: a branch of probability 0), a decision's
 // its E plus the largest child T (or the child policy names, when policy is
 // not nil), an end's its E. best gets each decision's first optimal branch
 // (tiedBit set when another ties with it). ok is false on overflow.
-func rollback[T any, O ops[T]](sh *shape, restart []bool, e, t []T, best []int32, policy []int32) bool {
+func rollback[T, R any, O ops[T, R]](sh *shape, restart []bool, rho []R, e, t []T, best []int32, policy []int32) bool {
 	var o O
 	ok := true
 	first, kind := sh.first, sh.kind
@@ -56,6 +85,12 @@ func rollback[T any, O ops[T]](sh *shape, restart []bool, e, t []T, best []int32
 		case tree.KindChance:
 			for k := from; k < to; k++ {
 				if restart != nil && restart[k] {
+					if rho != nil {
+						var good bool
+						if acc, good = o.addScaled(acc, t[k], rho[k]); !good {
+							ok = false
+						}
+					}
 					continue
 				}
 				var good bool

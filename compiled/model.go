@@ -309,6 +309,27 @@ func (c *Model) Prob(k int) decimal.Decimal { return c.pool.Dec(c.probOf(c.d, k)
 // Unreachable reports true.
 func (c *Model) Mass(k int) decimal.Decimal { return c.pool.Dec(c.d.mass[k]) }
 
-// FrameStart reports whether node k is reached only through a branch of
-// probability 0 just above it: its subtree's masses start again there.
+// FrameStart reports whether node k's subtree is rolled back in a frame of
+// its own: below a branch of probability 0, or where masses would grow too
+// long (see FrameWeight). Its masses start again there.
 func (c *Model) FrameStart(k int) bool { return c.d.restart != nil && c.d.restart[k] }
+
+// FrameWeight is, for a frame start k, what a mass in its frame is worth in
+// the frame above: 0 below a branch of probability 0 (Unreachable), else
+// the mass k would have had there (rounded; the model is then not exact).
+// It is 1 for any other node.
+func (c *Model) FrameWeight(k int) decimal.Decimal {
+	if !c.FrameStart(k) {
+		return decimal.NewFromInt(1)
+	}
+	if c.d.rho == nil {
+		return decimal.Zero
+	}
+	return c.pool.Dec(c.d.rho[k])
+}
+
+// Unreachable reports whether node k lies just below a branch of
+// probability 0.
+func (c *Model) Unreachable(k int) bool {
+	return c.FrameStart(k) && (c.d.rho == nil || c.d.rho[k].IsZero())
+}

@@ -15,6 +15,12 @@ import (
 // a rounded figure says so (Model.Exact).
 const DivisionScale = 50
 
+// MaxMassPlaces is the most decimal places a node's mass may have before
+// its subtree is rolled back in a frame of its own (see derive.go): a tree
+// as deep as 150 levels of probabilities in hundredths stays exact; deeper
+// ones are rounded, and say so.
+const MaxMassPlaces = 300
+
 // MaxDigits is the most significant digits a figure may have, and the
 // largest power of ten it may reach (10^MaxDigits; decimal places are
 // limited to twice as many). Figures in practice have a few dozen digits at

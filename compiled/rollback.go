@@ -48,18 +48,18 @@ func (c *Model) rollbackInto(dst *Rollback, policy []int32) *Rollback {
 	} else {
 		r.best = make([]int32, n)
 	}
-	if d.e != nil {
+	if d.e != nil && d.rho == nil {
 		if len(r.wide) != n {
 			r.wide = make([]exact.Wide, n)
 		}
-		if rollback[exact.Wide, wideOps](c.sh, d.restart, d.e, r.wide, r.best, policy) {
+		if rollback[exact.Wide, struct{}, wideOps](c.sh, d.restart, nil, d.e, r.wide, r.best, policy) {
 			r.bigs = nil
 			return r
 		}
 	}
 	r.wide = nil
 	r.bigs = make([]*big.Int, n)
-	rollback[*big.Int, bigOps](c.sh, d.restart, c.bigE(), r.bigs, r.best, policy)
+	rollback[*big.Int, *big.Int, bigOps](c.sh, d.restart, c.bigRho(), c.bigE(), r.bigs, r.best, policy)
 	return r
 }
 
@@ -123,6 +123,12 @@ func (r *Rollback) total(i int) (decimal.Decimal, bool) {
 	m := c.d.mass[i]
 	t := r.t(i)
 	if c.pool.Equal(m, exact.One) {
+		if c.d.scale > DivisionScale {
+			// Figures this long come from very deep trees or long
+			// divisions: shown at the division's precision.
+			q := t.Round(DivisionScale)
+			return q, q.Equal(t)
+		}
 		return t, true
 	}
 	md := c.pool.Dec(m)
@@ -217,7 +223,7 @@ func (c *Model) floatE() []float64 {
 // root's expected value (net). t and best are work space of Len() entries
 // each, reused across calls; best receives each decision's choice.
 func (c *Model) RollbackFloat(t []float64, best []int32) float64 {
-	rollback[float64, floatOps](c.sh, c.d.restart, c.floatE(), t, best, nil)
+	rollback[float64, float64, floatOps](c.sh, c.d.restart, c.floatRho(), c.floatE(), t, best, nil)
 	return t[0]
 }
 
@@ -225,3 +231,32 @@ func (c *Model) RollbackFloat(t []float64, best []int32) float64 {
 // into it (cash plus the value from i on). Sums and differences of T
 // between siblings are exact; dividing by the mass gives values.
 func (r *Rollback) Weighted(i int) decimal.Decimal { return r.t(i) }
+
+// bigRho is each frame's rho as a big integer at rhoScale (nil when no
+// frame has one), made once when first needed.
+func (c *Model) bigRho() []*big.Int {
+	d := c.d
+	if d.rho == nil {
+		return nil
+	}
+	d.rhoOnce.Do(func() {
+		d.rhoBig = make([]*big.Int, len(d.rho))
+		for i, r := range d.rho {
+			d.rhoBig[i], _ = c.pool.BigOf(r, rhoScale)
+		}
+	})
+	return d.rhoBig
+}
+
+// floatRho is each frame's rho in float64 (nil when no frame has one).
+func (c *Model) floatRho() []float64 {
+	d := c.d
+	if d.rho == nil {
+		return nil
+	}
+	out := make([]float64, len(d.rho))
+	for i, r := range d.rho {
+		out[i] = c.pool.Float64(r)
+	}
+	return out
+}

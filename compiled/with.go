@@ -409,7 +409,7 @@ func sortedPairs(m map[[2]int32]bool) [][2]int32 {
 // reweigh derives E again after money changed and no probability did: the
 // masses are shared with the model before the change.
 func (c *Model) reweigh(old *derived, nodes []int32) *derived {
-	d := &derived{mass: old.mass, restart: old.restart, exact: old.exact}
+	d := &derived{mass: old.mass, restart: old.restart, rho: old.rho, exact: old.exact}
 	if nodes == nil || old.e == nil {
 		c.weigh(d)
 		return d

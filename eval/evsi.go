@@ -325,7 +325,7 @@ func (v *voi) site(ds, node *Solved, u int, scenModels []*compiled.Model, scen [
 // probability 0 lies on the way to it.
 func reached(cs *compiled.Model, i int) bool {
 	for ; i >= 0; i = cs.Parent(i) {
-		if cs.FrameStart(i) {
+		if cs.Unreachable(i) {
 			return false
 		}
 	}

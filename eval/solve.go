@@ -297,23 +297,23 @@ func (sol *Solution) Ends() []EndPoint {
 	c := sol.Compiled
 	on := sol.Reachable()
 	pay := make([]decimal.Decimal, len(sol.nodes))
-	never := make([]bool, len(sol.nodes)) // below a branch of probability 0
+	weight := make([]decimal.Decimal, len(sol.nodes)) // what a mass in the node's frame is worth at the root
 	var out []EndPoint
 	for x := range sol.nodes {
 		s := &sol.nodes[x]
 		i := int(s.i)
 		own := c.Cash(i).Add(c.Payoff(i)).Sub(c.TestCostAt(i))
+		weight[x] = decimal.NewFromInt(1)
 		if s.parent >= 0 {
 			own = own.Add(pay[s.parent])
-			never[x] = never[s.parent]
+			weight[x] = weight[s.parent]
 		}
-		never[x] = never[x] || c.FrameStart(i)
+		if c.FrameStart(i) {
+			weight[x] = weight[x].Mul(c.FrameWeight(i))
+		}
 		pay[x] = own
 		if s.Node.Kind == tree.KindEnd {
-			p := c.Mass(i)
-			if never[x] {
-				p = decimal.Zero
-			}
+			p := c.Mass(i).Mul(weight[x])
 			out = append(out, EndPoint{Solved: s, Prob: p, Payoff: sol.obj().Figure(own), OnPolicy: on[x]})
 		}
 	}

@@ -416,7 +416,7 @@ func (v *voi) clairvoyant(cs *compiled.Model, r *compiled.Rollback, plain []bool
 		return val[k].shift(cs.Cash(k))
 	}
 	for i := n - 1; i >= 0; i-- {
-		if !rel[i] || cs.FrameStart(i) {
+		if !rel[i] || cs.Unreachable(i) {
 			continue
 		}
 		if err := v.spend(1, "the total EVPI"); err != nil {
