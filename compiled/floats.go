@@ -298,7 +298,7 @@ func (f *Floats) weigh() {
 // Rollback rolls the float64 copy back and returns the root's expected
 // value (net).
 func (f *Floats) Rollback() float64 {
-	rollback[float64, float64, floatOps](f.c.sh, f.restart, f.rho, f.e, f.t, f.best, nil)
+	rollback[float64, float64, floatOps](floatOps{}, f.c.sh, f.restart, f.rho, f.e, f.t, f.best, nil)
 	return f.t[0]
 }
 

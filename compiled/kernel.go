@@ -40,11 +40,42 @@ func (floatOps) addScaled(a, t, r float64) (float64, bool) {
 	return a + t*r, true
 }
 
-type bigOps struct{}
+// bigOps compares exactly when tol is nil; in a model with rounded figures
+// two values closer than the rounding could move them (tol, in T's units,
+// or 10^-(DivisionScale-10) of their size) are equal: a tie, never a
+// choice made by rounding noise.
+type bigOps struct{ tol *big.Int }
 
 func (bigOps) add(a, b *big.Int) (*big.Int, bool) { return new(big.Int).Add(a, b), true }
-func (bigOps) less(a, b *big.Int) bool            { return a.Cmp(b) < 0 }
-func (bigOps) equal(a, b *big.Int) bool           { return a.Cmp(b) == 0 }
+func (o bigOps) less(a, b *big.Int) bool {
+	if o.tol == nil {
+		return a.Cmp(b) < 0
+	}
+	return new(big.Int).Sub(b, a).Cmp(o.slack(a, b)) > 0
+}
+func (o bigOps) equal(a, b *big.Int) bool {
+	if o.tol == nil {
+		return a.Cmp(b) == 0
+	}
+	d := new(big.Int).Sub(a, b)
+	return d.CmpAbs(o.slack(a, b)) <= 0
+}
+
+// slack is how far apart a and b may be and still count as equal.
+func (o bigOps) slack(a, b *big.Int) *big.Int {
+	s := new(big.Int).Abs(a)
+	if b.CmpAbs(s) > 0 {
+		s.Abs(b)
+	}
+	s.Quo(s, relTol)
+	if s.Cmp(o.tol) < 0 {
+		return o.tol
+	}
+	return s
+}
+
+// relTol is the relative part of a tolerant comparison: 10^(DivisionScale-10).
+var relTol = new(big.Int).Exp(big.NewInt(10), big.NewInt(DivisionScale-10), nil)
 
 // rhoScale is the scale of a rho as a big integer: rho × 10^rhoScale.
 const rhoScale = MaxMassPlaces + 2*DivisionScale
@@ -74,8 +105,7 @@ const tiedBit = 1 << 30
 // its E plus the largest child T (or the child policy names, when policy is
 // not nil), an end's its E. best gets each decision's first optimal branch
 // (tiedBit set when another ties with it). ok is false on overflow.
-func rollback[T, R any, O ops[T, R]](sh *shape, restart []bool, rho []R, e, t []T, best []int32, policy []int32) bool {
-	var o O
+func rollback[T, R any, O ops[T, R]](o O, sh *shape, restart []bool, rho []R, e, t []T, best []int32, policy []int32) bool {
 	ok := true
 	first, kind := sh.first, sh.kind
 	for i := len(kind) - 1; i >= 0; i-- {

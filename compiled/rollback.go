@@ -19,6 +19,7 @@ type Rollback struct {
 	bigs   []*big.Int   // as big integers when they outgrew 128 bits
 	best   []int32      // per decision: first optimal branch, tiedBit when tied
 	follow bool         // the decisions follow a given policy
+	ops    bigOps       // how bigs compare (tolerantly in a model with rounded figures)
 }
 
 // Rollback rolls c back: every decision takes its best branch (the first in
@@ -48,18 +49,28 @@ func (c *Model) rollbackInto(dst *Rollback, policy []int32) *Rollback {
 	} else {
 		r.best = make([]int32, n)
 	}
-	if d.e != nil && d.rho == nil {
+	if d.e != nil && c.Exact() {
 		if len(r.wide) != n {
 			r.wide = make([]exact.Wide, n)
 		}
-		if rollback[exact.Wide, struct{}, wideOps](c.sh, d.restart, nil, d.e, r.wide, r.best, policy) {
+		if rollback[exact.Wide, struct{}, wideOps](wideOps{}, c.sh, d.restart, nil, d.e, r.wide, r.best, policy) {
 			r.bigs = nil
 			return r
 		}
 	}
 	r.wide = nil
 	r.bigs = make([]*big.Int, n)
-	rollback[*big.Int, *big.Int, bigOps](c.sh, d.restart, c.bigRho(), c.bigE(), r.bigs, r.best, policy)
+	o := bigOps{}
+	if !c.Exact() {
+		// An absolute floor of 10^-(DivisionScale-5) in value at mass 1.
+		if k := int64(d.scale) - (DivisionScale - 5); k > 0 {
+			o.tol = new(big.Int).Exp(big.NewInt(10), big.NewInt(k), nil)
+		} else {
+			o.tol = big.NewInt(1)
+		}
+	}
+	r.ops = o
+	rollback[*big.Int, *big.Int, bigOps](o, c.sh, d.restart, c.bigRho(), c.bigE(), r.bigs, r.best, policy)
 	return r
 }
 
@@ -96,13 +107,21 @@ func (r *Rollback) t(i int) decimal.Decimal {
 	return decimal.NewFromBigInt(r.bigs[i], -r.c.d.scale)
 }
 
-// cmpT compares the T of two nodes: exact, and meaningful between
-// siblings under a decision (they share its mass).
+// cmpT compares the T of two nodes: meaningful between siblings under a
+// decision (they share its mass); exact, except that in a model with
+// rounded figures values closer than the rounding could move them are
+// equal.
 func (r *Rollback) cmpT(a, b int) int {
 	if r.wide != nil {
 		return r.wide[a].Cmp(r.wide[b])
 	}
-	return r.bigs[a].Cmp(r.bigs[b])
+	switch x, y := r.bigs[a], r.bigs[b]; {
+	case r.ops.equal(x, y):
+		return 0
+	case r.ops.less(x, y):
+		return -1
+	}
+	return 1
 }
 
 // Value is the expected value from node i on (net value; the cash on the
@@ -223,7 +242,7 @@ func (c *Model) floatE() []float64 {
 // root's expected value (net). t and best are work space of Len() entries
 // each, reused across calls; best receives each decision's choice.
 func (c *Model) RollbackFloat(t []float64, best []int32) float64 {
-	rollback[float64, float64, floatOps](c.sh, c.d.restart, c.floatRho(), c.floatE(), t, best, nil)
+	rollback[float64, float64, floatOps](floatOps{}, c.sh, c.d.restart, c.floatRho(), c.floatE(), t, best, nil)
 	return t[0]
 }
 

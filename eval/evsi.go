@@ -240,6 +240,12 @@ func (v *voi) evsi(name string) (*TestValue, error) {
 		site.TestCost = c.TestCost(ti)
 		site.NetGain = gainOf(obj, site.WithAfterCost, site.Without)
 		site.MostToPay = gainOf(obj, site.WithBeforeCost, site.Without)
+		if !c.Exact() {
+			// Rounded figures leave noise far below a cent: a difference
+			// that small is no difference, not a reason to test.
+			scale := site.Without.Abs()
+			site.EVSI, site.NetGain, site.MostToPay, site.EVPI = noise(site.EVSI, scale), noise(site.NetGain, scale), noise(site.MostToPay, scale), noise(site.EVPI, scale)
+		}
 		if site.MostToPay.IsNegative() {
 			site.MostToPay = decimal.Zero
 		}
@@ -411,4 +417,16 @@ func ValueOfInformation(ctx context.Context, sol *Solution, opts VOIOptions) (*I
 		info.Tests = append(info.Tests, tv)
 	}
 	return info, nil
+}
+
+// noise is x, or 0 when x is smaller than the rounding of a model's figures
+// could make it (10^-(DivisionScale-10) of scale, or of 1).
+func noise(x, scale decimal.Decimal) decimal.Decimal {
+	if scale.LessThan(one) {
+		scale = one
+	}
+	if x.Abs().LessThanOrEqual(scale.Shift(-(compiled.DivisionScale - 10))) {
+		return decimal.Zero
+	}
+	return x
 }
