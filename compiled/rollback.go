@@ -142,9 +142,10 @@ func (r *Rollback) total(i int) (decimal.Decimal, bool) {
 	m := c.d.mass[i]
 	t := r.t(i)
 	if c.pool.Equal(m, exact.One) {
-		if c.d.scale > DivisionScale {
-			// Figures this long come from very deep trees or long
-			// divisions: shown at the division's precision.
+		if c.d.scale > DivisionScale && !c.Exact() {
+			// Rounded figures (very deep trees, long divisions): the value
+			// is shown at the division's precision, not at the length the
+			// rounding left.
 			q := t.Round(DivisionScale)
 			return q, q.Equal(t)
 		}
