@@ -256,6 +256,9 @@ type Input struct {
 	// Dist is the distribution the input is written as (`let x =
 	// pert(...)`), nil for a plain figure; its Value is then the mean.
 	Dist dist.Distribution
+	// Fixed is true when With gave it a value: it no longer follows its
+	// expression.
+	Fixed bool
 }
 
 // Inputs lists the inputs in definition order.
@@ -279,7 +282,8 @@ func (c *Model) InputNamed(name string) (Input, bool) {
 
 func (c *Model) input(slot int) Input {
 	p := c.sh.params[slot]
-	in := Input{Name: p.Name, Param: p, Value: c.pool.Dec(c.in[slot]), Exact: c.inInexact == nil || !c.inInexact[slot]}
+	in := Input{Name: p.Name, Param: p, Value: c.pool.Dec(c.in[slot]), Exact: c.inInexact == nil || !c.inInexact[slot],
+		Fixed: c.fixed != nil && c.fixed[slot]}
 	for _, src := range c.sh.sources {
 		if src.let == int32(slot) {
 			in.Dist, _, _, _ = meanOf(functions[src.call.Func], src.prog.args(c.pool, c.in))
@@ -301,6 +305,15 @@ func (c *Model) input(slot int) Input {
 // DivisionScale places when that is no finite decimal); 0 under a decision
 // and 1 at the root.
 func (c *Model) Prob(k int) decimal.Decimal { return c.pool.Dec(c.probOf(c.d, k)) }
+
+// Pinned reports whether With gave the probability of the branch into
+// node k a value of its own (BranchTarget): it no longer follows its
+// expression, nor takes the rest.
+func (c *Model) Pinned(k int) bool { return c.pinned[[2]int32{-1, int32(k)}] }
+
+// PriorPinned reports whether With gave the prior of state s of
+// uncertainty u a value of its own (StateTarget).
+func (c *Model) PriorPinned(u, s int) bool { return c.pinned[[2]int32{int32(u), int32(s)}] }
 
 // Mass is the probability of reaching node k from the root, counting chance
 // outcomes only (decisions are taken as the path takes them). For a node

@@ -10,6 +10,7 @@ import (
 	"io"
 
 	"github.com/forkcast/forkcast/compiled"
+	"github.com/forkcast/forkcast/interchange"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
@@ -320,20 +321,19 @@ func (sol *Solution) Ends() []EndPoint {
 	return out
 }
 
-// solvedView is what tree.WriteJSON needs of a solution.
-type solvedView struct {
-	*compiled.Model
-	sol *Solution
-}
+// solvedView is what interchange.Write needs of a solution.
+type solvedView struct{ sol *Solution }
 
 func (v solvedView) Value(i int) decimal.Decimal { return v.sol.At(i).Value() }
 func (v solvedView) Best(i int) []int            { return v.sol.At(i).Best() }
 
-// WriteJSON writes the solved tree in the interchange format: "value" on
-// every node (an exact decimal string, in the objective's terms), "best" on
-// every decision, every chance branch's probability (revised by Bayes' rule
-// below a test reading), so that the output reads back as the same model.
+// WriteJSON writes the solved model in the interchange format
+// (interchange.Write): the model as written — inputs with their ranges,
+// uncertainties, tests, every figure as its number or calculation — with
+// "value" on every node (an exact decimal string, in the objective's
+// terms), "best" on every decision and every chance branch's probability
+// (revised by Bayes' rule below a test reading), so that the output reads
+// back as the same model.
 func (sol *Solution) WriteJSON(w io.Writer) error {
-	v := solvedView{sol.Compiled, sol}
-	return tree.WriteJSON(w, sol.Model, v, tree.JSONOptions{Solved: v, Probabilities: true})
+	return interchange.Write(w, sol.Model, interchange.WriteOptions{Compiled: sol.Compiled, Solved: solvedView{sol}, Probabilities: true})
 }

@@ -7,8 +7,8 @@ import (
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/examples"
+	"github.com/forkcast/forkcast/interchange"
 	"github.com/forkcast/forkcast/lang"
-	"github.com/forkcast/forkcast/tree"
 )
 
 // Every bundled example parses without errors or warnings, solves, and
@@ -34,10 +34,10 @@ func TestExamplesRoundTrip(t *testing.T) {
 				t.Fatal(err)
 			}
 			var js bytes.Buffer
-			if err := tree.WriteJSON(&js, m.Source(), m, tree.JSONOptions{}); err != nil {
+			if err := interchange.Write(&js, m.Source(), interchange.WriteOptions{}); err != nil {
 				t.Fatal(err)
 			}
-			m2, ds := tree.ReadJSON(js.Bytes(), 0)
+			m2, ds := interchange.ReadBytes(js.Bytes(), interchange.Options{})
 			if ds.HasErrors() {
 				t.Fatalf("reading back: %v\n%s", ds, js.String())
 			}

@@ -850,6 +850,7 @@ const (
 	ctxLet exprCtx = iota
 	ctxProb
 	ctxCash
+	ctxExpr // a calculation read on its own (ParseExpr)
 )
 
 func (b *builder) expr(e exprValue, c exprCtx, lx lexed) tree.Expr {
@@ -881,7 +882,7 @@ func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed, top bool) (tree.Ex
 		case ctxLet:
 			b.errAt(at, 4, "rest stands only for the probability that a chance node's other branches leave; give a number or a calculation here",
 				"`rest` cannot be used in a let")
-		case ctxProb:
+		case ctxProb, ctxExpr:
 			b.errAt(at, 4, "write rest on its own, as the whole probability of the branch that takes what the others leave",
 				"`rest` cannot be part of a calculation")
 		default:

@@ -3,7 +3,7 @@
 // probabilities and cash flows, named parameters, named uncertainties and
 // imperfect tests on them.
 //
-// A model is built from text by package lang, from JSON by [ReadJSON], or by
+// A model is built from text by package lang, from JSON by package interchange, or by
 // a Go program with the builder functions ([Decision], [Chance], [Choice],
 // [Outcome]). Numbers are held as expressions ([Expr]) so that an analysis can
 // vary a parameter and resolve the model again; [Model.Resolve] turns them

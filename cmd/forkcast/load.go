@@ -10,6 +10,7 @@ import (
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/examples"
+	"github.com/forkcast/forkcast/interchange"
 	"github.com/forkcast/forkcast/lang"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/urfave/cli/v2"
@@ -93,7 +94,7 @@ func loadModel(c *cli.Context) (*loaded, error) {
 	var ds tree.Diagnostics
 	if isJSON {
 		var m *tree.Model
-		m, ds = tree.ReadJSON(src, limit)
+		m, ds = interchange.ReadBytes(src, interchange.Options{NodeLimit: limit})
 		if !ds.HasErrors() {
 			var cs tree.Diagnostics
 			cm, cs = compiled.Compile(m)

@@ -1,0 +1,253 @@
+package interchange
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"github.com/forkcast/forkcast/tree"
+)
+
+// pendingCash is a "cash" amount: a gain under max, a cost under min.
+type pendingCash struct {
+	b *tree.Branch
+	x tree.Expr
+}
+
+// model reads the top-level object, whose `{` has been read.
+func (r *reader) model(at tree.Pos) {
+	m := r.m
+	hasRoot := false
+	defer func() {
+		if !hasRoot && !r.stopped {
+			r.err(at, "add \"root\": {\"type\": \"decision\", \"branches\": [...]}", "the model has no \"root\"")
+		}
+	}()
+	r.object("the model", modelKeys, func(k int) {
+		switch k {
+		case mTitle:
+			m.Title = r.label("title", "the model")
+		case mCurrency:
+			m.Currency = r.label("currency", "the model")
+		case mObjective:
+			v, pos, ok := r.str("objective", "the model")
+			if !ok {
+				return
+			}
+			obj, known := tree.ParseObjective(v)
+			if !known || v == "" {
+				r.err(pos, "use \"max\" or \"min\"", "unknown objective %q", v)
+			}
+			m.Objective = obj
+		case mInputs:
+			r.array(r.s.next(), "inputs", "the model", "an input", r.input)
+		case mUncertainties:
+			r.array(r.s.next(), "uncertainties", "the model", "an uncertainty", r.uncertainty)
+		case mTests:
+			r.array(r.s.next(), "tests", "the model", "a test", r.test)
+		case mRoot:
+			hasRoot = true
+			r.tree(r.s.next())
+		case mValue, mExact:
+			// What `solve --json` adds: recomputed, not read.
+			r.skip(r.nextDiscard())
+		}
+	})
+}
+
+func (r *reader) input() {
+	p := &tree.Param{Pos: r.s.pos}
+	hasName, hasLow, hasHigh := false, false, false
+	var lowAt, highAt tree.Pos
+	r.object("an input", inputKeys, func(k int) {
+		switch k {
+		case 0:
+			name, pos, ok := r.str("name", "an input")
+			if !ok {
+				return
+			}
+			hasName = true
+			p.Name = name
+			if !isName(name) {
+				r.err(pos, "a name is a letter or _ followed by letters, digits and _, such as p_slip; gain, cost, rest, if, in and on are reserved",
+					"the input name %q cannot be used in a calculation", shorten(name))
+			}
+		case 1:
+			p.Expr, _ = r.figure("value", "an input", false)
+		case 2:
+			lowAt, hasLow = r.keyPos, true
+			p.Low, _ = r.figure("low", "an input", false)
+		case 3:
+			highAt, hasHigh = r.keyPos, true
+			p.High, _ = r.figure("high", "an input", false)
+		}
+	})
+	if r.stopped {
+		return
+	}
+	switch {
+	case !hasName:
+		r.err(p.Pos, "", "an input has no \"name\"")
+	case p.Expr == nil:
+		r.err(p.Pos, "give it a \"value\": a number or a calculation", "input %q has no \"value\"", p.Name)
+	}
+	if hasLow != hasHigh {
+		at := lowAt
+		if !hasLow {
+			at = highAt
+		}
+		r.err(at, "give both \"low\" and \"high\", or neither", "the range of input %q needs both ends", p.Name)
+	}
+	if p.Low == nil || p.High == nil {
+		p.Low, p.High = nil, nil // reported
+	}
+	if p.Expr == nil {
+		p.Expr = &tree.Number{At: p.Pos}
+	}
+	r.m.Params = append(r.m.Params, p)
+}
+
+func (r *reader) uncertainty() {
+	u := &tree.Uncertainty{Pos: r.s.pos}
+	hasName := false
+	r.object("an uncertainty", uncertaintyKeys, func(k int) {
+		switch k {
+		case 0:
+			u.Name, _, hasName = r.str("name", "an uncertainty")
+		case 1:
+			u.Label = r.label("label", "an uncertainty")
+		case 2:
+			r.array(r.s.next(), "states", "an uncertainty", "a state", func() {
+				st := &tree.State{Pos: r.s.pos}
+				hasProb := false
+				r.object("a state", stateKeys, func(k int) {
+					switch k {
+					case 0:
+						st.Label = r.label("label", "a state")
+					case 1:
+						var rest bool
+						st.Prob, rest = r.figure("probability", "a state", true)
+						hasProb = st.Prob != nil || rest
+					}
+				})
+				if !hasProb && !r.stopped {
+					r.err(st.Pos, "give a \"probability\": a number, a calculation or \"rest\"", "state %q has no probability", st.Label)
+				}
+				u.States = append(u.States, st)
+			})
+		}
+	})
+	if !hasName && !r.stopped {
+		r.err(u.Pos, "", "an uncertainty has no \"name\"")
+	}
+	r.m.Uncertainties = append(r.m.Uncertainties, u)
+}
+
+func (r *reader) test() {
+	t := &tree.Test{Pos: r.s.pos}
+	hasName, hasOn := false, false
+	r.object("a test", testKeys, func(k int) {
+		switch k {
+		case 0:
+			t.Name, _, hasName = r.str("name", "a test")
+		case 1:
+			t.Label = r.label("label", "a test")
+		case 2:
+			t.On, _, hasOn = r.str("on", "a test")
+		case 3:
+			t.Cost, _ = r.figure("cost", "a test", false)
+		case 4:
+			r.array(r.s.next(), "readings", "a test", "a reading", func() { r.reading(t) })
+		}
+	})
+	if r.stopped {
+		return
+	}
+	if !hasName {
+		r.err(t.Pos, "", "a test has no \"name\"")
+	}
+	if !hasOn {
+		r.err(t.Pos, "name the uncertainty it tests: \"on\": \"NAME\"", "test %q has no \"on\"", t.Name)
+	}
+	r.m.Tests = append(r.m.Tests, t)
+}
+
+func (r *reader) reading(t *tree.Test) {
+	rd := &tree.Reading{Pos: r.s.pos}
+	r.object("a reading", readingKeys, func(k int) {
+		switch k {
+		case 0:
+			rd.Label = r.label("label", "a reading")
+		case 1:
+			r.array(r.s.next(), "likelihoods", "a reading", "a likelihood", func() {
+				l := &tree.Likelihood{Pos: r.s.pos}
+				r.object("a likelihood", likelihoodKeys, func(k int) {
+					switch k {
+					case 0:
+						l.State = r.label("state", "a likelihood")
+					case 1:
+						l.Prob, _ = r.figure("probability", "a likelihood", false)
+					}
+				})
+				if l.Prob == nil {
+					if !r.stopped {
+						r.err(l.Pos, "give a \"probability\": P(this reading | the state)", "the likelihood for %q has no probability", l.State)
+					}
+					return
+				}
+				rd.Given = append(rd.Given, l)
+			})
+		case 2:
+			switch tk := r.s.next(); tk {
+			case tTrue:
+				rd.Rest = true
+			case tFalse:
+			default:
+				r.wrongType(tk, fmt.Sprintf("\"rest\" of a reading must be true or false, not %s", kindName(tk)), "")
+			}
+		}
+	})
+	t.Readings = append(t.Readings, rd)
+}
+
+// finish places the amounts given in the objective's terms and checks the
+// names used in calculations.
+func (r *reader) finish() {
+	m := r.m
+	for _, c := range r.cash {
+		if m.Objective == tree.Min {
+			c.b.Cost = plus(c.b.Cost, c.x)
+		} else {
+			c.b.Gain = plus(c.b.Gain, c.x)
+		}
+	}
+	if m.Objective == tree.Min {
+		// An end node's payoff is held as net value.
+		for _, n := range r.payoffs {
+			n.Payoff = negate(n.Payoff)
+		}
+	}
+	if len(r.names) == 0 {
+		return
+	}
+	inputs := make(map[string]bool, len(m.Params))
+	for _, p := range m.Params {
+		inputs[p.Name] = true
+	}
+	for _, nm := range r.names {
+		if !inputs[nm.Name] && !r.stopped {
+			r.err(nm.At, fmt.Sprintf("list it in \"inputs\": {\"name\": %q, \"value\": ...}", nm.Name), "unknown name %q", nm.Name)
+		}
+	}
+}
+
+// grouped writes n with thousands separators.
+func grouped(n int) string {
+	s := strconv.Itoa(n)
+	var parts []string
+	for len(s) > 3 {
+		parts = append([]string{s[len(s)-3:]}, parts...)
+		s = s[:len(s)-3]
+	}
+	return strings.Join(append([]string{s}, parts...), ",")
+}
