@@ -268,11 +268,10 @@ func (b *builder) place(l *srcLine, parent *frame) *frame {
 		}
 		return brokenFrame(owner)
 	case kRisk:
-		if !silent {
-			b.errAt(l.pos(), l.firstWidth(), "remove this line: for now models are solved by expected value (risk neutral)",
-				"risk attitude is not supported yet")
+		if silent {
+			return &frame{kind: fLeaf, what: "the risk line", owner: owner}
 		}
-		return &frame{kind: fLeaf, what: "the risk line", owner: owner}
+		return b.header(l, parent, false, "the risk tolerance line", func() { b.riskLine(l) })
 	}
 	if l.ast == nil {
 		if parent != nil && parent.kind == fBranch && isNodeKind(l.kind) {

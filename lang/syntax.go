@@ -19,7 +19,7 @@ const (
 	kTitle                // title "..."
 	kCurrency             // currency EUR
 	kObjective            // objective max|min
-	kRisk                 // risk ... (reserved)
+	kRisk                 // risk tolerance AMOUNT
 	kLet                  // let name = expr [in lo .. hi]
 	kUncertainty          // uncertainty name ["Label"]
 	kTest                 // test name ["Label"] [on unc [cost expr]]
@@ -33,7 +33,7 @@ const (
 )
 
 // lineKinds maps a line's first word to its kind. Header keywords come
-// first; `risk` is reserved for risk attitude.
+// first.
 var lineKinds = map[string]lineKind{
 	"title": kTitle, "currency": kCurrency, "objective": kObjective, "risk": kRisk,
 	"let": kLet, "uncertainty": kUncertainty, "test": kTest, "subtree": kSubtree,

@@ -91,6 +91,11 @@ type Model struct {
 	// Tests are imperfect tests on an uncertainty.
 	Tests []*Test
 	Root  *Node
+	// RiskTolerance is the decision maker's risk tolerance, in the model's
+	// money (`risk tolerance AMOUNT`): decisions are then taken on an
+	// exponential utility's certainty equivalents. Nil decides by expected
+	// value.
+	RiskTolerance *Number
 }
 
 // Size is the number of nodes in the tree.
