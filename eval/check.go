@@ -147,7 +147,7 @@ func stochasticallyDominated(w *lotteryWalk, s *Solved, warned []bool, ds *tree.
 	i := s.Number()
 	lots := make([]lottery, len(warned))
 	for j := range lots {
-		l, err := w.lottery(c.Child(i, j))
+		l, _, err := w.lottery(c.Child(i, j))
 		if err != nil {
 			return false
 		}

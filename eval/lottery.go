@@ -39,43 +39,59 @@ type lotteryWalk struct {
 // lottery walks the subtree under node start (the cash on the branch into
 // start and everything below it counted), taking at each decision the
 // branch the policy gives and leaving out chance branches that can never
-// happen (probability 0).
-func (w *lotteryWalk) lottery(start int) (lottery, error) {
+// happen (probability 0). Masses are counted in the frame of start's
+// parent: where a very deep tree starts a frame of its own, the masses in
+// it are weighed by compiled.Model.FrameWeight (rounded: rounded is then
+// set).
+func (w *lotteryWalk) lottery(start int) (lot lottery, rounded bool, err error) {
 	c := w.c
 	type item struct {
 		i   int
 		acc decimal.Decimal
+		wt  *decimal.Decimal // what a mass here is worth in start's parent's frame; nil for 1
 	}
 	var xs, ms []decimal.Decimal
-	stack := []item{{start, decimal.Zero}}
+	stack := []item{{start, decimal.Zero, nil}}
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
 		i := it.i
+		if c.FrameStart(i) {
+			if c.Unreachable(i) {
+				continue // below a branch of probability 0
+			}
+			f := c.FrameWeight(i)
+			if it.wt != nil {
+				f = f.Mul(*it.wt)
+			}
+			it.wt, rounded = &f, true
+		}
 		acc := it.acc.Add(c.Cash(i)).Add(c.Payoff(i)).Sub(c.TestCostAt(i))
 		if w.steps++; w.steps&4095 == 0 && w.ctx != nil {
 			if err := w.ctx.Err(); err != nil {
-				return lottery{}, err
+				return lottery{}, false, err
 			}
 		}
 		from, to := c.Kids(i)
 		switch {
 		case from == to:
 			if w.ends++; w.ends > w.max {
-				return lottery{}, &BudgetError{What: fmt.Sprintf("more than %d path ends", w.max), Option: w.option}
+				return lottery{}, false, &BudgetError{What: fmt.Sprintf("more than %d path ends", w.max), Option: w.option}
 			}
-			xs, ms = append(xs, acc), append(ms, c.Mass(i))
+			m := c.Mass(i)
+			if it.wt != nil {
+				m = m.Mul(*it.wt)
+			}
+			xs, ms = append(xs, acc), append(ms, m)
 		case c.Kind(i) == tree.KindDecision:
-			stack = append(stack, item{from + w.policy(i), acc})
+			stack = append(stack, item{from + w.policy(i), acc, it.wt})
 		default:
 			for k := to - 1; k >= from; k-- {
-				if !c.FrameStart(k) { // a frame of its own: probability 0
-					stack = append(stack, item{k, acc})
-				}
+				stack = append(stack, item{k, acc, it.wt})
 			}
 		}
 	}
-	return merge(xs, ms), nil
+	return merge(xs, ms), rounded, nil
 }
 
 // merge sorts (value, mass) pairs by value and adds up the masses of equal

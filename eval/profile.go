@@ -71,8 +71,9 @@ type Profiles struct {
 	// the better option and then the worse.
 	Dominance []Dominance
 	// Exact is false when some probability is a division rounded at
-	// compiled.DivisionScale places (a decision below a test reading); the
-	// figures are then exact to that precision.
+	// compiled.DivisionScale places (a decision below a test reading), or
+	// the model has rounded figures (compiled.Model.Exact); the figures are
+	// then exact to that precision.
 	Exact bool
 	// Notes explain choices made along the way.
 	Notes []string
@@ -163,7 +164,7 @@ func RiskProfiles(ctx context.Context, sol *Solution, opts ProfileOptions) (*Pro
 		return nil, err
 	}
 	obj := c.Objective()
-	ps := &Profiles{Objective: obj, Exact: true, Notes: notes}
+	ps := &Profiles{Objective: obj, Exact: c.Exact(), Notes: notes}
 	if opts.Threshold != nil {
 		ps.Threshold = *opts.Threshold
 	}
@@ -182,10 +183,11 @@ func RiskProfiles(ctx context.Context, sol *Solution, opts ProfileOptions) (*Pro
 		}
 	}
 	if d == nil {
-		l, err := w.lottery(0)
+		l, rounded, err := w.lottery(0)
 		if err != nil {
 			return nil, err
 		}
+		ps.Exact = ps.Exact && !rounded
 		ps.Options = []Profile{ps.profile(c, "", -1, l, c.Mass(0))}
 		ps.Notes = append(ps.Notes, "the tree has no decision: one profile of the whole tree")
 		return ps, nil
@@ -198,10 +200,11 @@ func RiskProfiles(ctx context.Context, sol *Solution, opts ProfileOptions) (*Pro
 	mass := c.Mass(dn)
 	taken := w.policy(dn)
 	for j, b := range d.Node.Branches {
-		l, err := w.lottery(c.Child(dn, j))
+		l, rounded, err := w.lottery(c.Child(dn, j))
 		if err != nil {
 			return nil, err
 		}
+		ps.Exact = ps.Exact && !rounded
 		p := ps.profile(c, b.Label, j, l, mass)
 		p.Taken = j == taken
 		ps.Options = append(ps.Options, p)

@@ -3,6 +3,7 @@ package eval
 import (
 	"context"
 	"errors"
+	"math"
 	"math/big"
 	"math/rand"
 	"sort"
@@ -468,5 +469,67 @@ func TestDominatedBudget(t *testing.T) {
 	if len(got) != 2 || !strings.HasPrefix(got[0], `option "Poor" of "Pick" is dominated: in every outcome`) ||
 		!strings.Contains(got[1], "checked for dominance by their ranges only") {
 		t.Fatalf("warnings %q", got)
+	}
+}
+
+// A chain so deep that its masses are kept short by frames of their own
+// (compiled.MaxMassPlaces): the profile weighs each frame into the one
+// above. Going down the chain pays 1 a level; the chance of stopping after
+// exactly k levels is 0.3^k · 0.7 (0.3^n for the whole chain), a geometric
+// distribution (common practice), checked on big.Rat to 40 digits; the
+// mean is the option's value to the same precision, and the profile says it
+// is not exact.
+func TestProfileDeepChain(t *testing.T) {
+	const depth = 800
+	var n *tree.Node
+	for i := 0; i < depth; i++ {
+		n = tree.Chance("L", tree.Outcome("a", tree.Num(dec("0.3")), tree.Gain(tree.Num(dec("1"))), n), tree.RestOutcome("b", tree.NoCash, nil))
+	}
+	m := &tree.Model{Root: tree.Decision("Go", tree.Choice("Chain", tree.NoCash, n), tree.Choice("Stay", tree.NoCash, nil))}
+	sol := mustSolve(t, m)
+	ps, err := RiskProfiles(context.Background(), sol, ProfileOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ps.Exact {
+		t.Error("a profile weighed through frames says it is exact")
+	}
+	chain := ps.Options[0]
+	if len(chain.Outcomes) != depth+1 {
+		t.Fatalf("%d outcomes", len(chain.Outcomes))
+	}
+	tiny := big.NewRat(1, 1)
+	for i := 0; i < 40; i++ {
+		tiny.Mul(tiny, big.NewRat(1, 10))
+	}
+	p := big.NewRat(1, 1)
+	for k, o := range chain.Outcomes {
+		want := new(big.Rat).Mul(p, big.NewRat(7, 10))
+		if k == depth {
+			want = p
+		}
+		diff := new(big.Rat).Sub(rat(o.Probability), want)
+		if diff.Abs(diff).Cmp(new(big.Rat).Mul(want, tiny)) > 0 {
+			t.Fatalf("P(%d) = %s, want %s", k, o.Probability, want.FloatString(60))
+		}
+		p.Mul(p, big.NewRat(3, 10))
+	}
+	diff := new(big.Rat).Sub(rat(chain.Mean), rat(sol.Root.BranchValue(0)))
+	if diff.Abs(diff).Cmp(tiny) > 0 {
+		t.Errorf("mean %s, value %s", chain.Mean, sol.Root.BranchValue(0))
+	}
+	rs, err := SolveRiskAverse(sol, dec("2"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	// The chain pays 1 a level, stopping at each with 0.7: its CE with
+	// R = 2 is a fixed point x = −2 ln(0.7 + 0.3·e^−(1+x)/2), far from the
+	// bottom; checked here against a direct iteration of that equation.
+	x := 0.0
+	for i := 0; i < 200; i++ {
+		x = -2 * math.Log(0.7+0.3*math.Exp(-(1+x)/2))
+	}
+	if got := rs.BranchValue(0, 0).InexactFloat64(); !relClose(got, x, 1e-13) {
+		t.Errorf("CE of the chain %v, fixed point %v", got, x)
 	}
 }

@@ -187,6 +187,11 @@ func newCELayout(c *compiled.Model) *ceLayout {
 		kind: make([]tree.Kind, n), from: make([]int32, n), upTo: make([]int32, n)}
 	for i := 0; i < n; i++ {
 		l.cash[i], l.own[i], l.prob[i] = f.Cash(i), f.Own(i), f.Prob(i)
+		if c.FrameStart(i) {
+			// Below a branch of probability 0, or where a very deep tree
+			// starts a frame of its own: the exact figure knows which.
+			l.prob[i] = c.Prob(i).InexactFloat64()
+		}
 		l.kind[i] = c.Kind(i)
 		from, to := c.Kids(i)
 		l.from[i], l.upTo[i] = int32(from), int32(to)

@@ -200,7 +200,7 @@ func wholeProfile(t *testing.T, sol *Solution) Profile {
 	t.Helper()
 	c := sol.Compiled
 	w := &lotteryWalk{c: c, max: DefaultMaxOutcomes, policy: func(i int) int { return sol.r.Best(i) }}
-	l, err := w.lottery(0)
+	l, _, err := w.lottery(0)
 	if err != nil {
 		t.Fatal(err)
 	}
