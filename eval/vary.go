@@ -99,19 +99,20 @@ func newAnalysis(ctx context.Context, c *compiled.Model, at string, max int, opt
 		return nil, err
 	}
 	a := &analysis{ctx: ctx, c: c, obj: c.Objective(), base: base, max: max, option: option, watch: -1}
-	has := false
-	for i := 0; i < c.Len() && !has; i++ {
-		has = c.Kind(i) == tree.KindDecision
-	}
-	if !has && at == "" {
-		return a, nil
-	}
-	s := &search{c: c, be: &Breakeven{}}
-	if err := s.decision(base, at); err != nil {
+	d, notes, err := WatchedDecision(base, at)
+	switch {
+	case err != nil:
 		return nil, err
+	case d == nil:
+		return a, nil // no decision in the model, and none asked for
 	}
-	a.watch, a.decision, a.path, a.options = s.node, s.be.Decision, s.be.Path, s.be.Options
-	a.notes = append(a.notes, s.be.Notes...)
+	a.watch, a.decision, a.notes = d.Number(), d.Node, notes
+	for _, b := range d.Path() {
+		a.path = append(a.path, b.Label)
+	}
+	for _, b := range d.Node.Branches {
+		a.options = append(a.options, b.Label)
+	}
 	return a, nil
 }
 
