@@ -185,7 +185,7 @@ func AnalyseSensitivity(ctx context.Context, c *compiled.Model, opts Sensitivity
 
 	list, skipped := sensitivityInputs(c, opts)
 	if len(skipped) > 0 {
-		out.Notes = append(out.Notes, fmt.Sprintf("not varied, having no range: %s (give them a range, or a percentage to vary them by)", strings.Join(skipped, ", ")))
+		out.Notes = append(out.Notes, fmt.Sprintf("not varied, having no range: %s (give them a range, or vary them by a percentage with SensitivityOptions.Pct)", strings.Join(skipped, ", ")))
 	}
 	grid := opts.Grid
 	if grid <= 0 {
@@ -208,7 +208,7 @@ func AnalyseSensitivity(ctx context.Context, c *compiled.Model, opts Sensitivity
 		}
 	}
 	if len(out.Inputs) == 0 {
-		return nil, reqErr("nothing to vary: no input has a range (write `let NAME = VALUE in LOW .. HIGH`, name a probability to vary, or vary every input by a percentage)")
+		return nil, reqErr("nothing to vary: no input has a range (write `let NAME = VALUE in LOW .. HIGH`, name a probability in SensitivityOptions.Vary, or vary every input by a percentage with SensitivityOptions.Pct)")
 	}
 	sort.SliceStable(out.Inputs, func(i, j int) bool { return out.Inputs[i].Swing.GreaterThan(out.Inputs[j].Swing) })
 	out.Samples = a.used

@@ -521,3 +521,120 @@ func (mp *mapper) triple(i, j int, o []int, corners []*sample) (BoundaryPoint, b
 	return BoundaryPoint{X: decimal.NewFromBigRat(x, compiled.DivisionScale), Y: decimal.NewFromBigRat(yy, compiled.DivisionScale),
 		Exact: true, XFraction: x, YFraction: yy}, true
 }
+
+// BoundaryLine is a boundary between two options' regions as one
+// polyline: the segments that join end to end, with the points where the
+// line runs straight on left out.
+type BoundaryLine struct {
+	// A and B are the options on either side (A < B).
+	A, B   int
+	Points []BoundaryPoint
+	// Exact is set when every segment of the line is exact.
+	Exact bool
+}
+
+// Lines joins the map's boundary segments into polylines, one for each
+// run of segments between the same two options that meet end to end,
+// in order of the options and then of the first point.
+func (m *StrategyMap) Lines() []BoundaryLine {
+	key := func(p BoundaryPoint) string { return p.X.String() + " " + p.Y.String() }
+	byPair := map[pair][]int{}
+	var pairs []pair
+	for i, b := range m.Boundaries {
+		k := pairOf(b.A, b.B)
+		if _, ok := byPair[k]; !ok {
+			pairs = append(pairs, k)
+		}
+		byPair[k] = append(byPair[k], i)
+	}
+	slices.SortFunc(pairs, func(p, q pair) int {
+		if p.a != q.a {
+			return p.a - q.a
+		}
+		return p.b - q.b
+	})
+	var out []BoundaryLine
+	for _, k := range pairs {
+		segs := byPair[k]
+		at := map[string][]int{} // point → segments that end there
+		for _, i := range segs {
+			b := m.Boundaries[i]
+			at[key(b.From)] = append(at[key(b.From)], i)
+			at[key(b.To)] = append(at[key(b.To)], i)
+		}
+		used := map[int]bool{}
+		// Start at loose ends first (lowest point first), then close
+		// whatever loops are left.
+		starts := make([]BoundaryPoint, 0, 2*len(segs))
+		for _, i := range segs {
+			starts = append(starts, m.Boundaries[i].From, m.Boundaries[i].To)
+		}
+		slices.SortStableFunc(starts, func(p, q BoundaryPoint) int {
+			if c := p.X.Cmp(q.X); c != 0 {
+				return c
+			}
+			return p.Y.Cmp(q.Y)
+		})
+		for pass := 0; pass < 2; pass++ {
+			for _, s := range starts {
+				if pass == 0 && len(at[key(s)]) != 1 {
+					continue
+				}
+				line := BoundaryLine{A: k.a, B: k.b, Points: []BoundaryPoint{s}, Exact: true}
+				cur := s
+				for {
+					next := -1
+					for _, i := range at[key(cur)] {
+						if !used[i] {
+							next = i
+							break
+						}
+					}
+					if next < 0 {
+						break
+					}
+					used[next] = true
+					b := m.Boundaries[next]
+					if key(b.From) == key(cur) {
+						cur = b.To
+					} else {
+						cur = b.From
+					}
+					line.Exact = line.Exact && b.Exact
+					line.Points = append(line.Points, cur)
+				}
+				if len(line.Points) > 1 {
+					line.Points = straighten(line.Points)
+					out = append(out, line)
+				}
+			}
+		}
+	}
+	return out
+}
+
+// straighten drops the points of a polyline where it runs straight on.
+func straighten(ps []BoundaryPoint) []BoundaryPoint {
+	xy := func(p BoundaryPoint) (*big.Rat, *big.Rat) {
+		if p.XFraction != nil {
+			return p.XFraction, p.YFraction
+		}
+		return p.X.Rat(), p.Y.Rat()
+	}
+	out := []BoundaryPoint{ps[0]}
+	for i := 1; i < len(ps); i++ {
+		if i+1 < len(ps) && len(out) > 0 {
+			x0, y0 := xy(out[len(out)-1])
+			x1, y1 := xy(ps[i])
+			x2, y2 := xy(ps[i+1])
+			// (p1 − p0) × (p2 − p1) = 0: p1 lies on the line on.
+			a := new(big.Rat).Mul(new(big.Rat).Sub(x1, x0), new(big.Rat).Sub(y2, y1))
+			b := new(big.Rat).Mul(new(big.Rat).Sub(y1, y0), new(big.Rat).Sub(x2, x1))
+			if a.Cmp(b) == 0 {
+				continue
+			}
+		}
+		out = append(out, ps[i])
+	}
+	return out
+}

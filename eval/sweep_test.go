@@ -224,3 +224,28 @@ func TestStrategyMapCurve(t *testing.T) {
 		}
 	}
 }
+
+// The map's segments joined into lines: the three straight boundaries of
+// mapModel (see there), each one line of two points.
+func TestStrategyMapLines(t *testing.T) {
+	mp, err := MapStrategies(context.Background(), mustCompile(t, mapModel()), MapOptions{X: vr(t, "x", "", ""), Y: vr(t, "y", "", ""), Steps: 20})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, l := range mp.Lines() {
+		s := fmt.Sprintf("%d|%d exact %v:", l.A, l.B, l.Exact)
+		for _, p := range l.Points {
+			s += fmt.Sprintf(" (%s, %s)", p.XFraction.RatString(), p.YFraction.RatString())
+		}
+		got = append(got, s)
+	}
+	want := []string{
+		"0|1 exact true: (175/4, 50) (693/8, 99)",
+		"0|2 exact true: (175/4, 50) (125/2, 0)",
+		"1|2 exact true: (0, 50) (175/4, 50)",
+	}
+	if fmt.Sprint(got) != fmt.Sprint(want) {
+		t.Errorf("lines\n%s\nwant\n%s", got, want)
+	}
+}

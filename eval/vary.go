@@ -148,7 +148,7 @@ func (a *analysis) target(s *search, vr VaryRange, pct *decimal.Decimal) (RangeF
 		case isParam && in.HasRange:
 			from = RangeOwn
 		case isParam && pct == nil:
-			return 0, &errSkip{fmt.Sprintf("%s has no range: give it one in the model (`let %s = … in LOW .. HIGH`) or in the request, or vary it by a percentage of its value", v, v.Name)}
+			return 0, &errSkip{fmt.Sprintf("%s has no range: give it one in the model (`let %s = … in LOW .. HIGH`) or in the request, or vary it by a percentage of its value with SensitivityOptions.Pct", v, v.Name)}
 		case isParam:
 			cur = in.Value
 		default:

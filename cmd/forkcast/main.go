@@ -82,6 +82,8 @@ func commands() []*cli.Command {
 		checkCommand(),
 		voiCommand(),
 		breakevenCommand(),
+		sensitivityCommand(),
+		sweepCommand(),
 		drawCommand(),
 		examplesCommand(),
 	}

@@ -18,6 +18,10 @@ func flagNames() report.OptionNames {
 		"VOIOptions.MaxWork":            "--max-work",
 		"BreakevenOptions.MaxSamples":   "--max-samples",
 		"BreakevenOptions.Low and High": "--in LOW..HIGH",
+		"SensitivityOptions.MaxSamples": "--max-samples",
+		"SensitivityOptions.Pct":        "--pct N",
+		"SensitivityOptions.Vary":       "--vary",
+		"SweepOptions.MaxSamples":       "--max-samples",
 	}
 }
 
