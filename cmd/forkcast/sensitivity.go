@@ -53,13 +53,14 @@ func sensitivityCommand() *cli.Command {
 			"changes. --spider draws the value against each input's change from its base\n" +
 			"value (in % of base). Both are written as SVG or PNG by the file's extension.",
 		Flags: []cli.Flag{
-			&cli.GenericFlag{Name: "vary", Value: &repeated{}, Usage: "also vary `INPUT[=LOW..HIGH]`: NAME, UNCERTAINTY:STATE or NODE/BRANCH (repeat it for several)"},
+			&cli.GenericFlag{Name: "vary", Value: &repeated{}, Usage: "also vary `INPUT` (NAME, UNCERTAINTY:STATE or NODE/BRANCH), with an optional =LOW..HIGH; repeat it for several"},
 			&cli.StringFlag{Name: "pct", Usage: "vary every input with no range by ±`N`% of its value (e.g. 20)"},
 			&cli.StringFlag{Name: "at", Usage: "report the value of the decision with this `LABEL` and watch its best option"},
 			&cli.BoolFlag{Name: "json", Usage: "print the result as JSON, every figure an exact decimal string"},
 			&cli.StringFlag{Name: "tornado", Usage: "write the tornado diagram to `FILE` (.svg or .png)"},
 			&cli.StringFlag{Name: "spider", Usage: "write the spider diagram to `FILE` (.svg or .png)"},
-			&cli.IntFlag{Name: "points", Usage: fmt.Sprintf("work out each input's value curve at `N`+1 points (default %d with --spider, else 0: the ends, the base and the switches)", defaultSpiderPoints)},
+			&cli.IntFlag{Name: "points", Usage: "work out each input's value curve at `N`+1 evenly spaced values as well as the ends, the base and the switches",
+				DefaultText: fmt.Sprintf("%d with --spider, else 0", defaultSpiderPoints)},
 			&cli.IntFlag{Name: "max-samples", Value: eval.DefaultSensitivityMaxSamples, Usage: "stop after `N` rollbacks in all"},
 			maxNodesFlag,
 		},

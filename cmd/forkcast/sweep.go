@@ -40,7 +40,7 @@ func sweepCommand() *cli.Command {
 			"exact figures), --json the whole result; --chart draws it (one line per option\n" +
 			"with the switches marked, or the map with its regions labelled) as SVG or PNG.",
 		Flags: []cli.Flag{
-			&cli.GenericFlag{Name: "vary", Value: &repeated{}, Usage: "the input to vary, `INPUT[=LOW..HIGH]`; twice for a strategy map"},
+			&cli.GenericFlag{Name: "vary", Value: &repeated{}, Usage: "the `INPUT` to vary (NAME, UNCERTAINTY:STATE or NODE/BRANCH), with an optional =LOW..HIGH; twice for a strategy map"},
 			&cli.GenericFlag{Name: "in", Value: &repeated{}, Usage: "the range `LOW..HIGH` of each --vary, in order"},
 			&cli.IntFlag{Name: "steps", Value: eval.DefaultSweepSteps, Usage: "`N` intervals in each grid"},
 			&cli.StringFlag{Name: "at", Usage: "watch the decision with this `LABEL`"},
