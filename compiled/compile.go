@@ -162,6 +162,9 @@ func (k *compiler) source(call *tree.Call) (int32, *EvalError) {
 		return 0, err
 	}
 	k.c.in = append(k.c.in, v)
+	if k.c.inInexact != nil {
+		k.c.inInexact = append(k.c.inInexact, false) // one entry per slot, once there are any
+	}
 	k.random = append(k.random, true)
 	if !isExact {
 		k.c.rounded = true

@@ -2,6 +2,7 @@ package compiled
 
 import (
 	"fmt"
+	"math"
 	"sort"
 
 	"github.com/forkcast/forkcast/dist"
@@ -103,17 +104,21 @@ type Floats struct {
 	tcost   []float64
 	mass    []float64
 	restart []bool
-	rho     []float64
 	e, t    []float64
 	best    []int32
 	// order lists the figures the random inputs reach, in evaluation
-	// order; probs is set when one of them is a probability.
-	order []int32
+	// order, each in the form Draw evaluates fastest; probs is set when
+	// one of them is a probability.
+	order []floatFig
 	probs bool
+	// own is what each node adds itself: an end's payoff, or minus the
+	// cost of the test it runs.
+	own []float64
 	// rests lists the plain chance nodes and uncertainties whose rest
 	// must be taken again after a draw.
 	restNodes []int32
 	restUncs  []int32
+	restTests []int32
 }
 
 // NewFloats makes a float64 copy of c, its random inputs at their means.
@@ -168,12 +173,16 @@ func (c *Model) NewFloats() *Floats {
 			}
 		}
 	}
+	var order []int32
 	for fi := range reached {
-		f.order = append(f.order, fi)
+		order = append(order, fi)
 	}
-	sort.Slice(f.order, func(a, b int) bool { return f.order[a] < f.order[b] })
-	nodes, uncs := map[int32]bool{}, map[int32]bool{}
-	for _, fi := range f.order {
+	sort.Slice(order, func(a, b int) bool { return order[a] < order[b] })
+	for _, fi := range order {
+		f.order = append(f.order, newFloatFig(c.sh.dyn[fi]))
+	}
+	nodes, uncs, tests := map[int32]bool{}, map[int32]bool{}, map[int32]bool{}
+	for _, fi := range order {
 		switch d := c.sh.dyn[fi]; d.kind {
 		case figProb:
 			f.probs = true
@@ -189,9 +198,16 @@ func (c *Model) NewFloats() *Floats {
 			}
 		case figLikelihood:
 			f.probs = true
+			if !tests[d.i] {
+				tests[d.i] = true
+				f.restTests = append(f.restTests, d.i)
+			}
 		}
 	}
-	f.mass, f.restart, f.rho = masses[float64](c.sh, floatArith{}, f.prob, f.prior, f.lik, nil)
+	f.own = make([]float64, n)
+	f.owns()
+	f.mass = make([]float64, n)
+	f.remass()
 	f.weigh()
 	return f
 }
@@ -207,9 +223,15 @@ func (f *Floats) Draw(x []float64) error {
 	for i, s := range c.sh.sources {
 		f.in[s.slot] = x[i]
 	}
-	for _, fi := range f.order {
-		d := c.sh.dyn[fi]
-		v := d.prog.evalFloat(f.in)
+	tests := false
+	for i := range f.order {
+		d := &f.order[i]
+		var v float64
+		if d.slot >= 0 {
+			v = d.a*f.in[d.slot] + d.b
+		} else {
+			v = d.prog.evalFloat(f.in)
+		}
 		switch d.kind {
 		case figInput:
 			f.in[d.i] = v
@@ -219,22 +241,163 @@ func (f *Floats) Draw(x []float64) error {
 			f.prob[d.i] = v
 		case figPayoff:
 			f.payoff[d.i] = v
+			f.own[d.i] = v
 		case figPrior:
 			f.prior[d.i][d.j] = v
 		case figLikelihood:
 			f.lik[d.i][d.j][d.k] = v
 		case figTestCost:
 			f.tcost[d.i] = v
+			tests = true
 		}
+	}
+	if tests {
+		f.owns()
 	}
 	if f.probs {
 		if err := f.rests(); err != nil {
 			return err
 		}
-		f.mass, f.restart, f.rho = masses[float64](c.sh, floatArith{}, f.prob, f.prior, f.lik, nil)
+		f.remass()
 	}
 	f.weigh()
 	return nil
+}
+
+// floatFig is a figure Draw evaluates: where it goes, and either a linear
+// function a·in[slot] + b of one input (most figures: an input, a cash
+// flow written as a calculation on one input) or its program.
+type floatFig struct {
+	kind    figKind
+	i, j, k int32
+	slot    int32 // -1: run prog
+	a, b    float64
+	prog    *program
+}
+
+func newFloatFig(d dynFig) floatFig {
+	f := floatFig{kind: d.kind, i: d.i, j: d.j, k: d.k, slot: -1, prog: d.prog}
+	if a, b, ok := d.prog.linear(); ok {
+		f.slot, f.a, f.b = d.prog.slots[0], a, b
+	}
+	return f
+}
+
+// linear reports whether the program computes a·x + b of the one input x
+// it reads, with no division by it and no distribution, and returns a and
+// b (in float64: the result may differ from running the program in the
+// last bits).
+func (p *program) linear() (a, b float64, ok bool) {
+	if len(p.slots) != 1 {
+		return 0, 0, false
+	}
+	type lin struct{ a, b float64 }
+	var buf [16]lin
+	st := buf[:0]
+	for _, o := range p.ops {
+		switch o.code {
+		case opConst:
+			st = append(st, lin{0, p.fconsts[o.arg]})
+			continue
+		case opSlot:
+			st = append(st, lin{1, 0})
+			continue
+		case opNeg:
+			st[len(st)-1] = lin{-st[len(st)-1].a, -st[len(st)-1].b}
+			continue
+		case opAdd, opSub, opMul, opDiv:
+		default:
+			return 0, 0, false
+		}
+		if len(st) < 2 {
+			return 0, 0, false
+		}
+		x, y := st[len(st)-2], st[len(st)-1]
+		st = st[:len(st)-1]
+		var r lin
+		switch o.code {
+		case opAdd:
+			r = lin{x.a + y.a, x.b + y.b}
+		case opSub:
+			r = lin{x.a - y.a, x.b - y.b}
+		case opMul:
+			switch {
+			case x.a == 0:
+				r = lin{x.b * y.a, x.b * y.b}
+			case y.a == 0:
+				r = lin{x.a * y.b, x.b * y.b}
+			default:
+				return 0, 0, false
+			}
+		case opDiv:
+			if y.a != 0 || y.b == 0 {
+				return 0, 0, false
+			}
+			r = lin{x.a / y.b, x.b / y.b}
+		}
+		st[len(st)-1] = r
+	}
+	if len(st) != 1 {
+		return 0, 0, false
+	}
+	return st[0].a, st[0].b, true
+}
+
+// owns sets what every node adds itself from the payoffs and test costs.
+func (f *Floats) owns() {
+	sh := f.c.sh
+	copy(f.own, f.payoff)
+	if sh.test != nil {
+		for i, t := range sh.test {
+			if t >= 0 {
+				f.own[i] = -f.tcost[t]
+			}
+		}
+	}
+}
+
+// remass computes every node's mass from the probabilities. A tree with no
+// named uncertainty (the usual case) takes a pass of its own that reuses
+// the arrays; with named uncertainties the general pass runs (derive.go).
+func (f *Floats) remass() {
+	sh := f.c.sh
+	if sh.unc != nil {
+		// Float masses never grow too long, so no frame has a rho.
+		f.mass, f.restart, _ = masses[float64](sh, floatArith{}, f.prob, f.prior, f.lik, nil)
+		return
+	}
+	mass, first, kind := f.mass, sh.first, sh.kind
+	for i := range f.restart {
+		f.restart[i] = false
+	}
+	frames := false
+	mass[0] = 1
+	for i := range kind {
+		from, to := first[i], first[i+1]
+		mi := mass[i]
+		if kind[i] != tree.KindChance {
+			for k := from; k < to; k++ {
+				mass[k] = mi
+			}
+			continue
+		}
+		for k := from; k < to; k++ {
+			p := f.prob[k]
+			if p == 0 {
+				// Never reached: a frame of its own, as in derive.go.
+				if f.restart == nil {
+					f.restart = make([]bool, len(kind))
+				}
+				f.restart[k], frames = true, true
+				mass[k] = 1
+				continue
+			}
+			mass[k] = mi * p
+		}
+	}
+	if !frames {
+		f.restart = nil
+	}
 }
 
 // rests takes the rest of every set of probabilities a draw changed and
@@ -242,7 +405,7 @@ func (f *Floats) Draw(x []float64) error {
 func (f *Floats) rests() error {
 	c := f.c
 	bad := func(p float64, what string) error {
-		return fmt.Errorf("a draw makes a probability under %s %v, outside [0, 1]", what, p)
+		return fmt.Errorf("a draw makes a probability under %s %.6g, outside [0, 1]", what, p)
 	}
 	for _, i := range f.restNodes {
 		from, to := c.sh.first[i], c.sh.first[i+1]
@@ -261,9 +424,14 @@ func (f *Floats) rests() error {
 		}
 		if rest >= 0 {
 			f.prob[rest] = 1 - sum
-			if f.prob[rest] < -1e-12 {
+			switch {
+			case f.prob[rest] < -1e-12:
 				return bad(f.prob[rest], describe(c.sh.nodes[i]))
+			case f.prob[rest] < 0:
+				f.prob[rest] = 0 // rounding: the others sum to 1
 			}
+		} else if math.Abs(sum-1) > sumSlack {
+			return unsummed(sum, describe(c.sh.nodes[i]))
 		}
 	}
 	for _, u := range f.restUncs {
@@ -277,29 +445,129 @@ func (f *Floats) rests() error {
 				sum += p
 			}
 		}
-		if rest >= 0 {
-			f.prior[u][rest] = 1 - sum
+		what := "uncertainty " + c.sh.uncs[u].Name
+		switch {
+		case rest < 0:
+			if math.Abs(sum-1) > sumSlack {
+				return unsummed(sum, what)
+			}
+		case 1-sum < -1e-12:
+			return bad(1-sum, what)
+		default:
+			f.prior[u][rest] = max(1-sum, 0)
+		}
+	}
+	for _, t := range f.restTests {
+		what := "test " + c.sh.tests[t].Name
+		for st := range c.sh.uncs[c.TestOn(int(t))].States {
+			rest := c.sh.restReading[t][st]
+			sum := 0.0
+			for r, ls := range f.lik[t] {
+				if int32(r) != rest {
+					if p := ls[st]; p < 0 || p > 1 {
+						return bad(p, what)
+					}
+					sum += ls[st]
+				}
+			}
+			switch {
+			case rest < 0:
+				if math.Abs(sum-1) > sumSlack {
+					return unsummed(sum, what)
+				}
+			case 1-sum < -1e-12:
+				return bad(1-sum, what)
+			default:
+				f.lik[t][rest][st] = max(1-sum, 0)
+			}
 		}
 	}
 	return nil
 }
 
+// sumSlack is how far drawn probabilities may miss summing to 1 by
+// rounding.
+const sumSlack = 1e-9
+
+func unsummed(sum float64, what string) error {
+	return fmt.Errorf("a draw makes the probabilities under %s sum to %.6g, not 1; write the last one as `rest`", what, sum)
+}
+
 func (f *Floats) weigh() {
-	c := f.c
-	for i := range f.e {
-		own := f.payoff[i]
-		if c.sh.test != nil && c.sh.test[i] >= 0 {
-			own = -f.tcost[c.sh.test[i]]
-		}
-		f.e[i] = f.mass[i] * (f.cash[i] + own)
+	e, mass, cash, own := f.e, f.mass, f.cash, f.own
+	for i := range e {
+		e[i] = mass[i] * (cash[i] + own[i])
 	}
 }
 
 // Rollback rolls the float64 copy back and returns the root's expected
 // value (net).
 func (f *Floats) Rollback() float64 {
-	rollback[float64, float64, floatOps](floatOps{}, f.c.sh, f.restart, f.rho, f.e, f.t, f.best, nil)
+	rollbackFloat64(f.c.sh, f.restart, f.e, f.t, f.best, nil)
 	return f.t[0]
+}
+
+// Follow rolls the float64 copy back with every decision taking the
+// branch policy gives it (as Rollback.Policy returns) and returns the
+// root's expected value (net). Every node's value is still computed, so
+// Total gives the value of each option of a decision with the policy
+// followed below it.
+func (f *Floats) Follow(policy []int32) float64 {
+	rollbackFloat64(f.c.sh, f.restart, f.e, f.t, f.best, policy)
+	return f.t[0]
+}
+
+// rollbackFloat64 is the rollback kernel (kernel.go) written out for
+// float64. The generic kernel calls its number type's operations through
+// a dictionary, which Go does not inline: on float64, where each
+// operation is one instruction, that made it about three times slower,
+// and simulation rolls the tree back twice a run. TestFloatKernelAgrees
+// checks the two give the same values and choices. A frame of its own adds
+// nothing to the node above: in float64 masses never grow too long, so the
+// only frames are branches of probability 0 (no rho).
+func rollbackFloat64(sh *shape, restart []bool, e, t []float64, best []int32, policy []int32) {
+	first, kind := sh.first, sh.kind
+	for i := len(kind) - 1; i >= 0; i-- {
+		from, to := first[i], first[i+1]
+		acc := e[i]
+		switch kind[i] {
+		case tree.KindChance:
+			if restart == nil {
+				for _, v := range t[from:to] {
+					acc += v
+				}
+			} else {
+				for k := from; k < to; k++ {
+					if !restart[k] {
+						acc += t[k]
+					}
+				}
+			}
+		case tree.KindDecision:
+			if from == to {
+				break
+			}
+			var b int32
+			if policy != nil {
+				b = policy[i]
+			} else {
+				m := t[from]
+				ties := int32(0)
+				for k := from + 1; k < to; k++ {
+					switch v := t[k]; {
+					case m < v:
+						m, b, ties = v, k-from, 0
+					case v == m:
+						ties = tiedBit
+					}
+				}
+				b |= ties
+			}
+			best[i] = b
+			acc += t[from+b&^tiedBit]
+		}
+		t[i] = acc
+	}
 }
 
 // Value is the expected value from node i on after the last Rollback (net;
@@ -337,9 +605,4 @@ func (f *Floats) Cash(k int) float64 { return f.cash[k] }
 
 // Own is what node k adds itself: an end's payoff, or minus the cost of the
 // test it runs.
-func (f *Floats) Own(k int) float64 {
-	if c := f.c; c.sh.test != nil && c.sh.test[k] >= 0 {
-		return -f.tcost[c.sh.test[k]]
-	}
-	return f.payoff[k]
-}
+func (f *Floats) Own(k int) float64 { return f.own[k] }

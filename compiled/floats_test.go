@@ -48,6 +48,21 @@ func TestDistributionMeans(t *testing.T) {
 	}
 }
 
+// TestInexactMeanThenAnother: a lognormal's mean is irrational (rounded),
+// and a distribution written after it gets a slot of its own; reading
+// both must work (the inexact marks cover every slot).
+func TestInexactMeanThenAnother(t *testing.T) {
+	src := "let a = lognormal(10, 40)\nlet b = pert(1, 2, 3)\nlet c = a + b\ndecision \"D\"\n  \"x\"  gain c\n  \"y\"\n"
+	m := load(t, src)
+	in, _ := m.InputNamed("c")
+	if in.Exact {
+		t.Errorf("c = %s counted exact; it reads a rounded lognormal mean", in.Value)
+	}
+	if us := m.Uncertain(); len(us) != 2 || us[0].Exact || !us[1].Exact {
+		t.Errorf("uncertain: %+v", us)
+	}
+}
+
 // TestDistributionErrors: bad arguments are errors at the argument.
 func TestDistributionErrors(t *testing.T) {
 	for _, c := range []struct{ expr, want string }{
@@ -113,4 +128,89 @@ decision "Go?"
 		t.Error("a probability of 1.5 accepted")
 	}
 	_ = tree.Max
+}
+
+// TestFloatsNamedAgree: drawn priors and likelihoods of a named
+// uncertainty and its test (with a rest state and a rest reading taken
+// again after each draw) give, with Bayes' rule done on masses, what the
+// model with the drawn values written in gives exactly.
+func TestFloatsNamedAgree(t *testing.T) {
+	src := `let prior = uniform(10%, 40%)
+let hit   = pert(70%, 85%, 95%)
+let loss  = triangular(100, 200, 400)
+uncertainty defect "Defect"
+  "Bad"   prior
+  "Good"  rest
+test probe "Probe" on defect cost 5
+  "Alarm"  hit if "Bad", 10% if "Good"
+  "Clear"  rest
+decision "Release"
+  "Ship"
+    chance defect
+      "Bad"   cost loss
+      "Good"  gain 50
+  "Probe first"
+    test probe
+      "Alarm"
+        decision "After alarm"
+          "Fix"  cost 30
+          "Ship anyway"
+            chance defect
+              "Bad"   cost loss
+              "Good"  gain 50
+      "Clear"
+        chance defect
+          "Bad"   cost loss
+          "Good"  gain 50
+`
+	m := load(t, src)
+	f := m.NewFloats()
+	rng := rand.New(rand.NewSource(8))
+	for i := 0; i < 100; i++ {
+		x := []float64{0.1 + rng.Float64()*0.3, 0.7 + rng.Float64()*0.25, 100 + rng.Float64()*300}
+		if err := f.Draw(x); err != nil {
+			t.Fatal(err)
+		}
+		got := f.Rollback()
+		fixed := strings.NewReplacer("uniform(10%, 40%)", decimal.NewFromFloat(x[0]).String(),
+			"pert(70%, 85%, 95%)", decimal.NewFromFloat(x[1]).String(),
+			"triangular(100, 200, 400)", decimal.NewFromFloat(x[2]).String()).Replace(src)
+		em := load(t, fixed)
+		r := em.Rollback()
+		e, _ := r.Value(0)
+		ef, _ := e.Float64()
+		if math.Abs(got-ef) > 1e-9*math.Max(1, math.Abs(ef)) {
+			t.Fatalf("draw %d %v: %v, exact %v", i, x, got, ef)
+		}
+		// Every branch probability, Bayes' rule included.
+		for k := 1; k < em.Len(); k++ {
+			want, _ := em.Prob(k).Float64()
+			if math.Abs(f.Prob(k)-want) > 1e-12 {
+				t.Fatalf("draw %d node %d: probability %v, exact %v", i, k, f.Prob(k), want)
+			}
+		}
+	}
+}
+
+// TestFloatsDrawRefused: draws that make probabilities unusable are
+// errors that say where, never silently wrong figures.
+func TestFloatsDrawRefused(t *testing.T) {
+	for _, c := range []struct {
+		src  string
+		x    []float64
+		want string
+	}{
+		{"let p = uniform(20%, 40%)\ndecision \"D\"\n  \"a\"\n    chance \"M\"\n      \"u\"  p  gain 1\n      \"d\"  rest\n  \"b\"\n",
+			[]float64{1.2}, `under "M" 1.2, outside [0, 1]`},
+		{"let p = uniform(20%, 40%)\ndecision \"D\"\n  \"a\"\n    chance \"M\"\n      \"u\"  p  gain 1\n      \"d\"  70%\n  \"b\"\n",
+			[]float64{0.35}, `probabilities under "M" sum to 1.05, not 1`},
+		{"let p = uniform(20%, 40%)\nuncertainty u\n  \"x\"  p\n  \"y\"  rest\ndecision \"D\"\n  \"a\"\n    chance u\n      \"x\"  gain 1\n      \"y\"\n  \"b\"\n",
+			[]float64{-0.1}, `under uncertainty u -0.1`},
+	} {
+		f := load(t, c.src).NewFloats()
+		err := f.Draw(c.x)
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%v: %v, want %q", c.x, err, c.want)
+		}
+	}
 }

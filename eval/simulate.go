@@ -1,0 +1,440 @@
+package eval
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math/rand/v2"
+	"runtime"
+	"sync/atomic"
+
+	"github.com/forkcast/forkcast/compiled"
+	pdist "github.com/forkcast/forkcast/dist"
+	"github.com/forkcast/forkcast/tree"
+	"github.com/shopspring/decimal"
+)
+
+// Monte Carlo simulation of a compiled model: every distribution written in
+// it (pert(...), normal(...), …) is drawn, run after run, on the float64
+// copy of the compiled form (compiled.Floats).
+//
+// Each run r draws the random inputs, evaluates again the figures that
+// depend on them and rolls the tree back twice: once with every decision
+// re-made knowing the draws, once following the base-case policy (the
+// policy exact analysis recommends at the means). From these come, for
+// each option of the watched decision:
+//
+//   - its payoff when it is taken and the base-case policy is followed
+//     after it: either one path walked down the tree, chance outcomes drawn
+//     with the run's probabilities (the default), or the expected value of
+//     the option with the run's inputs (InputsOnly);
+//   - whether it is best when the decision is re-made knowing the run's
+//     inputs (P(best));
+//
+// and the expected value of knowing the inputs before deciding: the mean
+// over runs of the best option's value with the inputs known minus the
+// base-case option's value with the same inputs.
+//
+// Runs are reproducible: run r's draws depend only on the seed and r
+// (pdist.Streams), so the results for a seed are identical whatever the
+// number of workers.
+
+// DefaultRuns is the number of runs Simulate makes unless told otherwise.
+const DefaultRuns = 10_000
+
+// DefaultSeed is the seed Simulate uses unless told otherwise: fixed, so
+// that a simulation run twice gives the same figures.
+const DefaultSeed = 1
+
+// MaxRuns caps the runs of one simulation: every run's values are kept
+// (for percentiles), about 8 bytes per run for each input and 16 for each
+// option.
+const MaxRuns = 10_000_000
+
+// Percentiles are the levels a simulation reports for every option, in
+// percent: P5 … P95, with P80 (a common contingency level).
+var Percentiles = [...]int{5, 10, 20, 30, 40, 50, 60, 70, 80, 90, 95}
+
+// SimulateOptions say how Simulate samples.
+type SimulateOptions struct {
+	// Runs is the number of runs (DefaultRuns when 0; at most MaxRuns).
+	Runs int
+	// Seed picks the random streams; the same seed gives the same
+	// results. Use DefaultSeed for the default.
+	Seed uint64
+	// Workers is the number of goroutines (0: one per available CPU). It
+	// never changes the results.
+	Workers int
+	// InputsOnly draws the inputs only: each option's payoff in a run is
+	// its expected value with the run's inputs, chance outcomes averaged
+	// exactly as in the tree, instead of one path walked down it.
+	InputsOnly bool
+	// At names the decision to watch (see WatchedDecision).
+	At string
+	// KeepDraws keeps every run's input draws in the result (Draws), for
+	// a program that wants to save or inspect them.
+	KeepDraws bool
+	// Progress, when set, is called now and then with the number of runs
+	// done so far, from several goroutines at once: it must be safe for
+	// concurrent use.
+	Progress func(done int)
+}
+
+// SimInput is one distribution written in the model.
+type SimInput struct {
+	// Name is the input (`let`) it is the whole expression of, or "" when
+	// it stands inside a larger expression; Written is the call as written.
+	Name    string
+	Written string
+	// Dist is the distribution with its arguments evaluated; Mean the
+	// value exact analyses give it (exact where the mean is rational).
+	Dist      pdist.Distribution
+	Mean      decimal.Decimal
+	MeanExact bool
+}
+
+// Label is how the input is named in reports: its name, or the call as
+// written.
+func (in SimInput) Label() string {
+	if in.Name != "" {
+		return in.Name
+	}
+	return in.Written
+}
+
+// SimOption is what a simulation found for one option of the watched
+// decision. Figures are in the objective's terms (a payoff under max, a
+// cost under min).
+type SimOption struct {
+	Label string
+	// Sample holds the option's payoff in every run done.
+	Sample pdist.Sample
+	// AtMeans is the option's exact expected value with every
+	// distribution at its mean (what solve reports).
+	AtMeans decimal.Decimal
+	// Base marks the option the base-case policy takes.
+	Base bool
+	// PBest is the share of runs in which the option is best when the
+	// decision is re-made knowing the run's inputs (ties go to the first
+	// option in the model).
+	PBest float64
+	// PLoss is the share of runs whose net value is below zero: a
+	// negative payoff under max, a cost above zero under min.
+	PLoss float64
+}
+
+// Estimate is a mean over runs with its standard error.
+type Estimate struct {
+	Mean, StdErr float64
+}
+
+// Simulation is the result of Simulate. It owns its numbers.
+type Simulation struct {
+	// Runs is the number of runs done; Asked the number asked for (more
+	// when the simulation was stopped early: Stopped is then set).
+	Runs, Asked int
+	Stopped     bool
+	Seed        uint64
+	InputsOnly  bool
+	Objective   tree.Objective
+	// Model is the model as written.
+	Model *tree.Model
+	// Decision is the decision watched and Path the branch labels from
+	// the root to it.
+	Decision *tree.Node
+	Path     []string
+	// Inputs are the distributions drawn, in the order of
+	// compiled.Model.Uncertain.
+	Inputs []SimInput
+	// Options are the watched decision's options, in model order.
+	Options []SimOption
+	// KnowInputs is the expected value of knowing the inputs before
+	// deciding: the mean over runs of the best option's value with the
+	// run's inputs known minus the base-case option's (never negative).
+	KnowInputs Estimate
+	// Draws holds, when SimulateOptions.KeepDraws was set, each input's
+	// draw in every run done (Draws[input][run]); Values each option's
+	// payoff in every run, in run order, and BestKnown the option best
+	// with the run's inputs known.
+	Draws     [][]float64
+	Values    [][]float64
+	BestKnown []int
+	// Notes explain choices made along the way.
+	Notes []string
+}
+
+// Simulate samples c by Monte Carlo (see the top of this file). It stops
+// with ctx: the result then holds the runs done by then, Stopped set, and
+// the error is nil unless no run was done.
+func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Simulation, error) {
+	if c == nil {
+		return nil, ErrNoModel
+	}
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	runs := opts.Runs
+	switch {
+	case runs == 0:
+		runs = DefaultRuns
+	case runs < 0:
+		return nil, reqErr("%d runs: ask for at least 1", runs)
+	case runs > MaxRuns:
+		return nil, &BudgetError{What: fmt.Sprintf("%d runs, more than %d", runs, MaxRuns), Option: "SimulateOptions.Runs"}
+	}
+	base, err := Solve(c)
+	if err != nil {
+		return nil, err
+	}
+	d, notes, err := WatchedDecision(base, opts.At)
+	if err != nil {
+		return nil, err
+	}
+	if d == nil {
+		return nil, reqErr("the model has no decision to simulate the options of")
+	}
+	s := &Simulation{Asked: runs, Seed: opts.Seed, InputsOnly: opts.InputsOnly, Objective: c.Objective(),
+		Model: c.Source(), Decision: d.Node, Notes: notes}
+	for _, b := range d.Path() {
+		s.Path = append(s.Path, b.Label)
+	}
+	for _, u := range c.Uncertain() {
+		s.Inputs = append(s.Inputs, SimInput{Name: u.Input, Written: u.Call.String(), Dist: u.Dist, Mean: u.Mean, MeanExact: u.Exact})
+	}
+	if len(s.Inputs) == 0 {
+		if opts.InputsOnly {
+			s.Notes = append(s.Notes, "the model has no distributions: every run is the same")
+		} else {
+			s.Notes = append(s.Notes, "the model has no distributions: only chance outcomes are drawn")
+		}
+	}
+
+	streams := pdist.NewStreams(opts.Seed)
+	draws, err := drawInputs(ctx, c, s.Inputs, streams, runs, opts.Workers)
+	if err != nil {
+		return nil, err
+	}
+
+	node := d.Number()
+	from, to := c.Kids(node)
+	nopt := to - from
+	sim := &simRun{c: c, node: node, from: from, policy: base.Rollback().Policy(), full: !opts.InputsOnly}
+	values := make([][]float64, nopt)
+	for j := range values {
+		values[j] = make([]float64, runs)
+	}
+	bestKnown := make([]int32, runs)
+	know := make([]float64, runs)
+	workers := opts.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	// Work space per worker, made by the worker itself on its first run:
+	// entry w is only ever touched by worker w.
+	spaces := make([]*worker, workers)
+	var counted atomic.Int64
+	done, runErr := pdist.ForEachRun(ctx, streams.Sub(streamOutcomes), runs, workers, func(w, run int, r *rand.Rand) error {
+		ws := spaces[w]
+		if ws == nil {
+			ws = &worker{f: c.NewFloats(), x: make([]float64, len(draws))}
+			spaces[w] = ws
+		}
+		for j := range draws {
+			ws.x[j] = draws[j][run]
+		}
+		if err := ws.f.Draw(ws.x); err != nil {
+			return err
+		}
+		sim.run(ws, r, run, values, bestKnown, know)
+		if opts.Progress != nil {
+			if ws.since++; ws.since == progressEvery {
+				opts.Progress(int(counted.Add(int64(ws.since))))
+				ws.since = 0
+			}
+		}
+		return nil
+	})
+	if runErr != nil && (done == 0 || !isStop(runErr)) {
+		if isStop(runErr) {
+			return nil, runErr
+		}
+		return nil, &SimulationError{Err: runErr}
+	}
+	if opts.Progress != nil {
+		opts.Progress(done)
+	}
+	s.Runs = done
+	s.Stopped = done < runs
+	if s.Stopped {
+		s.Notes = append(s.Notes, fmt.Sprintf("stopped after %d of %d runs; the figures are from those runs", done, runs))
+	}
+	obj := c.Objective()
+	counts := make([]int, nopt)
+	for _, b := range bestKnown[:done] {
+		counts[b]++
+	}
+	for j := range nopt {
+		vs := values[j][:done]
+		loss := 0
+		for i, v := range vs {
+			if v < 0 {
+				loss++
+			}
+			if obj == tree.Min {
+				vs[i] = -v
+			}
+		}
+		sample, err := pdist.NewSample(vs)
+		if err != nil {
+			return nil, &SimulationError{Err: fmt.Errorf("option %q: %w", d.Node.Branches[j].Label, err)}
+		}
+		s.Options = append(s.Options, SimOption{
+			Label:   d.Node.Branches[j].Label,
+			Sample:  sample,
+			AtMeans: d.BranchValue(j),
+			Base:    j == d.Chosen(),
+			PBest:   float64(counts[j]) / float64(done),
+			PLoss:   float64(loss) / float64(done),
+		})
+	}
+	ks, err := pdist.NewSample(know[:done])
+	if err != nil {
+		return nil, &SimulationError{Err: err}
+	}
+	s.KnowInputs = Estimate{Mean: ks.Mean(), StdErr: ks.StdErr()}
+	if opts.KeepDraws {
+		s.Draws = make([][]float64, len(draws))
+		for j := range draws {
+			s.Draws[j] = draws[j][:done]
+		}
+		s.Values = make([][]float64, nopt)
+		for j := range values {
+			s.Values[j] = values[j][:done]
+		}
+		s.BestKnown = make([]int, done)
+		for i, b := range bestKnown[:done] {
+			s.BestKnown[i] = int(b)
+		}
+	}
+	return s, nil
+}
+
+// Sub-streams of a simulation's seed: one family for the inputs, one for
+// chance outcomes, one for the pairing of correlated inputs. Fixed, so
+// that a printed seed reproduces its results in later versions.
+const (
+	streamInputs   = 1
+	streamOutcomes = 2
+	streamPairing  = 3
+)
+
+// progressEvery is how many runs a worker does between calls of
+// SimulateOptions.Progress.
+const progressEvery = 1024
+
+// SimulationError is a simulation that could not be completed: a draw
+// that makes a figure unusable (a probability outside [0, 1]), say.
+type SimulationError struct{ Err error }
+
+func (e *SimulationError) Error() string { return "simulation: " + e.Err.Error() }
+
+// Unwrap returns the cause.
+func (e *SimulationError) Unwrap() error { return e.Err }
+
+// isStop reports whether err is a cancellation (context cancelled or past
+// its deadline).
+func isStop(err error) bool {
+	return errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded)
+}
+
+// drawInputs draws every input for every run: draws[input][run], run r's
+// from its own stream of the inputs family, so that the draws depend only
+// on the seed.
+func drawInputs(ctx context.Context, c *compiled.Model, ins []SimInput, streams pdist.Streams, runs, workers int) ([][]float64, error) {
+	draws := make([][]float64, len(ins))
+	if len(ins) == 0 {
+		return draws, nil
+	}
+	for j := range draws {
+		draws[j] = make([]float64, runs)
+	}
+	_, err := pdist.ForEachRun(ctx, streams.Sub(streamInputs), runs, workers, func(_, run int, r *rand.Rand) error {
+		for j, in := range ins {
+			draws[j][run] = in.Dist.Rand(r)
+		}
+		return nil
+	})
+	return draws, err
+}
+
+// worker is one goroutine's work space.
+type worker struct {
+	f     *compiled.Floats
+	x     []float64 // the run's input draws
+	since int       // runs since the last progress report
+}
+
+// simRun is what every run of one simulation shares (read only).
+type simRun struct {
+	c      *compiled.Model
+	node   int     // the watched decision
+	from   int     // its first child
+	policy []int32 // the base-case policy
+	full   bool    // walk a path for each option (not InputsOnly)
+}
+
+// run evaluates one run on ws.f, whose inputs are drawn: every decision
+// re-made knowing them (P(best), the value of knowing), then the base-case
+// policy followed (each option's payoff). Values are net.
+func (s *simRun) run(ws *worker, r *rand.Rand, run int, values [][]float64, bestKnown []int32, know []float64) {
+	f := ws.f
+	f.Rollback()
+	b := f.Best(s.node)
+	bestKnown[run] = int32(b)
+	best := f.Total(s.from + b)
+	f.Follow(s.policy)
+	know[run] = best - f.Total(s.from+int(s.policy[s.node]))
+	for j := range values {
+		k := s.from + j
+		if !s.full {
+			values[j][run] = f.Total(k)
+			continue
+		}
+		values[j][run] = s.walk(f, k, r)
+	}
+}
+
+// walk follows one path from node k down, taking the base-case policy at
+// decisions and drawing chance outcomes with the run's probabilities, and
+// returns the cash along it (the cash into k included).
+func (s *simRun) walk(f *compiled.Floats, k int, r *rand.Rand) float64 {
+	c := s.c
+	total := f.Cash(k)
+	for {
+		total += f.Own(k)
+		from, to := c.Kids(k)
+		if from == to {
+			return total
+		}
+		switch c.Kind(k) {
+		case tree.KindDecision:
+			k = from + int(s.policy[k])
+		default:
+			u := r.Float64()
+			next := to - 1 // rounding may leave u above the last sum
+			for j := from; j < to; j++ {
+				if u -= f.Prob(j); u < 0 {
+					next = j
+					break
+				}
+			}
+			// A branch of probability 0 is never taken, also when
+			// rounding leaves u at the end.
+			for next > from && f.Prob(next) == 0 {
+				next--
+			}
+			k = next
+		}
+		total += f.Cash(k)
+	}
+}
