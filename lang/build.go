@@ -123,6 +123,7 @@ type builder struct {
 	strays       map[*frame][]strayItem
 	// suggestBudget is what is left of the work suggestions may do.
 	suggestBudget int
+	lastLet       string // the last name found among the lets
 	cash          []pendingCash
 	rootLine      int
 	sawNodeTop    bool

@@ -3,7 +3,6 @@ package lang
 import (
 	"fmt"
 	"slices"
-	"strconv"
 	"strings"
 	"unicode"
 
@@ -214,6 +213,9 @@ type plainChance struct {
 // the same outcomes and probabilities. They are most likely one event
 // written twice; as plain nodes, value-of-information analysis takes them
 // as independent events, which overstates what information is worth.
+// One warning a label is enough to make the point, and once it is given
+// the label's other nodes are not looked at: a generated model with
+// thousands of copies of one chance node costs next to nothing.
 func (b *builder) repeatedChance() {
 	if len(b.chances) < 2 {
 		return
@@ -222,79 +224,67 @@ func (b *builder) repeatedChance() {
 	// a label reused on purpose for many different nodes is left alone,
 	// and the work stays linear.
 	const maxKinds = 8
-	type kind struct {
-		first *chanceOutcomes
-		lines []int
-		at    *plainChance // the second occurrence, where the warning goes
+	type label struct {
+		kinds  []*chanceOutcomes
+		lines  []int
+		warned bool
 	}
-	byLabel := map[string][]*kind{}
-	var order []*kind
+	labels := map[string]*label{}
 	for i := range b.chances {
 		c := &b.chances[i]
 		if c.n.Label == "" || len(c.n.Branches) < 2 {
 			continue
 		}
-		kinds := byLabel[c.n.Label]
+		l := labels[c.n.Label]
+		if l == nil {
+			l = &label{}
+			labels[c.n.Label] = l
+		}
+		if l.warned {
+			continue
+		}
 		o := newChanceOutcomes(c.n)
-		var k *kind
-		for _, x := range kinds {
-			if x.first.same(o) {
-				k = x
+		k := -1
+		for j, x := range l.kinds {
+			if x.same(o) {
+				k = j
 				break
 			}
 		}
-		switch {
-		case k == nil && len(kinds) < maxKinds:
-			k = &kind{first: o}
-			byLabel[c.n.Label] = append(kinds, k)
-			order = append(order, k)
-		case k == nil:
-			continue
-		case k.at == nil:
-			k.at = c
-		}
-		k.lines = append(k.lines, c.line)
-	}
-	for _, k := range order {
-		if k.at == nil {
-			continue
-		}
-		label := k.first.n.Label
-		summary := fmt.Sprintf("chance node %q repeats the one on line %d, with the same outcomes and probabilities", label, k.lines[0])
-		if len(k.lines) > 2 {
-			lines := make([]string, 0, 6)
-			for i, l := range k.lines {
-				if i == 5 {
-					lines = append(lines, "…")
-					break
-				}
-				lines = append(lines, strconv.Itoa(l))
+		if k < 0 {
+			if len(l.kinds) < maxKinds {
+				l.kinds = append(l.kinds, o)
+				l.lines = append(l.lines, c.line)
 			}
-			summary = fmt.Sprintf("chance node %q occurs %d times with the same outcomes and probabilities (lines %s)", label, len(k.lines), strings.Join(lines, ", "))
+			continue
 		}
-		name := uncertaintyName(label)
+		l.warned = true
+		name := uncertaintyName(c.n.Label)
 		hint := fmt.Sprintf("if they are one event, declare it once as a named uncertainty (`uncertainty %s %q` with the outcomes as its states) and write `chance %s` at each place: "+
-			"as plain chance nodes, value-of-information analysis treats them as independent events; if they are separate events, give them different labels", name, label, name)
-		b.ds = append(b.ds, tree.Diagnostic{Severity: tree.Warning, Pos: k.at.n.Pos, Len: k.at.width, Summary: summary, Hint: hint})
+			"as plain chance nodes, value-of-information analysis treats them as independent events; if they are separate events, give them different labels", name, c.n.Label, name)
+		b.ds = append(b.ds, tree.Diagnostic{Severity: tree.Warning, Pos: c.n.Pos, Len: c.width, Hint: hint,
+			Summary: fmt.Sprintf("chance node %q repeats the one on line %d, with the same outcomes and probabilities", c.n.Label, l.lines[k])})
 	}
 }
 
-// chanceOutcomes is a plain chance node's branches in label order, for
-// comparing outcome sets without building keys.
+// chanceOutcomes is a plain chance node's branches, for comparing outcome
+// sets without building keys.
 type chanceOutcomes struct {
-	n    *tree.Node
-	brs  []*tree.Branch
-	rest *decimal.Decimal // the value of its `rest`, computed when needed
-	bad  bool             // rest cannot be valued (the others are not all numbers)
+	n      *tree.Node
+	sorted []*tree.Branch   // in label order, made when needed
+	rest   *decimal.Decimal // the value of its `rest`, computed when needed
+	bad    bool             // rest cannot be valued (the others are not all numbers)
 }
 
-func newChanceOutcomes(n *tree.Node) *chanceOutcomes {
-	brs := n.Branches
-	if !slices.IsSortedFunc(brs, byBranchLabel) {
-		brs = slices.Clone(brs)
-		slices.SortFunc(brs, byBranchLabel)
+func newChanceOutcomes(n *tree.Node) *chanceOutcomes { return &chanceOutcomes{n: n} }
+
+// byLabel returns the branches in label order.
+func (o *chanceOutcomes) byLabel() []*tree.Branch {
+	if o.sorted == nil {
+		o.sorted = slices.Clone(o.n.Branches)
+		slices.SortFunc(o.sorted, byBranchLabel)
 	}
-	return &chanceOutcomes{n: n, brs: brs}
+	return o.sorted
 }
 
 func byBranchLabel(x, y *tree.Branch) int { return strings.Compare(x.Label, y.Label) }
@@ -304,7 +294,7 @@ func byBranchLabel(x, y *tree.Branch) int { return strings.Compare(x.Label, y.La
 func (o *chanceOutcomes) restValue() (decimal.Decimal, bool) {
 	if o.rest == nil && !o.bad {
 		sum := decimal.Zero
-		for _, br := range o.brs {
+		for _, br := range o.n.Branches {
 			if br.Rest {
 				continue
 			}
@@ -325,16 +315,25 @@ func (o *chanceOutcomes) restValue() (decimal.Decimal, bool) {
 // the same probabilities (30% and 0.3 are the same; so are 40% and a
 // `rest` that leaves 40%).
 func (o *chanceOutcomes) same(p *chanceOutcomes) bool {
-	if len(o.brs) != len(p.brs) {
+	ob, pb := o.n.Branches, p.n.Branches
+	if len(ob) != len(pb) {
 		return false
 	}
-	for i, x := range o.brs {
-		if x.Label != p.brs[i].Label {
+	// Most often the outcomes are written in one order; if not, compare
+	// them in label order.
+	for i, x := range ob {
+		if x.Label != pb[i].Label {
+			ob, pb = o.byLabel(), p.byLabel()
+			break
+		}
+	}
+	for i, x := range ob {
+		if x.Label != pb[i].Label {
 			return false
 		}
 	}
-	for i, x := range o.brs {
-		y := p.brs[i]
+	for i, x := range ob {
+		y := pb[i]
 		switch {
 		case x.Rest && y.Rest:
 		case x.Rest || y.Rest:

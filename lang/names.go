@@ -70,6 +70,11 @@ const (
 // defines, from its tokens, so that even a line that could not be read
 // counts.
 func (b *builder) declare(l *srcLine) {
+	switch l.kind {
+	case kLet, kUncertainty, kTest:
+	default:
+		return // most lines: their tokens need not be touched here
+	}
 	toks := l.lx.toks
 	if len(toks) < 2 || toks[1].Type != tokIdent {
 		return
@@ -88,7 +93,10 @@ func (b *builder) declare(l *srcLine) {
 
 // useName records a name met in an expression.
 func (b *builder) useName(t lexer.Token, lx lexed, c exprCtx, top bool) {
-	if b.lets.has(t.Value) {
+	// The same input is often used line after line (cost price, ...):
+	// one comparison instead of a map lookup.
+	if t.Value == b.lastLet || b.lets.has(t.Value) {
+		b.lastLet = t.Value
 		if top && c == ctxCash && b.percentLets != nil {
 			b.usedAsMoney(nameRef{name: t.Value, ctx: c, top: top})
 		}
