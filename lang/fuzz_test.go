@@ -259,12 +259,27 @@ func checkExpr(text string, ps *parsers) string {
 			return fmt.Sprintf("%q: the parser reads %#v, participle %#v", text, e, g.Value)
 		}
 	}
+	// ParseExpr, the same parser for programs: it reads what the parser
+	// reads and lowers without errors, and nothing else; its errors have
+	// positions.
+	px, pds := ParseExpr(text, tree.Pos{Line: 1, Col: 1})
 	if !ok {
+		if px != nil || len(pds) == 0 {
+			return fmt.Sprintf("%q does not read, but ParseExpr gives %v (%v)", text, px, pds)
+		}
+		for _, d := range pds {
+			if !d.Pos.IsValid() || d.Summary == "" {
+				return fmt.Sprintf("%q: ParseExpr diagnostic without position or text: %#v", text, d)
+			}
+		}
 		return ""
 	}
 	b := &builder{}
 	x := b.expr(e, ctxCash, lx)
 	rendered := x.String()
+	if !b.ds.HasErrors() && (px == nil || px.String() != rendered) {
+		return fmt.Sprintf("%q reads as %s, ParseExpr gives %v (%v)", text, rendered, px, pds)
+	}
 
 	// As written: the same structure.
 	written := exprText(e)
