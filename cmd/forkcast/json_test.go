@@ -93,3 +93,21 @@ func varied(t *testing.T, solved string) []string {
 	}
 	return out
 }
+
+// TestStdinJSONDetection: standard input is read as JSON when its first
+// character other than white space (and a byte-order mark) is a brace,
+// however much white space comes first (70 spaces were once read as text).
+func TestStdinJSONDetection(t *testing.T) {
+	model := `{"root": {"type": "decision", "label": "d", "branches": [{"label": "a", "gain": 7}]}}`
+	for _, lead := range []string{"", strings.Repeat(" ", 70), "\ufeff" + strings.Repeat("\r\n\t ", 5000)} {
+		code, out, errs := forkcast(t, lead+model, "solve", "--json", "-")
+		if code != 0 || !strings.Contains(out, `"value": "7"`) {
+			t.Errorf("%d characters of white space: exit %d, %s%s", len(lead), code, out, errs)
+		}
+	}
+	// Text after white space is still text.
+	code, out, errs := forkcast(t, strings.Repeat("\n", 100)+"decision \"d\"\n  \"a\" gain 7\n", "solve", "-")
+	if code != 0 || !strings.Contains(out, "7.00") {
+		t.Errorf("text after blank lines: exit %d, %s%s", code, out, errs)
+	}
+}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"fmt"
 	"io"
 	"os"
@@ -52,9 +53,10 @@ func readSource(c *cli.Context, name string) ([]byte, bool, error) {
 		if err != nil {
 			return nil, false, modelErr("reading standard input: %v", err)
 		}
-		// Standard input has no extension: JSON starts with a brace.
-		trimmed := strings.TrimLeft(strings.TrimPrefix(string(src[:min(len(src), 64)]), "\ufeff"), " \t\r\n")
-		return src, strings.HasPrefix(trimmed, "{"), nil
+		// Standard input has no extension: JSON starts with a brace, after
+		// any amount of white space (no model text starts with one).
+		trimmed := bytes.TrimLeft(bytes.TrimPrefix(src, []byte("\ufeff")), " \t\r\n")
+		return src, len(trimmed) > 0 && trimmed[0] == '{', nil
 	case strings.HasPrefix(name, "example:"):
 		ex, ok := examples.Get(strings.TrimPrefix(name, "example:"))
 		if !ok {
