@@ -29,10 +29,18 @@ type BreakevenOptions struct {
 //	 "vary", "kind" ("parameter", "state" or "branch"), "what",
 //	 "current", "low", "high", "narrowed", "adjust",
 //	 "decision", "path": [...], "options": [...],
-//	 "switches": [{"at", "exact", "below", "above",
+//	 "switches": [{"at", "exact", "fraction", "below", "above",
 //	               "values": [{"option", "value"}]}],
 //	 "segments": [{"from", "to", "best"}],
 //	 "notes": [...]}
+//
+// A switch's "at" is where the best option changes; "exact" says whether
+// the options' values are equal there exactly. An exact switch has
+// "fraction", the point as a fraction ("41/380", or "301000" for a
+// whole number); "at" is then that number, rounded at
+// compiled.DivisionScale places when it is no finite decimal. An
+// approximate switch has no "fraction" and "at" is within
+// 10^-compiled.DivisionScale of the switch.
 type BreakevenReport struct {
 	// Model is the compiled model searched (its values, not the file's,
 	// when inputs were set).
@@ -103,6 +111,45 @@ func (f beFormat) show(x decimal.Decimal, exact bool) string {
 	return s
 }
 
+// maxFraction is the longest fraction a switch line shows; a longer one
+// (the ratio of two long exact figures) is only in the JSON.
+const maxFraction = 32
+
+// point is where a switch is, with the words that say how exactly: "=
+// 61,000 (exact)"; a switch that is exact but no finite decimal as its
+// fraction beside the rounded decimal, "= 41/380 (exact; ≈ 0.107895)"; an
+// approximate one rounded, "≈ 0.107895 (approximate, to 34 decimal
+// places)".
+func (f beFormat) point(sw eval.Switch) string {
+	switch {
+	case !sw.Exact:
+		return fmt.Sprintf("≈ %s (approximate, to %d decimal places)", f.rounded(sw.At), compiled.DivisionScale)
+	case sw.IsDecimal() || sw.Fraction == nil:
+		return "= " + f.full(sw.At) + " (exact)"
+	}
+	if fr := sw.Fraction.RatString(); len(fr) <= maxFraction {
+		return fmt.Sprintf("= %s (exact; ≈ %s)", fr, f.rounded(sw.At))
+	}
+	return fmt.Sprintf("≈ %s (exact as a fraction too long to show: see the JSON report)", f.rounded(sw.At))
+}
+
+// rounded is x as the report rounds it: a percent to 4 decimals, a number
+// to 6.
+func (f beFormat) rounded(x decimal.Decimal) string {
+	if f.prob {
+		return render.Percent(x, 4)
+	}
+	return render.Grouped(x.Round(6).String())
+}
+
+// full is x with every digit it has.
+func (f beFormat) full(x decimal.Decimal) string {
+	if f.prob {
+		return x.Shift(2).String() + "%"
+	}
+	return render.Grouped(x.String())
+}
+
 // WriteText writes the search, each switch with every option's value
 // there, and the best option over the range.
 func (r *BreakevenReport) WriteText(out io.Writer) error {
@@ -133,12 +180,7 @@ func (r *BreakevenReport) WriteText(out io.Writer) error {
 		w.f("No switch: %s is best over the whole range.\n", quoted(be.Options[be.Segments[0].Best]))
 	}
 	for _, sw := range be.Switches {
-		exact := "exact"
-		if !sw.Exact {
-			exact = fmt.Sprintf("approximate, to %d decimal places", compiled.DivisionScale)
-		}
-		w.f("Switch at %s = %s (%s): %s below, %s above\n", name, f.show(sw.At, sw.Exact), exact,
-			quoted(be.Options[sw.Below]), quoted(be.Options[sw.Above]))
+		w.f("Switch at %s %s: %s below, %s above\n", name, f.point(sw), quoted(be.Options[sw.Below]), quoted(be.Options[sw.Above]))
 		var rows [][]string
 		for j, o := range be.Options {
 			rows = append(rows, []string{o, money(sw.Values[j])})
@@ -179,11 +221,12 @@ type breakevenJSON struct {
 }
 
 type switchJSON struct {
-	At     string        `json:"at"`
-	Exact  bool          `json:"exact"`
-	Below  string        `json:"below"`
-	Above  string        `json:"above"`
-	Values []optionValue `json:"values"`
+	At       string        `json:"at"`
+	Exact    bool          `json:"exact"`
+	Fraction string        `json:"fraction,omitempty"`
+	Below    string        `json:"below"`
+	Above    string        `json:"above"`
+	Values   []optionValue `json:"values"`
 }
 
 type optionValue struct {
@@ -216,6 +259,9 @@ func (r *BreakevenReport) shape() breakevenJSON {
 	}
 	for _, sw := range be.Switches {
 		sj := switchJSON{At: sw.At.String(), Exact: sw.Exact, Below: be.Options[sw.Below], Above: be.Options[sw.Above]}
+		if sw.Exact && sw.Fraction != nil {
+			sj.Fraction = sw.Fraction.RatString()
+		}
 		for j, o := range be.Options {
 			sj.Values = append(sj.Values, optionValue{Option: o, Value: sw.Values[j].String()})
 		}

@@ -65,7 +65,7 @@ func (r *SolveReport) WriteText(w io.Writer) error {
 	p.policy(sol)
 	if !r.Options.OmitTree {
 		t.ln()
-		t.ln("Tree (expected value at each node)")
+		t.f("%s", treeKey(figuresFor(m)))
 		p.tree(sol)
 	}
 	return t.Flush()
@@ -151,10 +151,51 @@ func quotedList(s *eval.Solved, idx []int) string {
 	return strings.Join(q, ", ")
 }
 
-// tree prints the tree as indented text, iteratively (deep trees).
+// figures names the figures of the text tree, in the objective's words,
+// so that none is read for another (the same words as the drawing's).
+type figures struct {
+	fromHere, option, total string
+}
+
+func figuresFor(m *tree.Model) figures {
+	if m.Objective == tree.Min {
+		return figures{"expected cost from here", "option expected cost", "path total cost"}
+	}
+	return figures{"EV from here", "option EV", "path total"}
+}
+
+// treeKey is the heading of the text tree: what each figure counts.
+func treeKey(f figures) string {
+	rows := [][2]string{
+		{f.fromHere, "what follows a node, not the cash on the branch into it"},
+		{f.option, "an option of a decision, its own cash included"},
+		{f.total, "all the cash from the root to an end, beside the path's probability"},
+	}
+	width := 0
+	for _, r := range rows {
+		width = max(width, len(r[0]))
+	}
+	var b strings.Builder
+	b.WriteString("Tree\n")
+	for _, r := range rows {
+		b.WriteString("  " + r[0] + strings.Repeat(" ", width-len(r[0])) + "   " + r[1] + "\n")
+	}
+	b.WriteString("\n")
+	return b.String()
+}
+
+// tree prints the tree as indented text, iteratively (deep trees): each
+// node with its value from there on, each option of a decision with its
+// value, each end with its path total and path probability.
 func (p printer) tree(sol *eval.Solution) {
 	w := p.t
-	w.f("%s  %s\n", describe(sol.Root.Node), p.money(sol.Root.Value())+choiceNote(sol.Root))
+	f := figuresFor(p.m)
+	ends := sol.Ends()
+	endOf := make([]int32, len(sol.Nodes())) // pre-order index → 1 + index in ends
+	for k := range ends {
+		endOf[ends[k].Index()] = int32(k + 1)
+	}
+	w.f("%s  %s %s%s\n", describe(sol.Root.Node), f.fromHere, p.money(sol.Root.Value()), choiceNote(sol.Root))
 	type item struct {
 		s     *eval.Solved
 		depth int
@@ -190,17 +231,20 @@ func (p printer) tree(sol *eval.Solution) {
 		if parent.Node.Kind == tree.KindChance {
 			parts = append(parts, render.Percent(parent.Prob(s.Via()), 2))
 		}
-		cash := parent.Cash(s.Via())
-		if cs := p.cash(cash); cs != "" {
+		if cs := p.cash(parent.Cash(s.Via())); cs != "" {
 			parts = append(parts, cs)
 		}
-		line := strings.Join(parts, "  ")
-		if s.Node.Kind == tree.KindEnd {
-			w.f("%s%s  -> %s\n", prefix, line, p.money(s.Value().Add(cash)))
+		if parent.Node.Kind == tree.KindDecision {
+			parts = append(parts, f.option+" "+p.money(parent.BranchValue(s.Via())))
+		}
+		if e := endOf[s.Index()]; e > 0 {
+			end := ends[e-1]
+			parts = append(parts, f.total+" "+p.money(end.Payoff), "path probability "+render.Percent(end.Prob, 2))
+			w.f("%s%s\n", prefix, strings.Join(parts, "  "))
 			continue
 		}
-		w.f("%s%s\n", prefix, line)
-		w.f("%s  %s  %s%s\n", prefix, describe(s.Node), p.money(s.Value()), choiceNote(s))
+		w.f("%s%s\n", prefix, strings.Join(parts, "  "))
+		w.f("%s  %s  %s %s%s\n", prefix, describe(s.Node), f.fromHere, p.money(s.Value()), choiceNote(s))
 		push(s, it.depth+1)
 	}
 }

@@ -36,7 +36,22 @@ type VOIOptions struct {
 // "evpi" and "value_with_perfect_information" are null when the total is
 // over the work budget ("evpi_note" says so); likelihood, joint and
 // posterior are aligned with "states". A Site is one decision branch that
-// runs the test; see siteJSON for its fields.
+// runs the test:
+//
+//	{"decision", "path": [...], "branch", "alternative", "on_policy",
+//	 "value_without", "value_with_information", "other_cash",
+//	 "value_with_before_cost", "value_with_after_cost",
+//	 "evsi", "test_cost", "net_gain", "most_to_pay", "evpi", "efficiency",
+//	 "recommendation" ("test", "do not test" or "indifferent"), "note"}
+//
+// The value_* figures and other_cash are in the objective's terms (a
+// payoff under max, a cost under min), as eval.TestSite holds them:
+// value_with_information is the testing branch's value with the test's
+// information before any cost, other_cash the other money on that branch
+// (a delay, a set-up cost), value_with_before_cost the two together. evsi
+// (the information alone), test_cost, net_gain (after every cost),
+// most_to_pay and evpi are amounts: a gain under max, a saving under min.
+// "efficiency" is evsi / evpi, or null when it has no meaning.
 type VOIReport struct {
 	Solution *eval.Solution
 	Info     *eval.Information
@@ -187,12 +202,29 @@ func (r *VOIReport) writeTest(w textOut, tv *eval.TestValue, words voiWords) {
 		w.ln(":")
 		var rows [][]string
 		line := func(label string, v string) { rows = append(rows, []string{label, v}) }
+		other, otherWord := otherMoney(r.Solution.Model.Objective, s.OtherCash)
 		line(words.value+" deciding without the test", money(s.Without))
-		line(words.value+" with the test, before its cost", money(s.WithBeforeCost))
+		if otherWord == "" {
+			line(words.value+" with the test, before its cost", money(s.WithInfo))
+		} else {
+			line(words.value+" with the test's information, before any cost", money(s.WithInfo))
+		}
 		line("EVSI: what the test's information is worth", money(s.EVSI))
-		line("the test's cost", money(tv.Cost))
-		line("expected net "+words.gain+" of testing (EVSI − cost)", money(s.NetGain))
-		line("the most worth paying for the test", money(s.MostToPay))
+		if otherWord != "" {
+			line("other "+otherWord+" on the testing branch (not the test's)", money(other))
+		}
+		line("the test's cost", money(s.TestCost))
+		switch otherWord {
+		case "":
+			line("expected net "+words.gain+" of testing (EVSI − cost)", money(s.NetGain))
+			line("the most worth paying for the test", money(s.MostToPay))
+		case "cost":
+			line("expected net "+words.gain+" of testing (EVSI − test's cost − other cost)", money(s.NetGain))
+			line("the most worth paying for the test, given the other cost", money(s.MostToPay))
+		default:
+			line("expected net "+words.gain+" of testing (EVSI − test's cost + other gain)", money(s.NetGain))
+			line("the most worth paying for the test, given the other gain", money(s.MostToPay))
+		}
 		line("EVPI of "+u.Name+" against deciding without the test", money(s.EVPI))
 		if s.HasEfficiency {
 			line("efficiency of the test (EVSI / EVPI)", render.Percent(s.Efficiency, 1))
@@ -201,17 +233,40 @@ func (r *VOIReport) writeTest(w textOut, tv *eval.TestValue, words voiWords) {
 		if s.Note != "" {
 			w.f("    note: %s\n", r.Options.Names.Apply(s.Note))
 		}
+		costs := "its cost"
+		if otherWord != "" {
+			costs = "its cost and the other " + otherWord + " on its branch"
+		}
 		switch s.Advice {
 		case eval.RunTest:
-			w.f("  Recommendation: run the test: it is expected to %s %s after its cost.\n", words.more, money(s.NetGain))
+			w.f("  Recommendation: run the test: it is expected to %s %s after %s.\n", words.more, money(s.NetGain), costs)
 		case eval.Indifferent:
-			w.ln("  Recommendation: either way: the test is expected to pay exactly its cost.")
+			w.f("  Recommendation: either way: the test is expected to pay exactly %s.\n", costs)
 		default:
-			w.f("  Recommendation: decide without the test: its information is worth %s, less than its cost of %s.\n", money(s.MostToPay), money(tv.Cost))
+			if otherWord == "" {
+				w.f("  Recommendation: decide without the test: its information is worth %s, less than its cost of %s.\n", money(s.MostToPay), money(s.TestCost))
+			} else {
+				w.f("  Recommendation: decide without the test: its information is worth %s; with the other %s on its branch, the test is worth paying at most %s, less than its cost of %s.\n",
+					money(s.EVSI), otherWord, money(s.MostToPay), money(s.TestCost))
+			}
 		}
 	}
 	for _, msg := range tv.Warnings {
 		w.f("  warning: %s\n", r.Options.Names.Apply(msg))
+	}
+}
+
+// otherMoney is the other money on a testing branch as an amount and
+// whether it is a "cost" or a "gain" ("" when there is none); other is in
+// the objective's terms.
+func otherMoney(obj tree.Objective, other decimal.Decimal) (decimal.Decimal, string) {
+	switch net := obj.Net(other); {
+	case net.IsZero():
+		return net, ""
+	case net.IsNegative():
+		return net.Neg(), "cost"
+	default:
+		return net, "gain"
 	}
 }
 
@@ -264,9 +319,7 @@ type readingJSON struct {
 	Posterior  []string `json:"posterior"`
 }
 
-// siteJSON is one decision branch that runs a test: the decision, the
-// labels of the branches from the root to it, the testing branch and its
-// best alternative, and the figures of eval.TestSite.
+// siteJSON is one decision branch that runs a test (see VOIReport).
 type siteJSON struct {
 	Decision       string   `json:"decision"`
 	Path           []string `json:"path"`
@@ -274,9 +327,12 @@ type siteJSON struct {
 	Alternative    string   `json:"alternative"`
 	OnPolicy       bool     `json:"on_policy"`
 	Without        string   `json:"value_without"`
+	WithInfo       string   `json:"value_with_information"`
+	OtherCash      string   `json:"other_cash"`
 	WithBeforeCost string   `json:"value_with_before_cost"`
 	WithAfterCost  string   `json:"value_with_after_cost"`
 	EVSI           string   `json:"evsi"`
+	TestCost       string   `json:"test_cost"`
 	NetGain        string   `json:"net_gain"`
 	MostToPay      string   `json:"most_to_pay"`
 	EVPI           string   `json:"evpi"`
@@ -330,8 +386,9 @@ func (r *VOIReport) shape() voiJSON {
 			d := s.Decision
 			sj := siteJSON{Decision: d.Node.Display(), Path: []string{}, Branch: d.Node.Branches[s.Branch].Label,
 				Alternative: d.Node.Branches[s.Alternative].Label, OnPolicy: s.OnPolicy,
-				Without: s.Without.String(), WithBeforeCost: s.WithBeforeCost.String(), WithAfterCost: s.WithAfterCost.String(),
-				EVSI: s.EVSI.String(), NetGain: s.NetGain.String(), MostToPay: s.MostToPay.String(), EVPI: s.EVPI.String(),
+				Without: s.Without.String(), WithInfo: s.WithInfo.String(), OtherCash: s.OtherCash.String(),
+				WithBeforeCost: s.WithBeforeCost.String(), WithAfterCost: s.WithAfterCost.String(),
+				EVSI: s.EVSI.String(), TestCost: s.TestCost.String(), NetGain: s.NetGain.String(), MostToPay: s.MostToPay.String(), EVPI: s.EVPI.String(),
 				Recommendation: s.Advice.String(), Note: note(s.Note)}
 			for _, b := range d.Path() {
 				sj.Path = append(sj.Path, b.Label)

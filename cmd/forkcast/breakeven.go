@@ -45,8 +45,15 @@ func breakevenCommand() *cli.Command {
 			"decisions share the label (a subtree used in several places), the one the\n" +
 			"policy reaches is watched; BRANCH/DECISION picks the one reached through a\n" +
 			"branch of that label, e.g. --at 'No survey/Drill or sell'.\n\n" +
-			"A switch is exact when the two options' values are equal there; otherwise it is\n" +
-			"found to " + fmt.Sprint(compiled.DivisionScale) + " decimal places and marked approximate (≈).",
+			"A switch is exact when the two options' values are equal there exactly; one\n" +
+			"that is no finite decimal is shown as a fraction, the decimal rounded beside it:\n" +
+			"   Switch at licence = 301,000 (exact)\n" +
+			"   Switch at p_defect = 52/1077 (exact; ≈ 4.8282%)\n" +
+			"Otherwise (an input that enters the values non-linearly, such as a probability\n" +
+			"used twice on one path) it is found to " + fmt.Sprint(compiled.DivisionScale) + " decimal places and marked\n" +
+			"approximate:  Switch at p ≈ 54.7723% (approximate, to " + fmt.Sprint(compiled.DivisionScale) + " decimal places).\n" +
+			"Under each switch: every option's expected value there (they tie). --json\n" +
+			"carries every figure exactly, and an exact switch's \"fraction\".",
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "vary", Usage: "the input to vary: `NAME`, UNCERTAINTY:STATE or NODE/BRANCH"},
 			&cli.StringFlag{Name: "in", Usage: "search `LOW..HIGH` (default: the parameter's own range, or 0..1 for a probability)"},

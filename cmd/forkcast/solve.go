@@ -15,14 +15,21 @@ func solveCommand() *cli.Command {
 			"   forkcast solve example:release --json > solved.json\n" +
 			"   cat model.json | forkcast solve -",
 		Description: "Reads the model, rolls the tree back with exact decimal arithmetic and prints:\n" +
-			"the expected value of the whole tree; the recommended policy, decision by\n" +
-			"decision, with the expected value of every option and the margin of the best\n" +
-			"over the runner-up; and the tree as indented text with each node's expected\n" +
-			"value (* marks the option the policy takes, = one tied with it, x one it\n" +
-			"rejects).\n\n" +
+			"the expected value (EV) of the whole tree; the recommended policy, decision by\n" +
+			"decision, with the EV of every option and the margin of the best over the\n" +
+			"runner-up; and the tree as indented text, where each figure says what it counts:\n" +
+			"   EV from here   at a node: what follows it, not the cash on the branch into it\n" +
+			"   option EV      at each option of a decision: its value with its own cash;\n" +
+			"                  the figures the decision compares\n" +
+			"   path total     at an end: all the cash from the root to it, beside the\n" +
+			"                  path probability (the chance of ending there when every\n" +
+			"                  decision on the way is taken as the path takes it)\n" +
+			"(under objective min: expected cost from here, option expected cost, path\n" +
+			"total cost). * marks the option the policy takes, = one tied with it, x one it\n" +
+			"rejects.\n\n" +
 			"Money is rounded to the currency's minor unit for display; --json carries the\n" +
 			"full exact values. An expected value is a long-run average over many such\n" +
-			"decisions, not the outcome of this one: look at the spread too.",
+			"decisions, not the outcome of this one: the path totals show the spread.",
 		Flags: []cli.Flag{
 			&cli.BoolFlag{Name: "json", Usage: "print the solved tree as JSON (the interchange format, every node with \"value\", every decision with \"best\")"},
 			&cli.BoolFlag{Name: "no-tree", Usage: "leave out the indented tree (for big models)"},

@@ -25,11 +25,16 @@ func voiCommand() *cli.Command {
 			"uncertainties only, and the output says so.)\n\n" +
 			"For each `test` declared in the model: Bayes' rule at the prior (likelihoods\n" +
 			"P(reading | state), joint and marginal probabilities, posteriors), and at each\n" +
-			"decision with a branch that runs the test: EVSI, the expected value of the\n" +
-			"test's information (the branch as if the test were free, over the best other\n" +
-			"branch); the expected net gain of testing (EVSI minus the cost); the most worth\n" +
-			"paying for it; its efficiency (EVSI / EVPI of the tested uncertainty at that\n" +
-			"decision); and the recommendation: test or not.\n\n" +
+			"decision with a branch that runs the test:\n" +
+			"   EVSI                 the expected value of the test's information alone:\n" +
+			"                        what the decision is worth with it, before any cost,\n" +
+			"                        over the best other branch\n" +
+			"   other cost           money on the testing branch that is not the test's\n" +
+			"                        (a delay, a set-up), shown apart when there is some\n" +
+			"   net gain of testing  EVSI minus the test's cost and the other costs\n" +
+			"   most worth paying    the test's cost at which testing breaks even\n" +
+			"   efficiency           EVSI / EVPI of the tested uncertainty at that decision\n" +
+			"and the recommendation: test or not.\n\n" +
 			"The figures are exact; money is shown rounded to the currency's minor unit and\n" +
 			"--json carries every value in full.",
 		Flags: []cli.Flag{

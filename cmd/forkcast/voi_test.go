@@ -184,3 +184,112 @@ func TestMessagesNameFlags(t *testing.T) {
 		}
 	}
 }
+
+// delayModel is a launch decision with a market test whose branch also
+// carries a delay cost (invented data). The figures, by hand (objective
+// max; demand High 40% / Low 60%; launching pays 200,000 if High and
+// costs 85,000 if Low; the test reads "Good" with probability 94% if High
+// and 20% if Low; it costs 5,000 and the branch that runs it also costs
+// DELAY):
+//
+//   - deciding now: launch, 0.4 × 200,000 − 0.6 × 85,000 = 29,000;
+//   - after "Good" (joint 0.376 High, 0.12 Low) launching adds
+//     0.376 × 200,000 − 0.12 × 85,000 = 65,000; after "Poor" (joint
+//     0.024, 0.48) it would add 4,800 − 40,800 < 0, so do not launch:
+//     with the test's information the value is 65,000;
+//   - EVSI, the information alone: 65,000 − 29,000 = 36,000 (and not
+//     36,000 − DELAY, which counts the delay as part of the information);
+//   - EVPI at the decision: knowing the demand, launch only if High:
+//     0.4 × 200,000 = 80,000, so 80,000 − 29,000 = 51,000; efficiency
+//     36,000 / 51,000 = 70.6%;
+//   - net gain of testing: 36,000 − 5,000 − DELAY; the most worth paying
+//     for the test: 36,000 − DELAY.
+const delayModel = `title "Market test with a launch delay"
+currency EUR
+
+uncertainty demand "Demand"
+  "High"  40%
+  "Low"   rest
+
+test probe "Market test" on demand cost 5_000
+  "Good"  94% if "High", 20% if "Low"
+  "Poor"  rest
+
+subtree launch
+  decision "Launch"
+    "Launch"
+      chance demand
+        "High"  gain 200_000
+        "Low"   cost 85_000
+    "Do not launch"
+
+decision "First"
+  "Decide now"
+    use launch
+  "Test first"  cost DELAY
+    test probe
+      "Good"
+        use launch
+      "Poor"
+        use launch
+`
+
+// EVSI on a testing branch that carries other costs is the information
+// alone, reported apart from those costs, each figure labelled for what
+// it is.
+func TestVOIOtherCosts(t *testing.T) {
+	p := writeFile(t, "delay.fork", strings.Replace(delayModel, "DELAY", "15_000", 1))
+	code, out, errs := forkcast(t, "", "voi", p)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	// DELAY = 15,000: net gain 16,000; the most worth paying 21,000.
+	for _, want := range []string{
+		"expected value deciding without the test                         29,000.00 EUR",
+		"expected value with the test's information, before any cost      65,000.00 EUR",
+		"EVSI: what the test's information is worth                       36,000.00 EUR",
+		"other cost on the testing branch (not the test's)                15,000.00 EUR",
+		"the test's cost                                                   5,000.00 EUR",
+		"expected net gain of testing (EVSI − test's cost − other cost)   16,000.00 EUR",
+		"the most worth paying for the test, given the other cost         21,000.00 EUR",
+		"EVPI of demand against deciding without the test                 51,000.00 EUR",
+		"efficiency of the test (EVSI / EVPI)                                     70.6%",
+		"Recommendation: run the test: it is expected to gain 16,000.00 EUR after its cost and the other cost on its branch.",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	_, out, _ = forkcast(t, "", "voi", p, "--json")
+	var v struct {
+		Tests []struct {
+			Sites []map[string]any `json:"sites"`
+		} `json:"tests"`
+	}
+	if err := json.Unmarshal([]byte(out), &v); err != nil || len(v.Tests) != 1 || len(v.Tests[0].Sites) != 1 {
+		t.Fatalf("%v:\n%s", err, out)
+	}
+	// In the objective's terms (a payoff under max): the delay is −15,000.
+	want := map[string]string{"value_without": "29000", "value_with_information": "65000", "other_cash": "-15000",
+		"value_with_before_cost": "50000", "value_with_after_cost": "45000", "evsi": "36000", "test_cost": "5000",
+		"net_gain": "16000", "most_to_pay": "21000", "evpi": "51000", "recommendation": "test"}
+	for k, w := range want {
+		if got := v.Tests[0].Sites[0][k]; got != w {
+			t.Errorf("%s = %v, want %s", k, got, w)
+		}
+	}
+
+	// DELAY = 35,000: the information is still worth 36,000, but after the
+	// delay the test is worth at most 1,000, less than its 5,000.
+	p = writeFile(t, "delay.fork", strings.Replace(delayModel, "DELAY", "35_000", 1))
+	_, out, _ = forkcast(t, "", "voi", p)
+	for _, want := range []string{
+		"EVSI: what the test's information is worth                       36,000.00 EUR",
+		"expected net gain of testing (EVSI − test's cost − other cost)   -4,000.00 EUR",
+		"Recommendation: decide without the test: its information is worth 36,000.00 EUR; with the other cost on its branch, the test is worth paying at most 1,000.00 EUR, less than its cost of 5,000.00 EUR.",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+}
