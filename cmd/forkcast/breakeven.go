@@ -60,6 +60,7 @@ func breakevenCommand() *cli.Command {
 			&cli.StringFlag{Name: "at", Usage: "watch the decision with this `LABEL`"},
 			&cli.BoolFlag{Name: "json", Usage: "print the result as JSON, values as exact decimal strings"},
 			&cli.IntFlag{Name: "max-samples", Value: eval.DefaultMaxSamples, Usage: "stop the search after `N` rollbacks"},
+			setFlag(),
 			maxNodesFlag,
 		},
 		Action: func(c *cli.Context) error {

@@ -27,6 +27,7 @@ func checkCommand() *cli.Command {
 			"used.",
 		Flags: []cli.Flag{
 			&cli.IntFlag{Name: "warnings", Value: 50, Usage: "show at most `N` warnings (-1: all); errors are always all shown"},
+			setFlag(),
 			maxNodesFlag,
 		},
 		Action: func(c *cli.Context) error {

@@ -53,6 +53,7 @@ func drawCommand() *cli.Command {
 			&cli.BoolFlag{Name: "policy-only", Usage: "draw only the optimal policy; fold each decision's other options into one stub"},
 			&cli.IntFlag{Name: "depth", Usage: "draw `N` levels below the root and sum up deeper subtrees (0: all)"},
 			&cli.IntFlag{Name: "wrap", Usage: "wrap labels at `N` characters", Value: render.DefaultWrapWidth},
+			setFlag(),
 			maxNodesFlag,
 		},
 		Action: drawAction,

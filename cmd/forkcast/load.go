@@ -79,11 +79,16 @@ func readSource(c *cli.Context, name string) ([]byte, bool, error) {
 	return src, isJSON, nil
 }
 
-// loadModel reads, parses and resolves FILE. Errors and warnings go to
+// loadModel reads, parses and compiles FILE, with the inputs given by
+// --set. Errors and warnings go to
 // standard error as file:line:col diagnostics; a model with errors returns
 // an exit-1 error.
 func loadModel(c *cli.Context) (*loaded, error) {
 	name, err := fileArg(c)
+	if err != nil {
+		return nil, err
+	}
+	sets, err := parseSettings(c)
 	if err != nil {
 		return nil, err
 	}
@@ -117,6 +122,10 @@ func loadModel(c *cli.Context) (*loaded, error) {
 			return nil, modelErr("%s: %d error%s", shown, n, plural(n))
 		}
 		return nil, modelErr("%s: %d error%s; nothing was solved", shown, n, plural(n))
+	}
+	cm, err = applySettings(c, cm, sets, shown, src)
+	if err != nil {
+		return nil, err
 	}
 	return &loaded{Model: cm.Source(), Compiled: cm, Name: shown, Src: src, Diags: ds}, nil
 }

@@ -33,6 +33,7 @@ func solveCommand() *cli.Command {
 		Flags: []cli.Flag{
 			&cli.BoolFlag{Name: "json", Usage: "print the solved tree as JSON (the interchange format, every node with \"value\", every decision with \"best\")"},
 			&cli.BoolFlag{Name: "no-tree", Usage: "leave out the indented tree (for big models)"},
+			setFlag(),
 			maxNodesFlag,
 		},
 		Action: func(c *cli.Context) error {

@@ -41,6 +41,7 @@ func voiCommand() *cli.Command {
 			&cli.BoolFlag{Name: "json", Usage: "print the analysis as JSON: \"evpi\" (the total), \"uncertainties\" and \"tests\", values as exact decimal strings"},
 			&cli.IntFlag{Name: "max-scenarios", Value: eval.DefaultMaxScenarios, Usage: "enumerate at most `N` joint states of the named uncertainties for the total EVPI"},
 			&cli.IntFlag{Name: "max-work", Value: eval.DefaultMaxWork, Usage: "stop each part of the analysis after `N` node evaluations"},
+			setFlag(),
 			maxNodesFlag,
 		},
 		Action: func(c *cli.Context) error {
