@@ -62,6 +62,7 @@ func sensitivityCommand() *cli.Command {
 			&cli.IntFlag{Name: "points", Usage: "work out each input's value curve at `N`+1 evenly spaced values as well as the ends, the base and the switches",
 				DefaultText: fmt.Sprintf("%d with --spider, else 0", defaultSpiderPoints)},
 			&cli.IntFlag{Name: "max-samples", Value: eval.DefaultSensitivityMaxSamples, Usage: "stop after `N` rollbacks in all"},
+			setFlag(),
 			maxNodesFlag,
 		},
 		Action: sensitivityAction,

@@ -48,6 +48,7 @@ func sweepCommand() *cli.Command {
 			&cli.BoolFlag{Name: "json", Usage: "print the result as JSON, every figure an exact decimal string"},
 			&cli.StringFlag{Name: "chart", Usage: "write the chart to `FILE` (.svg or .png)"},
 			&cli.IntFlag{Name: "max-samples", Value: eval.DefaultSweepMaxSamples, Usage: "stop after `N` rollbacks"},
+			setFlag(),
 			maxNodesFlag,
 		},
 		Action: sweepAction,
