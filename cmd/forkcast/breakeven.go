@@ -18,11 +18,12 @@ func breakevenCommand() *cli.Command {
 		Name:      "breakeven",
 		Usage:     "find where the best option changes as one input varies",
 		ArgsUsage: "FILE",
-		UsageText: "forkcast breakeven --vary NAME [--in LOW..HIGH] [--at DECISION] [--json] FILE\n\n" +
+		UsageText: "forkcast breakeven --vary NAME [--in LOW..HIGH] [--at DECISION] [--json] [--set NAME=VALUE]... FILE\n\n" +
 			"   forkcast breakeven examples/sourcing.fork --vary licence\n" +
 			"   forkcast breakeven examples/release.fork --vary defect:Defective --in 0..50%\n" +
 			"   forkcast breakeven examples/sourcing.fork --vary 'Integration with the fare back office/Clean'\n" +
-			"   forkcast breakeven examples/release.fork --vary recall --in 20_000..900_000 --at Release",
+			"   forkcast breakeven examples/release.fork --vary recall --in 20_000..900_000 --at Release\n" +
+			"   forkcast breakeven example:sourcing --vary licence --set p_late=45%",
 		Description: "Varies one input over a range and reports every value at which the best option\n" +
 			"of a decision changes (the breakeven or threshold points), which option is best\n" +
 			"on each side, and every option's expected value there.\n\n" +

@@ -14,8 +14,9 @@ func checkCommand() *cli.Command {
 		Name:      "check",
 		Usage:     "parse and validate a model; report every error and warning",
 		ArgsUsage: "FILE",
-		UsageText: "forkcast check FILE\n\n" +
-			"   forkcast check model.fork && forkcast solve model.fork",
+		UsageText: "forkcast check [--warnings N] [--set NAME=VALUE]... FILE\n\n" +
+			"   forkcast check model.fork && forkcast solve model.fork\n" +
+			"   forkcast check example:sourcing --set p_late=50%    still valid with a 50% chance of delay?",
 		Description: "Reads the model and reports every problem found, not only the first, as\n" +
 			"file:line:col: message, the source line, a caret under the spot and a hint.\n" +
 			"Errors (exit status 1) stop a model from being solved: syntax, unknown names,\n" +
@@ -24,7 +25,10 @@ func checkCommand() *cli.Command {
 			"another option of the same decision in every outcome or in distribution\n" +
 			"(first-order stochastic dominance: the other has at least as high a chance\n" +
 			"of beating any figure, with the best choices made after it), `let`s never\n" +
-			"used.",
+			"used.\n\n" +
+			"With --set NAME=VALUE the model is checked with that input changed: a value\n" +
+			"that makes it invalid (probabilities no longer summing to 1) is reported at\n" +
+			"the lines it breaks, and the options dominated are those of the changed model.",
 		Flags: []cli.Flag{
 			&cli.IntFlag{Name: "warnings", Value: 50, Usage: "show at most `N` warnings (-1: all); errors are always all shown"},
 			setFlag(),

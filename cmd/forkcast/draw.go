@@ -19,11 +19,12 @@ func drawCommand() *cli.Command {
 		Name:      "draw",
 		Usage:     "draw the solved tree as a picture (SVG, PNG or Graphviz DOT)",
 		ArgsUsage: "FILE",
-		UsageText: "forkcast draw [-o OUT] [--format svg|png|dot] [--policy-only] [--depth N] FILE\n\n" +
+		UsageText: "forkcast draw [-o OUT] [--format svg|png|dot] [--policy-only] [--depth N] [--set NAME=VALUE]... FILE\n\n" +
 			"   forkcast draw examples/sourcing.fork              writes sourcing.svg\n" +
 			"   forkcast draw example:sourcing -o docs/tree.png\n" +
 			"   forkcast draw big.json --policy-only --depth 4 -o big.svg\n" +
-			"   forkcast draw model.fork -o - | gzip > tree.svgz",
+			"   forkcast draw model.fork -o - | gzip > tree.svgz\n" +
+			"   forkcast draw example:sourcing --set licence=280_000 -o cheaper.svg",
 		Description: "Solves the model and draws the tree left to right: decisions as squares,\n" +
 			"chance nodes as circles, end nodes as triangles. Every branch shows its label,\n" +
 			"probability and cash flow (gain or cost). Each figure says what it counts:\n" +

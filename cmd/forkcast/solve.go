@@ -10,8 +10,9 @@ func solveCommand() *cli.Command {
 		Name:      "solve",
 		Usage:     "roll the tree back: the best policy and its expected value",
 		ArgsUsage: "FILE",
-		UsageText: "forkcast solve [--json] [--no-tree] FILE\n\n" +
+		UsageText: "forkcast solve [--json] [--no-tree] [--set NAME=VALUE]... FILE\n\n" +
 			"   forkcast solve examples/sourcing.fork\n" +
+			"   forkcast solve example:sourcing --set licence=280_000    as if the licence cost 280,000\n" +
 			"   forkcast solve example:release --json > solved.json\n" +
 			"   cat model.json | forkcast solve -",
 		Description: "Reads the model, rolls the tree back with exact decimal arithmetic and prints:\n" +
@@ -27,6 +28,8 @@ func solveCommand() *cli.Command {
 			"(under objective min: expected cost from here, option expected cost, path\n" +
 			"total cost). * marks the option the policy takes, = one tied with it, x one it\n" +
 			"rejects.\n\n" +
+			"--set NAME=VALUE answers for the model with an input (a `let`) at another\n" +
+			"value, exactly as if its `let` line said so; give it once per input.\n\n" +
 			"Money is rounded to the currency's minor unit for display; --json carries the\n" +
 			"full exact values. An expected value is a long-run average over many such\n" +
 			"decisions, not the outcome of this one: the path totals show the spread.",

@@ -11,9 +11,10 @@ func voiCommand() *cli.Command {
 		Name:      "voi",
 		Usage:     "value of information: what it is worth to know more before deciding (EVPI, EVSI)",
 		ArgsUsage: "FILE",
-		UsageText: "forkcast voi [--json] FILE\n\n" +
+		UsageText: "forkcast voi [--json] [--set NAME=VALUE]... FILE\n\n" +
 			"   forkcast voi examples/release.fork\n" +
-			"   forkcast voi example:release --json",
+			"   forkcast voi example:release --json\n" +
+			"   forkcast voi example:release --set p_defect=10%    is the test worth it at a 10% defect rate?",
 		Description: "Prints what information is worth before the first decision, in the model's\n" +
 			"money (a saving under `objective min`):\n\n" +
 			"EVPI, the expected value of perfect information: for everything uncertain\n" +
