@@ -3,6 +3,7 @@ package interchange_test
 import (
 	"context"
 	"math/big"
+	"os"
 	"strings"
 	"testing"
 
@@ -355,5 +356,28 @@ func TestReadMinifiedPositions(t *testing.T) {
 	_, ds := interchange.ReadBytes(src, interchange.Options{})
 	if !ds.HasErrors() || ds[0].Error() != `1:88: "cash" of a branch must be a number, not true or false` {
 		t.Fatalf("got %v", ds)
+	}
+}
+
+// TestReadDocsExample reads the example of docs/json.md: the holiday-oven
+// model of the language guide. Worked by hand: renting is worth
+// 0.4 × 14,000 + 0.45 × 8,000 + 0.15 × 3,000 − 4,500 = 5,150, one oven
+// 0.4 × 7,000 + 0.45 × 6,000 + 0.15 × 3,000 = 5,950.
+func TestReadDocsExample(t *testing.T) {
+	doc, err := os.ReadFile("../docs/json.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, block, ok := strings.Cut(string(doc), "```json\n")
+	block, _, _ = strings.Cut(block, "```")
+	if !ok {
+		t.Fatal("no JSON example in docs/json.md")
+	}
+	sol := solve(t, block)
+	if !sol.Value().Equal(decimal.NewFromInt(5950)) || sol.Root.Chosen() != 1 {
+		t.Fatalf("value %s, chosen %d; want 5950 and one oven", sol.Value(), sol.Root.Chosen())
+	}
+	if v := sol.Root.BranchValue(0); !v.Equal(decimal.NewFromInt(5150)) {
+		t.Fatalf("renting is worth %s, want 5150", v)
 	}
 }
