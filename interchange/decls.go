@@ -48,7 +48,16 @@ func (r *reader) model(at tree.Pos) {
 		case mRoot:
 			hasRoot = true
 			r.tree(r.s.next())
-		case mValue, mExact:
+		case mRiskTolerance:
+			x, _ := r.figure("risk_tolerance", "the model", false)
+			switch n, ok := x.(*tree.Number); {
+			case x == nil:
+			case !ok:
+				r.err(x.Pos(), "write the amount itself, such as 250000", "\"risk_tolerance\" is a number, not a calculation")
+			default:
+				m.RiskTolerance = n
+			}
+		case mValue, mExact, mCertaintyEquivalent, mRiskPremium, mEVPolicyValue, mCostOfCaution, mRiskNote:
 			// What `solve --json` adds: recomputed, not read.
 			r.skip(r.nextDiscard())
 		}

@@ -33,6 +33,7 @@ func FuzzReadJSON(f *testing.F) {
 	  {"label": "y", "likelihoods": [{"state": "a", "probability": 0.1}, {"state": "b", "probability": 0.8}]}]}],
 	  "root": {"type": "chance", "test": "t", "branches": [{"label": "x", "node": {"type": "chance", "uncertainty": "u", "branches": [{"label": "a", "cash": 5}, {"label": "b"}]}}, {"label": "y"}]}}`))
 	f.Add([]byte(`{"root": [1, 2, {"a": null}]}`))
+	f.Add([]byte(`{"risk_tolerance": "2.5e5", "certainty_equivalent": "1", "risk_note": 3, "root": {"type": "end"}}`))
 	f.Add([]byte(`{"root": {"type": "decision", "branches": [{"label": "a", "node": {"type": "decision", "branches": []}}]}}`))
 	f.Add([]byte(`{"objective": "min", "inputs": [{"name": "k", "value": "(1/3)", "low": "-k0", "high": 2}, {"name": "k0", "value": 1}],
 	  "root": {"type": "chance", "branches": [{"label": "a", "probability": "k", "cost": "k * 3 - -2", "cash": "5%"},

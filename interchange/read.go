@@ -55,7 +55,8 @@ func ReadBytes(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
 // key lists, per kind of object, the keys it may hold; a key's index is
 // its bit in the set of keys seen.
 var (
-	modelKeys       = []string{"title", "currency", "objective", "inputs", "uncertainties", "tests", "root", "value", "exact"}
+	modelKeys = []string{"title", "currency", "objective", "inputs", "uncertainties", "tests", "root", "value", "exact",
+		"risk_tolerance", "certainty_equivalent", "risk_premium", "expected_value_policy_value", "cost_of_caution", "risk_note"}
 	inputKeys       = []string{"name", "value", "low", "high"}
 	uncertaintyKeys = []string{"name", "label", "states"}
 	stateKeys       = []string{"label", "probability"}
@@ -77,6 +78,14 @@ const (
 	mRoot
 	mValue
 	mExact
+	mRiskTolerance
+	// What `solve --json` adds under a risk tolerance (see
+	// WriteOptions.Risk): recomputed, not read.
+	mCertaintyEquivalent
+	mRiskPremium
+	mEVPolicyValue
+	mCostOfCaution
+	mRiskNote
 )
 
 const (

@@ -38,12 +38,28 @@ type WriteOptions struct {
 	// optimal branches and the top level with the root's value (and
 	// "exact": false when a figure was rounded).
 	Solved Solved
+	// Risk, with Solved, adds at the top level what a solve on certainty
+	// equivalents reports (Solved then annotates the risk-averse policy).
+	Risk *RiskSummary
 	// Probabilities writes the probability of every branch under a named
 	// uncertainty or a test, as the declarations give it there (revised by
 	// Bayes' rule below a test reading). The reader accepts such a
 	// probability when it is the one the declarations give, so the output
 	// reads back.
 	Probabilities bool
+}
+
+// RiskSummary is what `solve --json` adds at the top level under a risk
+// tolerance: "risk_tolerance" (the one used, which may come from the
+// command line), "certainty_equivalent" and "risk_premium" (rounded),
+// "expected_value_policy_value" and "cost_of_caution" (exact), and
+// "risk_note" saying which figures are rounded. The reader skips all but
+// "risk_tolerance".
+type RiskSummary struct {
+	Tolerance                        decimal.Decimal
+	CertaintyEquivalent, RiskPremium decimal.Decimal
+	EVPolicyValue, CostOfCaution     decimal.Decimal
+	Note                             string
 }
 
 // Write writes m in the JSON interchange format (docs/json.md): every input
@@ -285,11 +301,30 @@ func (j *writer) model() {
 	j.str("title", m.Title)
 	j.str("currency", m.Currency)
 	j.str("objective", m.Objective.String())
+	switch rk := j.opts.Risk; {
+	case rk != nil && sv != nil:
+		j.key("risk_tolerance")
+		j.value(rk.Tolerance, "the risk tolerance")
+	case m.RiskTolerance != nil:
+		j.key("risk_tolerance")
+		j.value(m.RiskTolerance.Value, "the risk tolerance")
+	}
 	if sv != nil && m.Root != nil {
 		j.key("value")
 		j.quote(sv.Value(0).String())
 		if !c.Exact() {
 			j.raw("exact", "false") // a division was rounded: say so
+		}
+		if rk := j.opts.Risk; rk != nil {
+			for _, kv := range []struct {
+				k string
+				v decimal.Decimal
+			}{{"certainty_equivalent", rk.CertaintyEquivalent}, {"risk_premium", rk.RiskPremium},
+				{"expected_value_policy_value", rk.EVPolicyValue}, {"cost_of_caution", rk.CostOfCaution}} {
+				j.key(kv.k)
+				j.quote(kv.v.String())
+			}
+			j.str("risk_note", rk.Note)
 		}
 	}
 	if len(m.Params) > 0 {
