@@ -61,6 +61,9 @@ type Profiles struct {
 	// Options holds the one profile of the whole tree.
 	Decision *tree.Node
 	Path     []string
+	// Node is the decision's number in the compiled model (-1 when there
+	// is none).
+	Node int
 	// Options are the profiles, one per branch of the decision, in model
 	// order.
 	Options []Profile
@@ -164,7 +167,7 @@ func RiskProfiles(ctx context.Context, sol *Solution, opts ProfileOptions) (*Pro
 		return nil, err
 	}
 	obj := c.Objective()
-	ps := &Profiles{Objective: obj, Exact: c.Exact(), Notes: notes}
+	ps := &Profiles{Objective: obj, Exact: c.Exact(), Notes: notes, Node: -1}
 	if opts.Threshold != nil {
 		ps.Threshold = *opts.Threshold
 	}
@@ -197,6 +200,7 @@ func RiskProfiles(ctx context.Context, sol *Solution, opts ProfileOptions) (*Pro
 		ps.Path = append(ps.Path, b.Label)
 	}
 	dn := d.Number()
+	ps.Node = dn
 	mass := c.Mass(dn)
 	taken := w.policy(dn)
 	for j, b := range d.Node.Branches {

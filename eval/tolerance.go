@@ -44,8 +44,12 @@ type ToleranceBreakeven struct {
 	Decision *tree.Node
 	Path     []string
 	Options  []string
-	// Low and High are the range of risk tolerances searched.
+	// Low and High are the range of risk tolerances searched; Spread is
+	// the highest minus the lowest payoff after the decision, which the
+	// range is taken from when none is given (Default).
 	Low, High decimal.Decimal
+	Spread    decimal.Decimal
+	Default   bool
 	// Segments cover [Low, High] in order, each with the option of the
 	// largest certainty equivalent; Switches are the tolerances between
 	// them (approximate).
@@ -122,7 +126,7 @@ func FindToleranceBreakeven(ctx context.Context, sol *Solution, opts ToleranceOp
 		if tb.Low.IsZero() {
 			tb.Low = decimal.New(1, -6)
 		}
-		tb.Notes = append(tb.Notes, fmt.Sprintf("the payoffs after %q span %s; the tolerances searched run from a thousandth of that to a thousand times it", d.Node.Display(), width))
+		tb.Spread, tb.Default = width, true
 	}
 	grid := opts.Grid
 	if grid <= 0 {

@@ -1,10 +1,13 @@
 package eval
 
 import (
+	"fmt"
+	"io"
 	"math"
 	"strconv"
 
 	"github.com/forkcast/forkcast/compiled"
+	"github.com/forkcast/forkcast/interchange"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
@@ -134,17 +137,26 @@ func (rs *RiskSolution) Cost() decimal.Decimal {
 	return a.Sub(b)
 }
 
-// Differences lists the decisions the risk-averse policy reaches where it
-// takes an option the expected-value policy does not count among its best,
-// in pre-order (of Averse.Nodes()).
+// Decisions lists the decisions the risk-averse policy or the
+// expected-value policy reaches, in pre-order (as nodes of Averse), and
+// for each whether the risk-averse policy reaches it.
+func (rs *RiskSolution) Decisions() (ds []*Solved, averse []bool) {
+	ra, ev := rs.Averse.Reachable(), rs.EMV.Reachable()
+	for x := range rs.Averse.nodes {
+		if s := &rs.Averse.nodes[x]; s.Node.Kind == tree.KindDecision && (ra[x] || ev[x]) {
+			ds, averse = append(ds, s), append(averse, ra[x])
+		}
+	}
+	return ds, averse
+}
+
+// Differences lists the decisions either policy reaches where the
+// risk-averse policy takes an option the expected-value policy does not
+// count among its best, in pre-order (as nodes of Averse).
 func (rs *RiskSolution) Differences() []*Solved {
 	var out []*Solved
-	reach := rs.Averse.Reachable()
-	for x := range rs.Averse.nodes {
-		s := &rs.Averse.nodes[x]
-		if s.Node.Kind != tree.KindDecision || !reach[x] {
-			continue
-		}
+	all, _ := rs.Decisions()
+	for _, s := range all {
 		if e := rs.EMV.At(s.Number()); !e.IsBest(rs.Chosen(s.Number())) {
 			out = append(out, s)
 		}
@@ -262,4 +274,21 @@ func chanceCE(r float64, xs, ps []float64) float64 {
 	// outcome and the expected value; rounding must not push it outside.
 	delta = math.Max(0, math.Min(delta, mean))
 	return m + delta
+}
+
+// RiskNote says which figures of a risk-averse solution are rounded.
+func (rs *RiskSolution) RiskNote() string {
+	return fmt.Sprintf("certainty_equivalent and risk_premium are rounded to %d significant digits (exponential utility, risk tolerance %s: exp and ln in float64); value and best are those of the risk-averse policy, exact", RiskDigits, rs.Tolerance)
+}
+
+// WriteJSON writes the solved tree of the risk-averse policy in the
+// interchange format ("value" and "best" of that policy, exact), with the
+// certainty equivalent, the risk premium, the expected-value policy's
+// value and the cost of caution at the top level (see
+// interchange.RiskSummary).
+func (rs *RiskSolution) WriteJSON(w io.Writer) error {
+	a := rs.Averse
+	return interchange.Write(w, a.Model, interchange.WriteOptions{Compiled: a.Compiled, Solved: solvedView{a}, Probabilities: true,
+		Risk: &interchange.RiskSummary{Tolerance: rs.Tolerance, CertaintyEquivalent: rs.CE(), RiskPremium: rs.RootPremium(),
+			EVPolicyValue: rs.EMV.Value(), CostOfCaution: rs.Cost(), Note: rs.RiskNote()}})
 }

@@ -17,6 +17,11 @@ type SolveOptions struct {
 	// OmitTree leaves the indented tree out of the text (for big models):
 	// the report is then the expected value and the recommended policy.
 	OmitTree bool
+	// Risk, when set, reports the tree solved on certainty equivalents
+	// (eval.SolveRiskAverse of the Solution): the risk-averse policy, with
+	// every option's expected value, certainty equivalent and risk
+	// premium; the JSON is Risk.WriteJSON's.
+	Risk *eval.RiskSolution
 }
 
 // SolveReport is the report of a solved tree: its expected value, the
@@ -35,7 +40,12 @@ func Solve(sol *eval.Solution, opts SolveOptions) *SolveReport {
 }
 
 // WriteJSON writes the solved tree in the interchange format.
-func (r *SolveReport) WriteJSON(w io.Writer) error { return r.Solution.WriteJSON(w) }
+func (r *SolveReport) WriteJSON(w io.Writer) error {
+	if r.Options.Risk != nil {
+		return r.Options.Risk.WriteJSON(w)
+	}
+	return r.Solution.WriteJSON(w)
+}
 
 // MarshalJSON is WriteJSON's document, compact.
 func (r *SolveReport) MarshalJSON() ([]byte, error) { return marshalJSON(r.WriteJSON) }
@@ -44,6 +54,10 @@ func (r *SolveReport) MarshalJSON() ([]byte, error) { return marshalJSON(r.Write
 // Options.OmitTree, the tree.
 func (r *SolveReport) WriteText(w io.Writer) error {
 	t := newTextOut(w)
+	if r.Options.Risk != nil {
+		r.writeRiskText(t)
+		return t.Flush()
+	}
 	sol := r.Solution
 	m := sol.Model
 	p := printer{t: t, m: m, cur: m.Currency}
