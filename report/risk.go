@@ -56,7 +56,7 @@ func (r *SolveReport) writeRiskText(t textOut) {
 	p.riskPolicy(rs)
 	if !r.Options.OmitTree {
 		t.ln()
-		t.ln("Tree (expected value at each node, the risk-averse choices taken)")
+		t.f("%s", strings.Replace(treeKey(figuresFor(m)), "Tree\n", "Tree, the risk-averse choices taken\n", 1))
 		p.tree(sol)
 	}
 }

@@ -34,6 +34,10 @@ func breakevenCommand() *cli.Command {
 			"   NODE/BRANCH         the probability of a branch of a plain chance node, by\n" +
 			"                       labels, e.g. 'Supplier service level/Met'; every chance\n" +
 			"                       node with that label is varied together\n" +
+			"   risk-tolerance      the risk tolerance of an exponential utility: where the\n" +
+			"                       choice by certainty equivalent switches (approximate;\n" +
+			"                       default range a thousandth to a thousand times the\n" +
+			"                       spread of the decision's payoffs; see docs/risk.md)\n" +
 			"Put a part in double quotes when it holds a ':' or '/' of its own:\n" +
 			"   --vary '\"Phase 1: build\"/\"Late\"'\n\n" +
 			"--in LOW..HIGH is the range (1_000 separators and 25% allowed). Without it a\n" +
@@ -56,7 +60,7 @@ func breakevenCommand() *cli.Command {
 			"Under each switch: every option's expected value there (they tie). --json\n" +
 			"carries every figure exactly, and an exact switch's \"fraction\".",
 		Flags: []cli.Flag{
-			&cli.StringFlag{Name: "vary", Usage: "the input to vary: `NAME`, UNCERTAINTY:STATE or NODE/BRANCH"},
+			&cli.StringFlag{Name: "vary", Usage: "the input to vary: `NAME`, UNCERTAINTY:STATE, NODE/BRANCH or risk-tolerance"},
 			&cli.StringFlag{Name: "in", Usage: "search `LOW..HIGH` (default: the parameter's own range, or 0..1 for a probability)"},
 			&cli.StringFlag{Name: "at", Usage: "watch the decision with this `LABEL`"},
 			&cli.BoolFlag{Name: "json", Usage: "print the result as JSON, values as exact decimal strings"},
@@ -67,6 +71,16 @@ func breakevenCommand() *cli.Command {
 		Action: func(c *cli.Context) error {
 			if !c.IsSet("vary") || strings.TrimSpace(c.String("vary")) == "" {
 				return usageErr("breakeven needs --vary NAME (a parameter), UNCERTAINTY:STATE or NODE/BRANCH")
+			}
+			if v := strings.TrimSpace(c.String("vary")); v == "risk-tolerance" || v == "risk_tolerance" {
+				l, err := loadModel(c)
+				if err != nil {
+					return err
+				}
+				if varyTolerance(v, l) {
+					l.printWarnings(c)
+					return toleranceBreakeven(c, l)
+				}
 			}
 			v, err := eval.ParseVary(c.String("vary"))
 			if err != nil {

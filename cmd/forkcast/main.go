@@ -84,6 +84,7 @@ func commands() []*cli.Command {
 		breakevenCommand(),
 		sensitivityCommand(),
 		sweepCommand(),
+		profileCommand(),
 		drawCommand(),
 		examplesCommand(),
 	}
@@ -173,7 +174,7 @@ func checkCounts(c *cli.Context) error {
 // never negative; a limit is at least 1; --warnings takes -1 for all.
 func leastCount(name string) int {
 	switch name {
-	case "warnings":
+	case "warnings", "outcomes":
 		return -1
 	case "max-nodes", "max-scenarios", "max-work", "max-samples", "wrap":
 		return 1

@@ -22,6 +22,8 @@ func flagNames() report.OptionNames {
 		"SensitivityOptions.Pct":        "--pct N",
 		"SensitivityOptions.Vary":       "--vary",
 		"SweepOptions.MaxSamples":       "--max-samples",
+		"ToleranceOptions.MaxSamples":   "--max-samples",
+		"ProfileOptions.MaxOutcomes":    "--max-paths",
 	}
 }
 

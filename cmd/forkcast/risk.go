@@ -1,0 +1,85 @@
+package main
+
+import (
+	"strings"
+
+	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/report"
+	"github.com/shopspring/decimal"
+	"github.com/urfave/cli/v2"
+)
+
+// riskToleranceFlag decides as a risk-averse decision maker, overriding
+// the model's own `risk tolerance`.
+func riskToleranceFlag() *cli.StringFlag {
+	return &cli.StringFlag{Name: "risk-tolerance", Usage: "decide on certainty equivalents of an exponential utility with risk tolerance `AMOUNT` (overrides the model's `risk tolerance` line; see docs/risk.md)"}
+}
+
+// riskTolerance is the risk tolerance to decide with: --risk-tolerance,
+// else the model's own; nil for none.
+func riskTolerance(c *cli.Context, l *loaded) (*decimal.Decimal, error) {
+	if c.IsSet("risk-tolerance") {
+		r, err := parseNumber(c.String("risk-tolerance"))
+		if err != nil {
+			return nil, usageErr("--risk-tolerance: %v", err)
+		}
+		if r.Sign() <= 0 {
+			return nil, usageErr("--risk-tolerance %s: a risk tolerance is a positive amount of money", shown(c.String("risk-tolerance")))
+		}
+		return &r, nil
+	}
+	if rt := l.Model.RiskTolerance; rt != nil {
+		return &rt.Value, nil
+	}
+	return nil, nil
+}
+
+// riskSolution solves sol on certainty equivalents when a risk tolerance
+// is given (nil otherwise).
+func riskSolution(c *cli.Context, l *loaded, sol *eval.Solution) (*eval.RiskSolution, error) {
+	r, err := riskTolerance(c, l)
+	if err != nil || r == nil {
+		return nil, err
+	}
+	rs, err := eval.SolveRiskAverse(sol, *r)
+	if err != nil {
+		return nil, analysisErr(err)
+	}
+	return rs, nil
+}
+
+// varyTolerance reports whether --vary names the risk tolerance:
+// risk-tolerance, or risk_tolerance when the model has no input of that
+// name.
+func varyTolerance(vary string, l *loaded) bool {
+	v := strings.TrimSpace(vary)
+	if v == "risk-tolerance" {
+		return true
+	}
+	if v != "risk_tolerance" {
+		return false
+	}
+	_, isInput := l.Compiled.InputNamed(v)
+	return !isInput
+}
+
+// toleranceBreakeven runs `breakeven --vary risk-tolerance`.
+func toleranceBreakeven(c *cli.Context, l *loaded) error {
+	opts := eval.ToleranceOptions{At: c.String("at"), MaxSamples: c.Int("max-samples")}
+	if c.IsSet("in") {
+		lo, hi, err := parseRange(c.String("in"))
+		if err != nil {
+			return usageErr("--in: %v", err)
+		}
+		opts.Low, opts.High = &lo, &hi
+	}
+	sol, err := eval.Solve(l.Compiled)
+	if err != nil {
+		return modelErr("%v", err)
+	}
+	tb, err := eval.FindToleranceBreakeven(c.Context, sol, opts)
+	if err != nil {
+		return analysisErr(err)
+	}
+	return show(c, report.Tolerance(l.Compiled, tb, report.BreakevenOptions{Names: flagNames()}))
+}
