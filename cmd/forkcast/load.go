@@ -153,6 +153,7 @@ const solveWarningLimit = 5
 // few only: `check` lists them all.
 func (l *loaded) printWarnings(c *cli.Context) {
 	printLimited(c, l.Diags, l.Name, l.Src, solveWarningLimit, "run `forkcast check` to see them all")
+	noteRiskIgnored(c, l)
 }
 
 // printLimited prints every error and at most limit warnings (limit < 0:

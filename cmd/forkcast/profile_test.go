@@ -164,3 +164,25 @@ func TestProfileChartFiles(t *testing.T) {
 		t.Error("--bars to .png wrote no PNG")
 	}
 }
+
+// A command that compares expected values says that it leaves the model's
+// risk tolerance aside; solve and profile use it and say nothing of it.
+func TestRiskToleranceIgnoredNote(t *testing.T) {
+	const note = "the model's risk tolerance is used by solve and profile only"
+	for _, c := range []struct {
+		args []string
+		note bool
+	}{
+		{[]string{"voi", "example:tender"}, true},
+		{[]string{"breakeven", "example:tender", "--vary", "p_win_quay"}, true},
+		{[]string{"breakeven", "example:tender", "--vary", "risk-tolerance"}, false},
+		{[]string{"solve", "example:tender"}, false},
+		{[]string{"profile", "example:tender"}, false},
+		{[]string{"voi", "example:sourcing"}, false},
+	} {
+		code, _, errs := forkcast(t, "", c.args...)
+		if code != 0 || strings.Contains(errs, note) != c.note {
+			t.Errorf("%v: exit %d, note %v wanted:\n%s", c.args, code, c.note, errs)
+		}
+	}
+}

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"fmt"
 	"strings"
 
 	"github.com/forkcast/forkcast/eval"
@@ -82,4 +83,22 @@ func toleranceBreakeven(c *cli.Context, l *loaded) error {
 		return analysisErr(err)
 	}
 	return show(c, report.Tolerance(l.Compiled, tb, report.BreakevenOptions{Names: flagNames()}))
+}
+
+// noteRiskIgnored says, on standard error, that a command which compares
+// expected values leaves the model's risk tolerance aside, so that nobody
+// takes its answer for the risk-averse one.
+func noteRiskIgnored(c *cli.Context, l *loaded) {
+	if l.Model.RiskTolerance == nil {
+		return
+	}
+	switch c.Command.Name {
+	case "solve", "profile", "check":
+		return
+	case "breakeven":
+		if v := strings.TrimSpace(c.String("vary")); v == "risk-tolerance" || v == "risk_tolerance" {
+			return
+		}
+	}
+	fmt.Fprintf(c.App.ErrWriter, "%s: note: %s compares expected values; the model's risk tolerance is used by solve and profile only\n", l.Name, c.Command.Name)
 }
