@@ -16,6 +16,7 @@ func Compile(m *tree.Model) (*Model, tree.Diagnostics) {
 	c := &Model{src: m, pool: k.pool, sh: &shape{end: &tree.Node{Kind: tree.KindEnd}}}
 	k.c = c
 	k.params()
+	k.correlations()
 	if r := m.RiskTolerance; r != nil && r.Value.Sign() <= 0 {
 		k.ds.Add(r.At, "it is the amount of money at which a 50-50 gamble of winning it or losing half of it is just acceptable, e.g. `risk tolerance 250_000`",
 			"a risk tolerance is a positive amount of money, not %s", r.Value)

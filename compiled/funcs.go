@@ -38,7 +38,13 @@ var functions = map[string]function{
 		return dist.NewNormalExact(a[0], a[1])
 	}},
 	"lognormal": {"lognormal(P10, P90)", 2, 2, func(a []decimal.Decimal) (dist.Distribution, error) {
-		return dist.NewLogNormalPercentilesExact(decimal.New(1, -1), a[0], decimal.New(9, -1), a[1])
+		d, err := dist.NewLogNormalPercentilesExact(decimal.New(1, -1), a[0], decimal.New(9, -1), a[1])
+		if ae, ok := err.(*dist.ArgError); ok {
+			// The constructor takes (0.1, P10, 0.9, P90): point at the
+			// percentile as written.
+			ae.Arg = max(ae.Arg-1, 0) / 2
+		}
+		return d, err
 	}},
 	"discrete": {"discrete(VALUE, PROBABILITY, VALUE, PROBABILITY, ...)", 2, -1, func(a []decimal.Decimal) (dist.Distribution, error) {
 		if len(a)%2 != 0 {

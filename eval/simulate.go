@@ -154,8 +154,8 @@ type Simulation struct {
 	KnowInputs Estimate
 	// Draws holds, when SimulateOptions.KeepDraws was set, each input's
 	// draw in every run done (Draws[input][run]); Values each option's
-	// payoff in every run, in run order, and BestKnown the option best
-	// with the run's inputs known.
+	// payoff in every run (Values[option][run], in the objective's terms),
+	// and BestKnown the option best with the run's inputs known.
 	Draws     [][]float64
 	Values    [][]float64
 	BestKnown []int
@@ -210,9 +210,21 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 	}
 
 	streams := pdist.NewStreams(opts.Seed)
-	draws, err := drawInputs(ctx, c, s.Inputs, streams, runs, opts.Workers)
+	inputs := streams.Sub(streamInputs)
+	// Correlated inputs are drawn for every run first, then paired by
+	// rank (Iman–Conover needs whole columns); the others are drawn in
+	// each run as it goes. Either way input j of run r is the j-th draw of
+	// run r's own stream of the inputs family.
+	pre, err := correlatedDraws(ctx, c, s.Inputs, inputs, streams.Sub(streamPairing), runs, opts.Workers)
 	if err != nil {
 		return nil, err
+	}
+	var keep [][]float64
+	if opts.KeepDraws {
+		keep = make([][]float64, len(s.Inputs))
+		for j := range keep {
+			keep[j] = make([]float64, runs)
+		}
 	}
 
 	node := d.Number()
@@ -236,11 +248,19 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 	done, runErr := pdist.ForEachRun(ctx, streams.Sub(streamOutcomes), runs, workers, func(w, run int, r *rand.Rand) error {
 		ws := spaces[w]
 		if ws == nil {
-			ws = &worker{f: c.NewFloats(), x: make([]float64, len(draws))}
+			ws = newWorker(c, len(s.Inputs))
 			spaces[w] = ws
 		}
-		for j := range draws {
-			ws.x[j] = draws[j][run]
+		inputs.Reset(ws.src, uint64(run))
+		for j, in := range s.Inputs {
+			v := in.Dist.Rand(ws.rand)
+			if pre[j] != nil {
+				v = pre[j][run]
+			}
+			ws.x[j] = v
+			if keep != nil {
+				keep[j][run] = v
+			}
 		}
 		if err := ws.f.Draw(ws.x); err != nil {
 			return err
@@ -281,7 +301,7 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 				loss++
 			}
 			if obj == tree.Min {
-				vs[i] = -v
+				vs[i] = 0 - v // a cost; 0 − v, not −v, so that no −0 is shown
 			}
 		}
 		sample, err := pdist.NewSample(vs)
@@ -303,9 +323,9 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 	}
 	s.KnowInputs = Estimate{Mean: ks.Mean(), StdErr: ks.StdErr()}
 	if opts.KeepDraws {
-		s.Draws = make([][]float64, len(draws))
-		for j := range draws {
-			s.Draws[j] = draws[j][:done]
+		s.Draws = make([][]float64, len(keep))
+		for j := range keep {
+			s.Draws[j] = keep[j][:done]
 		}
 		s.Values = make([][]float64, nopt)
 		for j := range values {
@@ -347,31 +367,53 @@ func isStop(err error) bool {
 	return errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded)
 }
 
-// drawInputs draws every input for every run: draws[input][run], run r's
-// from its own stream of the inputs family, so that the draws depend only
-// on the seed.
-func drawInputs(ctx context.Context, c *compiled.Model, ins []SimInput, streams pdist.Streams, runs, workers int) ([][]float64, error) {
-	draws := make([][]float64, len(ins))
-	if len(ins) == 0 {
-		return draws, nil
+// correlatedDraws draws, for every run, the inputs that the model
+// correlates, and pairs them by rank to carry the target correlations
+// (Iman–Conover). pre[j] is input j's column, nil for an input drawn in
+// each run as it goes.
+func correlatedDraws(ctx context.Context, c *compiled.Model, ins []SimInput, inputs, pairing pdist.Streams, runs, workers int) ([][]float64, error) {
+	pre := make([][]float64, len(ins))
+	target, cols := c.Correlation()
+	if len(cols) == 0 {
+		return pre, nil
 	}
-	for j := range draws {
-		draws[j] = make([]float64, runs)
+	for _, j := range cols {
+		pre[j] = make([]float64, runs)
 	}
-	_, err := pdist.ForEachRun(ctx, streams.Sub(streamInputs), runs, workers, func(_, run int, r *rand.Rand) error {
+	_, err := pdist.ForEachRun(ctx, inputs, runs, workers, func(_, run int, r *rand.Rand) error {
 		for j, in := range ins {
-			draws[j][run] = in.Dist.Rand(r)
+			v := in.Dist.Rand(r) // every input, so each keeps its place in the stream
+			if pre[j] != nil {
+				pre[j][run] = v
+			}
 		}
 		return nil
 	})
-	return draws, err
+	if err != nil {
+		return nil, err
+	}
+	columns := make([][]float64, len(cols))
+	for k, j := range cols {
+		columns[k] = pre[j]
+	}
+	if err := pdist.ImanConover(columns, target, pairing.Source(0)); err != nil {
+		return nil, &SimulationError{Err: err}
+	}
+	return pre, nil
 }
 
 // worker is one goroutine's work space.
 type worker struct {
 	f     *compiled.Floats
+	src   *rand.PCG // the inputs' stream, reset for each run
+	rand  *rand.Rand
 	x     []float64 // the run's input draws
 	since int       // runs since the last progress report
+}
+
+func newWorker(c *compiled.Model, inputs int) *worker {
+	src := rand.NewPCG(0, 0)
+	return &worker{f: c.NewFloats(), src: src, rand: rand.New(src), x: make([]float64, inputs)}
 }
 
 // simRun is what every run of one simulation shares (read only).

@@ -540,6 +540,16 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 		return f
 	case *gItem:
 		return b.placeItem(l, g, parent, role, quiet)
+	case *gCorrelate:
+		if !quiet && !b.topOnly(l, parent, "a correlation") {
+			return brokenFrame(owner)
+		}
+		c := &tree.Correlation{A: g.A.Value, B: g.B.Value, APos: tokPos(g.A), BPos: tokPos(g.B), Pos: tokPos(g.Kw)}
+		c.Rho = b.expr(g.Rho, ctxLet, l.lx)
+		if !quiet {
+			b.m.Correlations = append(b.m.Correlations, c)
+		}
+		return &frame{kind: fLeaf, what: "the correlate line"}
 	}
 	return brokenFrame(owner)
 }

@@ -79,6 +79,15 @@ type gChance struct {
 	Label *lexer.Token `parser:"@String?"`
 }
 
+// gCorrelate is `correlate A B RHO`: the rank correlation of two inputs
+// written as distributions.
+type gCorrelate struct {
+	Kw  lexer.Token `parser:"@\"correlate\""`
+	A   lexer.Token `parser:"@Ident"`
+	B   lexer.Token `parser:"@Ident"`
+	Rho exprValue   `parser:"@@"`
+}
+
 type gUse struct {
 	Kw   lexer.Token `parser:"@\"use\""`
 	Name lexer.Token `parser:"@Ident"`
@@ -156,6 +165,7 @@ type parsers struct {
 	decision    *participle.Parser[gDecision]
 	chance      *participle.Parser[gChance]
 	use         *participle.Parser[gUse]
+	correlate   *participle.Parser[gCorrelate]
 	item        *participle.Parser[gItem]
 }
 
@@ -173,6 +183,7 @@ func newParsers() *parsers {
 		decision:    participle.MustBuild[gDecision](opts...),
 		chance:      participle.MustBuild[gChance](opts...),
 		use:         participle.MustBuild[gUse](opts...),
+		correlate:   participle.MustBuild[gCorrelate](opts...),
 		item:        participle.MustBuild[gItem](opts...),
 	}
 }

@@ -154,6 +154,8 @@ func (ps *parsers) slowParse(l *srcLine) {
 		ast, err = parseWith(ps.chance, toks, eof)
 	case kUse:
 		ast, err = parseWith(ps.use, toks, eof)
+	case kCorrelate:
+		ast, err = parseWith(ps.correlate, toks, eof)
 	case kItem:
 		ast, err = parseWith(ps.item, toks, eof)
 	}

@@ -27,6 +27,7 @@ const (
 	kDecision             // decision "Label"
 	kChance               // chance [name] ["Label"]
 	kUse                  // use name
+	kCorrelate            // correlate name name rho
 	kItem                 // "Label" ...: a branch, a state or a reading
 	kUnknown              // starts with a word that is no keyword
 	kStray                // starts with something that cannot start a line
@@ -37,12 +38,12 @@ const (
 var lineKinds = map[string]lineKind{
 	"title": kTitle, "currency": kCurrency, "objective": kObjective, "risk": kRisk,
 	"let": kLet, "uncertainty": kUncertainty, "test": kTest, "subtree": kSubtree,
-	"decision": kDecision, "chance": kChance, "use": kUse,
+	"decision": kDecision, "chance": kChance, "use": kUse, "correlate": kCorrelate,
 }
 
 // topKeywords and nodeKeywords are listed in hints, in this order.
 var (
-	topKeywords  = []string{"title", "currency", "objective", "let", "uncertainty", "test", "subtree", "decision", "chance", "use"}
+	topKeywords  = []string{"title", "currency", "objective", "let", "uncertainty", "test", "subtree", "decision", "chance", "use", "correlate"}
 	nodeKeywords = []string{"decision", "chance", "test", "use"}
 )
 
@@ -87,6 +88,8 @@ func form(k lineKind, role itemRole) string {
 		return "a chance line reads `chance \"Label\"`, `chance NAME` (a declared uncertainty) or `chance NAME \"Label\"`"
 	case kUse:
 		return "a use line reads `use NAME`, where NAME is a subtree"
+	case kCorrelate:
+		return "a correlate line reads `correlate NAME NAME CORRELATION`, two inputs written as distributions and their rank correlation between -1 and 1, e.g. `correlate build labour 0.6`"
 	case kItem:
 		switch role {
 		case roleState:

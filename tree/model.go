@@ -96,7 +96,24 @@ type Model struct {
 	// exponential utility's certainty equivalents. Nil decides by expected
 	// value.
 	RiskTolerance *Number
+	// Correlations are rank correlations between inputs written as
+	// distributions, imposed on their draws in simulation.
+	Correlations []*Correlation
 }
+
+// Correlation is `correlate A B RHO`: the rank correlation between two
+// inputs written as distributions. Exact analyses use the inputs' means
+// and are not affected by it; simulation pairs the draws so that their
+// ranks correlate by Rho.
+type Correlation struct {
+	A, B       string
+	Rho        Expr
+	APos, BPos Pos // where each name is written
+	Pos        Pos // the line's first word
+}
+
+// Correlate makes a correlation between the inputs named a and b.
+func Correlate(a, b string, rho Expr) *Correlation { return &Correlation{A: a, B: b, Rho: rho} }
 
 // Size is the number of nodes in the tree.
 func (m *Model) Size() int { return Count(m.Root) }

@@ -85,6 +85,7 @@ func commands() []*cli.Command {
 		sensitivityCommand(),
 		sweepCommand(),
 		profileCommand(),
+		simulateCommand(),
 		drawCommand(),
 		examplesCommand(),
 	}
@@ -176,7 +177,7 @@ func leastCount(name string) int {
 	switch name {
 	case "warnings", "outcomes":
 		return -1
-	case "max-nodes", "max-scenarios", "max-work", "max-samples", "wrap":
+	case "max-nodes", "max-scenarios", "max-work", "max-samples", "wrap", "runs":
 		return 1
 	}
 	return 0

@@ -1,0 +1,145 @@
+package main
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// The simulation's text and JSON for a seed, checked against golden
+// files; the figures themselves are checked against exact results in
+// package eval (TestSimulateMeanMatchesExact, TestSimulateRiskSum).
+func TestSimulateGolden(t *testing.T) {
+	for _, c := range []struct {
+		name string
+		args []string
+	}{
+		{"simulate_project.txt", []string{"simulate", "example:project-cost", "--runs", "2000"}},
+		{"simulate_project_inputs.json", []string{"simulate", "example:project-cost", "--runs", "500", "--seed", "9", "--inputs-only", "--json"}},
+		{"simulate_release.txt", []string{"simulate", "example:release", "--runs", "1000", "--at", "Alarm/Release"}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			code, out, errs := forkcast(t, "", c.args...)
+			if code != 0 {
+				t.Fatalf("exit %d: %s", code, errs)
+			}
+			golden(t, c.name, out)
+		})
+	}
+}
+
+// The same seed gives byte-identical JSON with 1, 2 and 4 workers, in
+// both modes; another seed gives other figures.
+func TestSimulateWorkersIdenticalJSON(t *testing.T) {
+	for _, mode := range [][]string{nil, {"--inputs-only"}} {
+		var first string
+		for _, w := range []string{"1", "2", "4"} {
+			args := append([]string{"simulate", "example:project-cost", "--runs", "3000", "--seed", "11", "--json", "--workers", w}, mode...)
+			code, out, errs := forkcast(t, "", args...)
+			if code != 0 {
+				t.Fatalf("%v: exit %d: %s", args, code, errs)
+			}
+			if first == "" {
+				first = out
+			} else if out != first {
+				t.Errorf("%v: JSON differs from 1 worker's", args)
+			}
+		}
+		_, other, _ := forkcast(t, "", append([]string{"simulate", "example:project-cost", "--runs", "3000", "--seed", "12", "--json"}, mode...)...)
+		if other == first {
+			t.Errorf("%v: seeds 11 and 12 gave the same JSON", mode)
+		}
+	}
+}
+
+// --save-draws writes one CSV row a run: the draws and the payoffs; the
+// payoffs' mean is the reported mean, and the charts are written.
+func TestSimulateFiles(t *testing.T) {
+	dir := t.TempDir()
+	draws, hist, cum := filepath.Join(dir, "d.csv"), filepath.Join(dir, "h.svg"), filepath.Join(dir, "c.png")
+	code, out, errs := forkcast(t, "", "simulate", "example:project-cost", "--runs", "300", "--json",
+		"--save-draws", draws, "--chart", hist, "--cumulative", cum)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, f := range []string{draws, hist, cum} {
+		if !strings.Contains(errs, "wrote "+f) {
+			t.Errorf("no word of %s: %s", f, errs)
+		}
+	}
+	var res struct {
+		Inputs  []struct{ Name string }
+		Options []struct {
+			Label string
+			Mean  float64
+		}
+	}
+	if err := json.Unmarshal([]byte(out), &res); err != nil {
+		t.Fatal(err)
+	}
+	raw, err := os.ReadFile(draws)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(raw)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 301 || len(rows[0]) != 1+len(res.Inputs)+len(res.Options)+1 {
+		t.Fatalf("%d rows of %d columns", len(rows), len(rows[0]))
+	}
+	if rows[0][1] != res.Inputs[0].Name || rows[0][1+len(res.Inputs)] != "cost: "+res.Options[0].Label {
+		t.Errorf("header %v", rows[0])
+	}
+	for j, o := range res.Options {
+		sum := 0.0
+		for _, r := range rows[1:] {
+			sum += mustFloat(t, r[1+len(res.Inputs)+j])
+		}
+		if mean := sum / 300; mean < o.Mean*(1-1e-12) || mean > o.Mean*(1+1e-12) {
+			t.Errorf("%s: CSV mean %v, reported %v", o.Label, mean, o.Mean)
+		}
+	}
+	svg, _ := os.ReadFile(hist)
+	png, _ := os.ReadFile(cum)
+	if !bytes.Contains(svg, []byte("<svg")) || !bytes.HasPrefix(png, []byte("\x89PNG")) {
+		t.Errorf("charts: %d bytes of SVG, %d of PNG", len(svg), len(png))
+	}
+}
+
+func TestSimulateUsage(t *testing.T) {
+	badP := writeFile(t, "badp.fork", "let p = normal(50%, 40%)\ndecision \"D\"\n  \"a\"\n    chance \"M\"\n      \"u\"  p  gain 1\n      \"d\"  rest\n  \"b\"\n")
+	for _, c := range []struct {
+		args []string
+		code int
+		want string
+	}{
+		{[]string{"simulate", "example:project-cost", "--runs", "0"}, exitUsage, "--runs 0"},
+		{[]string{"simulate", "example:project-cost", "--runs", "20000000"}, exitUsage, "at most 10000000"},
+		{[]string{"simulate", "example:project-cost", "--seed", "-1"}, exitUsage, "seed"},
+		{[]string{"simulate", "example:project-cost", "--workers", "-2"}, exitUsage, "--workers -2"},
+		{[]string{"simulate", "example:project-cost", "--at", "Nowhere"}, exitUsage, "no decision labelled"},
+		{[]string{"simulate", "example:project-cost", "--chart", "x.pdf"}, exitUsage, ".svg or .png"},
+		{[]string{"simulate", "example:project-cost", "--save-draws", "-"}, exitUsage, "needs a file name"},
+		{[]string{"simulate", badP, "--runs", "1000"}, exitModel, `outside [0, 1]`},
+	} {
+		code, out, errs := forkcast(t, "", c.args...)
+		if code != c.code || !strings.Contains(out+errs, c.want) {
+			t.Errorf("%v: exit %d, want %d with %q:\n%s%s", c.args, code, c.code, c.want, out, errs)
+		}
+	}
+}
+
+func mustFloat(t *testing.T, s string) float64 {
+	t.Helper()
+	f, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return f
+}
