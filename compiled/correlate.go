@@ -56,7 +56,7 @@ func (k *compiler) correlations() {
 		return -1
 	}
 	var (
-		cols  []int       // sources involved, in the order of sources
+		cols  []int // sources involved, in the order of sources
 		index = map[int]int{}
 		pairs []dist.Pair
 		lines []*tree.Correlation // the line of each pair
@@ -175,4 +175,3 @@ func distInputs(k *compiler) []string {
 	}
 	return out
 }
-

@@ -73,13 +73,13 @@ type shape struct {
 	restState   []int32
 	restReading [][]int32
 
-	sources []source  // the distributions written in the model, each an input slot after the `let`s
+	sources []source // the distributions written in the model, each an input slot after the `let`s
 	// corr is the target rank correlation of the correlated sources,
 	// corrCols their indices in sources (none when nothing is correlated).
 	corr     dist.Correlation
 	corrCols []int
-	dyn     []dynFig  // figures that read inputs, inputs first in slot order
-	readers [][]int32 // per slot: the dyn figures that read it directly
+	dyn      []dynFig  // figures that read inputs, inputs first in slot order
+	readers  [][]int32 // per slot: the dyn figures that read it directly
 }
 
 type rangeProg struct{ low, high *program }

@@ -8,8 +8,8 @@ import (
 
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/internal/atomicfile"
-	"github.com/forkcast/forkcast/report"
 	"github.com/forkcast/forkcast/render/chart"
+	"github.com/forkcast/forkcast/report"
 	"github.com/schollz/progressbar/v3"
 	"github.com/urfave/cli/v2"
 )
