@@ -87,7 +87,11 @@ func simulateAction(c *cli.Context) error {
 	if err != nil {
 		return analysisErr(err)
 	}
-	r := report.Simulate(s, report.SimulateOptions{Names: flagNames(), Rerun: fmt.Sprintf("--seed %d", s.Seed)})
+	rerun := fmt.Sprintf("--seed %d", s.Seed)
+	if s.Stopped {
+		rerun += fmt.Sprintf(" --runs %d", s.Runs) // the runs of a seed are a prefix of every longer run
+	}
+	r := report.Simulate(s, report.SimulateOptions{Names: flagNames(), Rerun: rerun})
 	if err := hist.write(c, func(w io.Writer, o chart.Options) error { return chart.WriteHistogram(w, r.Histogram(), o) }); err != nil {
 		return err
 	}
