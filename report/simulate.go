@@ -225,17 +225,17 @@ type simInputJSON struct {
 }
 
 type simOptionJSON struct {
-	Label       string          `json:"label"`
-	Base        bool            `json:"base"`
-	AtMeans     string          `json:"at_means"`
-	Mean        float64         `json:"mean"`
-	StdErr      float64         `json:"stderr"`
-	SD          float64         `json:"sd"`
-	Min         float64         `json:"min"`
-	Max         float64         `json:"max"`
+	Label       string             `json:"label"`
+	Base        bool               `json:"base"`
+	AtMeans     string             `json:"at_means"`
+	Mean        float64            `json:"mean"`
+	StdErr      float64            `json:"stderr"`
+	SD          float64            `json:"sd"`
+	Min         float64            `json:"min"`
+	Max         float64            `json:"max"`
 	Percentiles simPercentilesJSON `json:"percentiles"`
-	PLoss       float64         `json:"p_loss"`
-	PBest       float64         `json:"p_best"`
+	PLoss       float64            `json:"p_loss"`
+	PBest       float64            `json:"p_best"`
 }
 
 type estimateJSON struct {
