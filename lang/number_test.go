@@ -108,3 +108,38 @@ func TestNumberDigits(t *testing.T) {
 		t.Errorf("got %v", ds)
 	}
 }
+
+// FuzzParseNumber checks the number reader the command line uses: no
+// panic, each input under a time budget, and agreement with the language:
+// a number it reads is a number token that the model reader reads to the
+// same value, and a number token the model reader takes, it takes too.
+func FuzzParseNumber(f *testing.F) {
+	for _, s := range []string{"25%", "1_000", "-2.5%", "_2_5_0___000", "+4_5_0_000_", "1e6", "", "-", "%",
+		"0.000_1", "12%%", "1.2.3", strings.Repeat("9", MaxDigits+1), "١٢", "5 %", "--1"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, text string) {
+		if len(text) > fuzzMaxInput {
+			t.Skip("larger than the input budget")
+		}
+		underBudget(t, fuzzExprTime, func() string {
+			v, err := ParseNumber(text)
+			body, neg := strings.CutPrefix(text, "-")
+			var ds tree.Diagnostics
+			lx := lexLine(body, 1, 1, &ds)
+			single := len(lx.toks) == 1 && lx.toks[0].Type == tokNumber && lx.toks[0].Value == body && len(ds) == 0
+			want, msg, _ := parseNumber(body)
+			switch {
+			case err == nil && !single:
+				return fmt.Sprintf("%q: ParseNumber reads %v, but a model would not read it as one number", text, v)
+			case err == nil && neg && !v.Equal(want.Neg()), err == nil && !neg && !v.Equal(want):
+				return fmt.Sprintf("%q: ParseNumber %v, a model %v", text, v, want)
+			case err != nil && single && msg == "":
+				return fmt.Sprintf("%q: a model reads it (%v), ParseNumber does not: %v", text, want, err)
+			case err != nil && (err.Error() == "" || len(err.Error()) > 400):
+				return fmt.Sprintf("%q: error of %d bytes", text, len(err.Error()))
+			}
+			return ""
+		})
+	})
+}
