@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"github.com/forkcast/forkcast/tree"
 )
@@ -66,16 +67,16 @@ func (r *reader) model(at tree.Pos) {
 
 func (r *reader) input() {
 	p := &tree.Param{Pos: r.s.pos}
-	hasName, hasLow, hasHigh := false, false, false
+	var seen [4]bool // which keys were given, read well or not
 	var lowAt, highAt tree.Pos
 	r.object("an input", inputKeys, func(k int) {
+		seen[k] = true
 		switch k {
 		case 0:
 			name, pos, ok := r.str("name", "an input")
 			if !ok {
 				return
 			}
-			hasName = true
 			p.Name = name
 			if !isName(name) {
 				r.err(pos, "a name is a letter or _ followed by letters, digits and _, such as p_slip; gain, cost, rest, if, in and on are reserved",
@@ -84,10 +85,10 @@ func (r *reader) input() {
 		case 1:
 			p.Expr, _ = r.figure("value", "an input", false)
 		case 2:
-			lowAt, hasLow = r.keyPos, true
+			lowAt = r.keyPos
 			p.Low, _ = r.figure("low", "an input", false)
 		case 3:
-			highAt, hasHigh = r.keyPos, true
+			highAt = r.keyPos
 			p.High, _ = r.figure("high", "an input", false)
 		}
 	})
@@ -95,14 +96,14 @@ func (r *reader) input() {
 		return
 	}
 	switch {
-	case !hasName:
+	case !seen[0]:
 		r.err(p.Pos, "", "an input has no \"name\"")
-	case p.Expr == nil:
+	case !seen[1]:
 		r.err(p.Pos, "give it a \"value\": a number or a calculation", "input %q has no \"value\"", p.Name)
 	}
-	if hasLow != hasHigh {
+	if seen[2] != seen[3] {
 		at := lowAt
-		if !hasLow {
+		if !seen[2] {
 			at = highAt
 		}
 		r.err(at, "give both \"low\" and \"high\", or neither", "the range of input %q needs both ends", p.Name)
@@ -118,93 +119,85 @@ func (r *reader) input() {
 
 func (r *reader) uncertainty() {
 	u := &tree.Uncertainty{Pos: r.s.pos}
-	hasName := false
+	var seen [3]bool // which keys were given, read well or not
 	r.object("an uncertainty", uncertaintyKeys, func(k int) {
+		seen[k] = true
 		switch k {
 		case 0:
-			u.Name, _, hasName = r.str("name", "an uncertainty")
+			u.Name, _, _ = r.str("name", "an uncertainty")
 		case 1:
 			u.Label = r.label("label", "an uncertainty")
 		case 2:
-			r.array(r.s.next(), "states", "an uncertainty", "a state", func() {
-				st := &tree.State{Pos: r.s.pos}
-				hasProb := false
-				r.object("a state", stateKeys, func(k int) {
-					switch k {
-					case 0:
-						st.Label = r.label("label", "a state")
-					case 1:
-						var rest bool
-						st.Prob, rest = r.figure("probability", "a state", true)
-						hasProb = st.Prob != nil || rest
-					}
-				})
-				if !hasProb && !r.stopped {
-					r.err(st.Pos, "give a \"probability\": a number, a calculation or \"rest\"", "state %q has no probability", st.Label)
-				}
-				u.States = append(u.States, st)
-			})
+			r.array(r.s.next(), "states", "an uncertainty", "a state", func() { u.States = append(u.States, r.state()) })
 		}
 	})
-	if !hasName && !r.stopped {
+	if !seen[0] {
 		r.err(u.Pos, "", "an uncertainty has no \"name\"")
 	}
 	r.m.Uncertainties = append(r.m.Uncertainties, u)
 }
 
-func (r *reader) test() {
-	t := &tree.Test{Pos: r.s.pos}
-	hasName, hasOn := false, false
-	r.object("a test", testKeys, func(k int) {
+func (r *reader) state() *tree.State {
+	st := &tree.State{Pos: r.s.pos}
+	var seen [2]bool
+	r.object("a state", stateKeys, func(k int) {
+		seen[k] = true
 		switch k {
 		case 0:
-			t.Name, _, hasName = r.str("name", "a test")
+			st.Label = r.label("label", "a state")
+		case 1:
+			st.Prob, _ = r.figure("probability", "a state", true)
+		}
+	})
+	if !seen[0] {
+		r.err(st.Pos, "", "a state has no \"label\"")
+	}
+	if !seen[1] {
+		r.err(st.Pos, "give a \"probability\": a number, a calculation or \"rest\"", "state %q has no probability", st.Label)
+	}
+	return st
+}
+
+func (r *reader) test() {
+	t := &tree.Test{Pos: r.s.pos}
+	var seen [5]bool
+	r.object("a test", testKeys, func(k int) {
+		seen[k] = true
+		switch k {
+		case 0:
+			t.Name, _, _ = r.str("name", "a test")
 		case 1:
 			t.Label = r.label("label", "a test")
 		case 2:
-			t.On, _, hasOn = r.str("on", "a test")
+			t.On, _, _ = r.str("on", "a test")
 		case 3:
 			t.Cost, _ = r.figure("cost", "a test", false)
 		case 4:
-			r.array(r.s.next(), "readings", "a test", "a reading", func() { r.reading(t) })
+			r.array(r.s.next(), "readings", "a test", "a reading", func() { t.Readings = append(t.Readings, r.reading()) })
 		}
 	})
-	if r.stopped {
-		return
-	}
-	if !hasName {
+	if !seen[0] {
 		r.err(t.Pos, "", "a test has no \"name\"")
 	}
-	if !hasOn {
+	if !seen[2] {
 		r.err(t.Pos, "name the uncertainty it tests: \"on\": \"NAME\"", "test %q has no \"on\"", t.Name)
 	}
 	r.m.Tests = append(r.m.Tests, t)
 }
 
-func (r *reader) reading(t *tree.Test) {
+func (r *reader) reading() *tree.Reading {
 	rd := &tree.Reading{Pos: r.s.pos}
+	var seen [3]bool
 	r.object("a reading", readingKeys, func(k int) {
+		seen[k] = true
 		switch k {
 		case 0:
 			rd.Label = r.label("label", "a reading")
 		case 1:
 			r.array(r.s.next(), "likelihoods", "a reading", "a likelihood", func() {
-				l := &tree.Likelihood{Pos: r.s.pos}
-				r.object("a likelihood", likelihoodKeys, func(k int) {
-					switch k {
-					case 0:
-						l.State = r.label("state", "a likelihood")
-					case 1:
-						l.Prob, _ = r.figure("probability", "a likelihood", false)
-					}
-				})
-				if l.Prob == nil {
-					if !r.stopped {
-						r.err(l.Pos, "give a \"probability\": P(this reading | the state)", "the likelihood for %q has no probability", l.State)
-					}
-					return
+				if l := r.likelihood(); l != nil {
+					rd.Given = append(rd.Given, l)
 				}
-				rd.Given = append(rd.Given, l)
 			})
 		case 2:
 			switch tk := r.s.next(); tk {
@@ -216,7 +209,35 @@ func (r *reader) reading(t *tree.Test) {
 			}
 		}
 	})
-	t.Readings = append(t.Readings, rd)
+	if !seen[0] {
+		r.err(rd.Pos, "", "a reading has no \"label\"")
+	}
+	return rd
+}
+
+// likelihood reads P(reading | state); nil when it has no probability.
+func (r *reader) likelihood() *tree.Likelihood {
+	l := &tree.Likelihood{Pos: r.s.pos}
+	var seen [2]bool
+	r.object("a likelihood", likelihoodKeys, func(k int) {
+		seen[k] = true
+		switch k {
+		case 0:
+			l.State = r.label("state", "a likelihood")
+		case 1:
+			l.Prob, _ = r.figure("probability", "a likelihood", false)
+		}
+	})
+	if !seen[0] {
+		r.err(l.Pos, "name the state: \"state\": \"LABEL\"", "a likelihood has no \"state\"")
+	}
+	if !seen[1] {
+		r.err(l.Pos, "give a \"probability\": P(this reading | the state)", "the likelihood for %q has no probability", l.State)
+	}
+	if l.Prob == nil {
+		return nil // reported
+	}
+	return l
 }
 
 // finish places the amounts given in the objective's terms and checks the
@@ -245,7 +266,7 @@ func (r *reader) finish() {
 	}
 	for _, nm := range r.names {
 		if !inputs[nm.Name] && !r.stopped {
-			r.err(nm.At, fmt.Sprintf("list it in \"inputs\": {\"name\": %q, \"value\": ...}", nm.Name), "unknown name %q", nm.Name)
+			r.errLen(nm.At, utf8.RuneCountInString(nm.Name), fmt.Sprintf("list it in \"inputs\": {\"name\": %q, \"value\": ...}", nm.Name), "unknown name %q", shorten(nm.Name))
 		}
 	}
 }

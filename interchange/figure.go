@@ -44,7 +44,7 @@ func (r *reader) figureOf(t token, restOK bool) (x tree.Expr, rest bool) {
 		return &tree.Number{At: t.pos, Value: d}, false
 	case restOK && string(t.text) == "rest":
 		return nil, true
-	case isName(string(t.text)):
+	case isNameBytes(t.text):
 		// The common calculation: an input's name.
 		nm := &tree.Name{At: t.at(0), Name: string(t.text)}
 		r.names = append(r.names, nm)
@@ -176,7 +176,7 @@ func (r *reader) calculation(t token) tree.Expr {
 		if r.stopped {
 			break
 		}
-		r.err(place(d.Pos), d.Hint, "%s", d.Summary)
+		r.errLen(place(d.Pos), d.Len, d.Hint, "%s", d.Summary)
 	}
 	if x == nil {
 		return nil
@@ -228,16 +228,21 @@ func shorten(s string) string {
 
 // isName reports whether s is a name in the text language: a letter or _
 // followed by letters, digits and _, and not a reserved word.
-func isName(s string) bool {
-	if s == "" {
+func isName(s string) bool { return isNameBytes([]byte(s)) }
+
+// isNameBytes is isName on the bytes of a string.
+func isNameBytes(b []byte) bool {
+	if len(b) == 0 {
 		return false
 	}
-	for i, c := range s {
+	for i := 0; i < len(b); {
+		c, size := utf8.DecodeRune(b[i:])
 		if c != '_' && !unicode.IsLetter(c) && (i == 0 || !unicode.IsDigit(c)) {
 			return false
 		}
+		i += size
 	}
-	switch s {
+	switch string(b) {
 	case "gain", "cost", "rest", "if", "in", "on":
 		return false
 	}

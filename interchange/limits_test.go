@@ -105,6 +105,30 @@ func TestReadLimits(t *testing.T) {
 			pos:  tree.Pos{Line: 1, Col: len(`{"root": {"type": "decision", "label": "d", "branches": [`) + 2*interchange.MaxErrors + 1},
 			max:  1 << 20,
 		},
+		{
+			name: "long key",
+			src:  []byte(`{"` + strings.Repeat("k", 10_000_000) + `": 1, "root": {"type": "end"}}`),
+			want: `unknown key "kkkkkkkkkkkkkkkkkkkkkkkkkkkkkkkkkkkkkkk…" in the model`, pos: tree.Pos{Line: 1, Col: 2},
+			max: 64 << 10,
+		},
+		{
+			name: "long number",
+			src:  []byte(`{"root": {"type": "end", "value": 1` + strings.Repeat("0", 10_000_000) + `}}`),
+			want: "the number 100000000000000000000000000000000000000… has 10,000,001 digits; a number may have at most 100",
+			pos:  tree.Pos{Line: 1, Col: 35},
+			max:  64 << 10,
+		},
+		{
+			name: "long calculation",
+			src:  []byte(`{"root": {"type": "decision", "branches": [{"label": "a", "gain": "` + strings.Repeat("1+", 2_000_000) + `1"}]}}`),
+			want: "the calculation is too long: more than 10000 parts",
+			pos:  tree.Pos{Line: 1, Col: len(`{"root": {"type": "decision", "branches": [{"label": "a", "gain": `) + 2 + 10_000},
+			// The calculation is kept as text while it is read (with room
+			// for twice its length), copied once for the expression
+			// reader, whose tokens stop at the limit: about four times
+			// its length, however long.
+			max: 4 * 4_000_001,
+		},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -5,6 +5,7 @@ import (
 	"io"
 	"strings"
 	"unicode"
+	"unicode/utf8"
 
 	"github.com/forkcast/forkcast/tree"
 )
@@ -165,6 +166,11 @@ func read(s *scanner, opts Options) (*tree.Model, tree.Diagnostics) {
 
 // err reports an error; past MaxErrors reading stops.
 func (r *reader) err(pos tree.Pos, hint, format string, args ...any) {
+	r.errLen(pos, 0, hint, format, args...)
+}
+
+// errLen reports an error that spans n characters from pos.
+func (r *reader) errLen(pos tree.Pos, n int, hint, format string, args ...any) {
 	if r.stopped {
 		return
 	}
@@ -175,6 +181,7 @@ func (r *reader) err(pos tree.Pos, hint, format string, args ...any) {
 		return
 	}
 	r.ds.Add(pos, hint, format, args...)
+	r.ds[len(r.ds)-1].Len = n
 }
 
 // stop records the scanner's error and stops reading.
@@ -235,20 +242,19 @@ func kindName(t tokKind) string {
 // r.unknown) or done at the closing `}`; ok is false when reading stopped.
 func (r *reader) member(first bool, keys []string) (k int, done, ok bool) {
 	s := r.s
+	s.keyCap = true
 	t := s.next()
-	if !first {
-		switch t {
-		case tObjectEnd:
-			return 0, true, true
-		case tComma:
-			t = s.next()
-		default:
-			r.syntax(t, "`,` or `}`")
-			return 0, false, false
-		}
+	if !first && t == tComma {
+		t = s.next()
 	} else if t == tObjectEnd {
+		s.keyCap = false
 		return 0, true, true
+	} else if !first {
+		s.keyCap = false
+		r.syntax(t, "`,` or `}`")
+		return 0, false, false
 	}
+	s.keyCap = false
 	if t != tString {
 		r.syntax(t, "a key in double quotes")
 		return 0, false, false
@@ -261,8 +267,14 @@ func (r *reader) member(first bool, keys []string) (k int, done, ok bool) {
 			break
 		}
 	}
+	if s.cut {
+		k = -1
+	}
 	if k < 0 {
-		r.unknown = string(s.text)
+		r.unknown = shorten(string(s.text))
+		if s.cut {
+			r.unknown = shorten(string(s.text) + "…")
+		}
 	}
 	if t := s.next(); t != tColon {
 		r.syntax(t, "`:` after the key")
@@ -304,7 +316,7 @@ func startsValue(t tokKind) bool {
 // the value. It reports whether the value is still to be read.
 func (r *reader) keyCheck(k int, seen *uint32, what string, keys []string) bool {
 	if k < 0 {
-		r.err(r.keyPos, "the keys allowed here are "+tree.QuoteList(keys), "unknown key %q in %s", r.unknown, what)
+		r.errLen(r.keyPos, utf8.RuneCountInString(r.unknown)+2, "the keys allowed here are "+tree.QuoteList(keys), "unknown key %q in %s", r.unknown, what)
 		r.skip(r.nextDiscard())
 		return false
 	}

@@ -2,6 +2,7 @@ package interchange_test
 
 import (
 	"context"
+	"fmt"
 	"math/big"
 	"os"
 	"strings"
@@ -379,5 +380,23 @@ func TestReadDocsExample(t *testing.T) {
 	}
 	if v := sol.Root.BranchValue(0); !v.Equal(decimal.NewFromInt(5150)) {
 		t.Fatalf("renting is worth %s, want 5150", v)
+	}
+}
+
+// TestReadOneErrorEach: a figure given but wrong is reported once, not
+// also as missing, and the caret spans what is wrong.
+func TestReadOneErrorEach(t *testing.T) {
+	cases := []struct{ src, want string }{
+		{`{"inputs": [{"name": "x", "value": "1e3"}], "root": {"type": "end"}}`, `1:37: 1e3 is not a number (3 wide)`},
+		{`{"uncertainties": [{"name": "u", "states": [{"label": "a", "probability": true}]}], "root": {"type": "end"}}`, `1:75: "probability" of a state must be a number, not true or false (0 wide)`},
+		{`{"tests": [{"name": 5, "on": "u", "readings": []}], "root": {"type": "end"}}`, `1:21: "name" of a test must be a string, not a number (0 wide)`},
+		{`{"root": {"type": "decision", "branches": [{"label": "a", "gain": "2 * feee"}]}}`, `1:72: unknown name "feee" (4 wide)`},
+		{`{"root": {"type": "end", "colour": 1}}`, `1:26: unknown key "colour" in a node (8 wide)`},
+	}
+	for _, c := range cases {
+		_, ds := interchange.ReadBytes([]byte(c.src), interchange.Options{})
+		if len(ds) != 1 || fmt.Sprintf("%s (%d wide)", ds[0].Error(), ds[0].Len) != c.want {
+			t.Errorf("%s: got %v, want %s", c.src, ds, c.want)
+		}
 	}
 }

@@ -30,6 +30,9 @@ const (
 // readChunk is how much the scanner reads from its source at a time.
 const readChunk = 64 << 10
 
+// maxKeyText is the most of a key the scanner keeps.
+const maxKeyText = 64
+
 // maxNumberText is the longest number token kept as text; a longer one is
 // counted (to say how many digits it has) but not kept.
 const maxNumberText = 256
@@ -63,6 +66,10 @@ type scanner struct {
 	digits  int   // digits in a number's mantissa, leading zeros included
 	long    bool  // a number too long to keep as text
 	discard bool  // do not keep the next string's value (it is skipped)
+	// keyCap keeps at most maxKeyText bytes of a string read as a key (no
+	// key allowed is longer), so a long key costs no memory; cut says the
+	// key was longer.
+	keyCap, cut bool
 
 	diag tree.Diagnostic // set when kind is tError
 }
@@ -338,14 +345,47 @@ func (s *scanner) number() tokKind {
 
 // str reads a string, unescaping it into text when keep is set.
 func (s *scanner) str(keep bool) tokKind {
-	s.text, s.cols, s.chars = s.text[:0], s.cols[:0], 0
+	s.text, s.cols, s.chars, s.cut = s.text[:0], s.cols[:0], 0, false
 	escaped := false
+	room := func() bool {
+		if s.keyCap && len(s.text) >= maxKeyText {
+			s.cut = true
+			return false
+		}
+		return keep
+	}
 	s.advance()     // the opening quote
 	off := int32(1) // column offset of the next character from the quote
 	for {
 		c, ok := s.peekByte()
 		if !ok {
 			return s.fail(s.pos, "add the closing \"", "the JSON ends inside a string")
+		}
+		if plainByte(c) {
+			// A run of plain ASCII characters, taken at once.
+			j := s.i + 1
+			for j < len(s.buf) && plainByte(s.buf[j]) {
+				j++
+			}
+			n := j - s.i
+			if keep {
+				if s.keyCap {
+					n = min(n, maxKeyText-len(s.text))
+					s.cut = s.cut || n < j-s.i
+				}
+				s.text = appendGrow(s.text, s.buf[s.i:s.i+n])
+				if escaped {
+					for k := 0; k < n; k++ {
+						s.cols = append(s.cols, off+int32(k))
+					}
+				}
+			}
+			s.col += j - s.i
+			s.cr = false
+			off += int32(j - s.i)
+			s.chars += j - s.i
+			s.i = j
+			continue
 		}
 		switch {
 		case c == '"':
@@ -407,7 +447,7 @@ func (s *scanner) str(keep bool) tokKind {
 			default:
 				return s.fail(at, "the escapes are \\\" \\\\ \\/ \\b \\f \\n \\r \\t and \\uXXXX", "unknown escape \\%c in a string", e)
 			}
-			if keep {
+			if room() {
 				if !escaped {
 					escaped = true
 					for k := 0; k < s.chars; k++ {
@@ -427,7 +467,7 @@ func (s *scanner) str(keep bool) tokKind {
 					return s.fail(s.here(), "save the file as UTF-8 text", "invalid UTF-8 in a string")
 				}
 			}
-			if keep {
+			if room() {
 				if escaped {
 					s.cols = append(s.cols, off)
 				}
@@ -440,6 +480,21 @@ func (s *scanner) str(keep bool) tokKind {
 			s.chars++
 		}
 	}
+}
+
+// plainByte is a character of a string that stands for itself: ASCII,
+// not a control character, a quote or a backslash.
+func plainByte(c byte) bool { return c >= 0x20 && c < 0x80 && c != '"' && c != '\\' }
+
+// appendGrow appends p to b, doubling b's room when it must grow, so that a
+// long string costs about twice its length however it arrives.
+func appendGrow(b, p []byte) []byte {
+	if len(b)+len(p) > cap(b) {
+		nb := make([]byte, len(b), 2*(len(b)+len(p)))
+		copy(nb, b)
+		b = nb
+	}
+	return append(b, p...)
 }
 
 // hex4 reads four hexadecimal digits.

@@ -169,6 +169,12 @@ func (j *writer) str(k, v string) {
 	}
 }
 
+// must writes a string member the reader requires, even when empty.
+func (j *writer) must(k, v string) {
+	j.key(k)
+	j.quote(v)
+}
+
 // raw writes a member whose value is already JSON.
 func (j *writer) raw(k, v string) {
 	j.key(k)
@@ -333,7 +339,7 @@ func (j *writer) model() {
 		for i, p := range m.Params {
 			j.item()
 			j.open('{')
-			j.str("name", p.Name)
+			j.must("name", p.Name)
 			if j.inputs != nil && j.inputs[i].Fixed {
 				j.key("value")
 				j.value(j.inputs[i].Value, fmt.Sprintf("input %q", p.Name))
@@ -354,14 +360,14 @@ func (j *writer) model() {
 		for u, un := range m.Uncertainties {
 			j.item()
 			j.open('{')
-			j.str("name", un.Name)
+			j.must("name", un.Name)
 			j.str("label", un.Label)
 			j.key("states")
 			j.open('[')
 			for s, st := range un.States {
 				j.item()
 				j.inlineObject(func() {
-					j.str("label", st.Label)
+					j.must("label", st.Label)
 					j.key("probability")
 					switch {
 					case c != nil && c.PriorPinned(u, s):
@@ -384,16 +390,16 @@ func (j *writer) model() {
 		for _, t := range m.Tests {
 			j.item()
 			j.open('{')
-			j.str("name", t.Name)
+			j.must("name", t.Name)
 			j.str("label", t.Label)
-			j.str("on", t.On)
+			j.must("on", t.On)
 			j.fig("cost", t.Cost)
 			j.key("readings")
 			j.open('[')
 			for _, rd := range t.Readings {
 				j.item()
 				j.inlineObject(func() {
-					j.str("label", rd.Label)
+					j.must("label", rd.Label)
 					j.key("likelihoods")
 					j.w.WriteByte('[')
 					for k, l := range rd.Given {
@@ -401,7 +407,7 @@ func (j *writer) model() {
 							j.w.WriteString(", ")
 						}
 						j.inlineObject(func() {
-							j.str("state", l.State)
+							j.must("state", l.State)
 							j.fig("probability", l.Prob)
 						})
 					}
@@ -470,7 +476,7 @@ func (j *writer) tree() {
 		}
 		j.item()
 		j.open('{')
-		j.str("label", b.Label)
+		j.must("label", b.Label)
 		j.branchProb(f.n, b, ci)
 		j.fig("gain", b.Gain)
 		j.fig("cost", b.Cost)

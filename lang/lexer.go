@@ -117,10 +117,11 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 			Summary: fmt.Sprintf(format, args...), Hint: hint})
 		out.lexErr = true
 	}
+	tooLong := false // the line has more than maxTokens tokens: lexing stops
 	emit := func(t lexer.TokenType, v string, c, w int) {
 		if len(a.toks)-t0 == maxTokens {
 			errAt(c, 1, "split it over several lines, for example with `let`", "the line is too long: more than %d parts", maxTokens)
-			out.noParse = true
+			out.noParse, tooLong = true, true
 		}
 		a.toks = append(a.toks, lexer.Token{Type: t, Value: v, Pos: pos(c)})
 		a.width = append(a.width, w)
@@ -141,7 +142,7 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 		}
 	}()
 	i := 0
-	for i < len(s) {
+	for i < len(s) && !tooLong {
 		r, size := utf8.DecodeRuneInString(s[i:])
 		c := col
 		switch {

@@ -3,6 +3,7 @@ package lang
 import (
 	"errors"
 	"fmt"
+	"strings"
 
 	"github.com/alecthomas/participle/v2"
 	"github.com/alecthomas/participle/v2/lexer"
@@ -28,6 +29,12 @@ func ParseExpr(text string, at tree.Pos) (tree.Expr, tree.Diagnostics) {
 	var ds tree.Diagnostics
 	lx := lexLine(text, at.Line, at.Col, &ds)
 	if lx.lexErr || lx.noParse {
+		for i, d := range ds {
+			if strings.HasPrefix(d.Summary, "the line is too long") {
+				ds[i].Summary = strings.Replace(d.Summary, "the line", "the calculation", 1)
+				ds[i].Hint = "split it into parts, each an input of its own"
+			}
+		}
 		return nil, ds.Sort()
 	}
 	if len(lx.toks) == 0 {

@@ -1,6 +1,8 @@
 package lang_test
 
 import (
+	"runtime"
+	"strings"
 	"testing"
 
 	"github.com/forkcast/forkcast/lang"
@@ -45,6 +47,23 @@ func TestParseExpr(t *testing.T) {
 		if x != nil || len(ds) == 0 || ds[0].Error() != c.want {
 			t.Errorf("%q: got %v %v, want %s", c.src, x, ds, c.want)
 		}
+	}
+}
+
+// TestParseExprLong reads a calculation of 4 MB: it stops at the limit on
+// the parts of one line, having kept no more of it (it once went on
+// lexing: 1.4 GB and 19 s).
+func TestParseExprLong(t *testing.T) {
+	src := strings.Repeat("1+", 2_000_000) + "1"
+	var before, after runtime.MemStats
+	runtime.ReadMemStats(&before)
+	_, ds := lang.ParseExpr(src, tree.Pos{Line: 1, Col: 1})
+	runtime.ReadMemStats(&after)
+	if len(ds) != 1 || ds[0].Error() != "1:10001: the calculation is too long: more than 10000 parts" {
+		t.Fatalf("got %v", ds)
+	}
+	if n := after.TotalAlloc - before.TotalAlloc; n > 16<<20 {
+		t.Fatalf("allocated %d bytes", n)
 	}
 }
 
