@@ -251,23 +251,28 @@ func chanceCE(r float64, xs, ps []float64) float64 {
 		return 0 // no branch can happen: not a valid model
 	}
 	// Relative to the worst outcome every exponent is ≤ 0.
-	var t, s, mean float64 // Σ p·expm1(−d/r), Σ p·exp(−d/r), Σ p·d
+	var t, mean float64 // Σ p·expm1(−d/r), Σ p·d
 	for k, x := range xs {
-		if ps[k] <= 0 {
-			continue
+		if ps[k] > 0 {
+			dx := x - m
+			t += ps[k] * math.Expm1(-dx/r)
+			mean += ps[k] * dx
 		}
-		dx := x - m
-		z := -dx / r
-		t += ps[k] * math.Expm1(z)
-		s += ps[k] * math.Exp(z)
-		mean += ps[k] * dx
 	}
 	var delta float64
-	switch {
-	case t > -0.5:
-		// The sum is near 1: ln(1 + t) keeps the small difference.
+	if t > -0.5 {
+		// The sum Σ p·exp(−d/r) = 1 + t is near 1: ln(1 + t) keeps the
+		// small difference.
 		delta = -r * math.Log1p(t)
-	default:
+	} else {
+		// Far from 1, 1 + t would lose the small sum's digits: add up the
+		// exponentials themselves.
+		var s float64
+		for k, x := range xs {
+			if ps[k] > 0 {
+				s += ps[k] * math.Exp(-(x-m)/r)
+			}
+		}
 		delta = -r * math.Log(s)
 	}
 	// Jensen's inequality: the certainty equivalent lies between the worst
