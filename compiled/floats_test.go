@@ -214,3 +214,27 @@ func TestFloatsDrawRefused(t *testing.T) {
 		}
 	}
 }
+
+// TestDistributionRange: an input written as a distribution, with no `in`
+// range of its own, takes the distribution's range for sensitivity and
+// breakeven: LOW and HIGH as written (pert, triangular, uniform), the
+// extreme values (discrete), P10 and P90 (lognormal as written; normal
+// MEAN ∓ 1.2815515655446004·SD, z(0.9) from a standard normal table). An
+// `in` range wins.
+func TestDistributionRange(t *testing.T) {
+	for _, c := range []struct{ expr, lo, hi string }{
+		{"pert(380_000, 420_000, 610_000)", "380000", "610000"},
+		{"triangular(10, 40, 100)", "10", "100"},
+		{"uniform(2, 5)", "2", "5"},
+		{"discrete(300, 30%, 100, 50%, 200, 20%)", "100", "300"},
+		{"lognormal(12, 40)", "12", "40"},
+		{"normal(100, 15)", "80.77672651683099", "119.22327348316901"},
+		{"pert(1, 2, 3) in 0 .. 10", "0", "10"},
+	} {
+		src := "let x = " + c.expr + "\ndecision \"D\"\n  \"a\"  gain x\n  \"b\"\n"
+		in, _ := load(t, src).InputNamed("x")
+		if !in.HasRange || in.Low.String() != c.lo || in.High.String() != c.hi || in.RangeOfDist == strings.Contains(c.expr, " in ") {
+			t.Errorf("%s: range %v %s .. %s (of the distribution: %v), want %s .. %s", c.expr, in.HasRange, in.Low, in.High, in.RangeOfDist, c.lo, c.hi)
+		}
+	}
+}

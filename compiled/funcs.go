@@ -88,6 +88,27 @@ func meanOf(fn function, args []decimal.Decimal) (d dist.Distribution, mean deci
 	return d, decimal.NewFromFloat(d.Mean()), false, nil
 }
 
+// spreadOf is the range a distribution written as args gives an input
+// whose `let` has no `in LOW .. HIGH`: LOW and HIGH as written for pert,
+// triangular and uniform; the smallest and largest value of discrete; P10
+// and P90 for lognormal (as written) and normal (MEAN ∓ 1.2816 SD, from
+// its quantile function, so not exact).
+func spreadOf(name string, args []decimal.Decimal, d dist.Distribution) (lo, hi decimal.Decimal) {
+	switch name {
+	case "pert", "triangular":
+		return args[0], args[2]
+	case "uniform", "lognormal":
+		return args[0], args[1]
+	case "discrete":
+		lo, hi = args[0], args[0]
+		for i := 0; i < len(args); i += 2 {
+			lo, hi = decimal.Min(lo, args[i]), decimal.Max(hi, args[i])
+		}
+		return lo, hi
+	}
+	return decimal.NewFromFloat(d.Quantile(0.1)), decimal.NewFromFloat(d.Quantile(0.9))
+}
+
 func argError(name string, fn function, n int) string {
 	want := fmt.Sprint(fn.min)
 	switch {

@@ -260,6 +260,13 @@ type Input struct {
 	// Dist is the distribution the input is written as (`let x =
 	// pert(...)`), nil for a plain figure; its Value is then the mean.
 	Dist dist.Distribution
+	// RangeOfDist is set when the input is a distribution and its `let`
+	// gives no `in LOW .. HIGH`: Low and High (and HasRange) are then the
+	// distribution's own range, which sensitivity and breakeven use: LOW
+	// and HIGH of pert, triangular and uniform, the smallest and largest
+	// value of discrete, P10 and P90 of lognormal (as written) and normal
+	// (MEAN ∓ 1.2816·SD, rounded: not exact).
+	RangeOfDist bool
 	// Fixed is true when With gave it a value: it no longer follows its
 	// expression.
 	Fixed bool
@@ -290,7 +297,12 @@ func (c *Model) input(slot int) Input {
 		Fixed: c.fixed != nil && c.fixed[slot]}
 	for _, src := range c.sh.sources {
 		if src.let == int32(slot) {
-			in.Dist, _, _, _ = meanOf(functions[src.call.Func], src.prog.args(c.pool, c.in))
+			args := src.prog.args(c.pool, c.in)
+			in.Dist, _, _, _ = meanOf(functions[src.call.Func], args)
+			if in.Dist != nil && c.sh.ranges[slot].low == nil {
+				in.Low, in.High = spreadOf(src.call.Func, args, in.Dist)
+				in.HasRange, in.RangeOfDist = true, true
+			}
 		}
 	}
 	if r := c.sh.ranges[slot]; r.low != nil {

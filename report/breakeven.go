@@ -174,6 +174,7 @@ func (r *BreakevenReport) WriteText(out io.Writer) error {
 	for _, n := range be.Notes {
 		w.f("note: %s\n", note(n))
 	}
+	writeMeans(w, r.Model)
 	w.ln()
 	name := be.Vary.String()
 	if len(be.Switches) == 0 {
@@ -217,6 +218,7 @@ type breakevenJSON struct {
 	Options   []string      `json:"options"`
 	Switches  []switchJSON  `json:"switches"`
 	Segments  []segmentJSON `json:"segments"`
+	Means     []meanJSON    `json:"means,omitempty"`
 	Notes     []string      `json:"notes"`
 }
 
@@ -254,6 +256,7 @@ func (r *BreakevenReport) shape() breakevenJSON {
 		Low: be.Low.String(), High: be.High.String(), Narrowed: be.Narrowed, Adjust: be.Adjust,
 		Decision: be.Decision.Display(), Path: append([]string{}, be.Path...), Options: be.Options,
 		Switches: []switchJSON{}, Segments: []segmentJSON{}, Notes: []string{}}
+	out.Means = meansNonEmpty(r.Model)
 	for _, n := range be.Notes {
 		out.Notes = append(out.Notes, r.Options.Names.Apply(n))
 	}

@@ -126,6 +126,7 @@ func (r *ProfileReport) WriteText(out io.Writer) error {
 	for _, n := range ps.Notes {
 		w.f("note: %s\n", r.Options.Names.Apply(n))
 	}
+	writeMeans(w, r.Model)
 	w.ln()
 	// The summary: one column per option.
 	head := []string{""}
@@ -228,6 +229,7 @@ type profileJSON struct {
 	RiskNote      string              `json:"risk_note,omitempty"`
 	Options       []profileOptionJSON `json:"options"`
 	Dominance     []dominanceJSON     `json:"dominance"`
+	Means         []meanJSON          `json:"means,omitempty"`
 	Notes         []string            `json:"notes"`
 }
 
@@ -286,6 +288,7 @@ func (r *ProfileReport) shape() profileJSON {
 	out := profileJSON{Title: m.Title, Objective: m.Objective.String(), Currency: m.Currency,
 		Path: append([]string{}, ps.Path...), Threshold: ps.Threshold.String(), Exact: ps.Exact,
 		Options: []profileOptionJSON{}, Dominance: []dominanceJSON{}, Notes: []string{}}
+	out.Means = meansNonEmpty(r.Model)
 	if ps.Decision != nil {
 		d := ps.Decision.Display()
 		out.Decision = &d

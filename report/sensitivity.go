@@ -126,6 +126,7 @@ func (r *SensitivityReport) WriteText(out io.Writer) error {
 	for _, n := range s.Notes {
 		w.f("note: %s\n", note(n))
 	}
+	writeMeans(w, r.Model)
 	w.ln()
 	w.f("Inputs by swing, largest first (%s at each end, every decision re-optimised)\n", words.value)
 	rows := [][]string{{"input", "low", "base", "high", words.short + " at low", words.short + " at high", "swing"}}
@@ -196,6 +197,7 @@ type sensitivityJSON struct {
 	Exact     bool        `json:"exact"`
 	Inputs    []inputJSON `json:"inputs"`
 	Samples   int         `json:"samples"`
+	Means     []meanJSON  `json:"means,omitempty"`
 	Notes     []string    `json:"notes"`
 }
 
@@ -264,6 +266,7 @@ func (r *SensitivityReport) shape() sensitivityJSON {
 	out := sensitivityJSON{Title: m.Title, Objective: m.Objective.String(), Currency: m.Currency, Base: s.Base.String(),
 		Path: append([]string{}, s.Path...), Options: append([]string{}, s.Options...), BaseBest: option(s.Options, s.BaseBest),
 		Exact: s.Exact, Inputs: []inputJSON{}, Samples: s.Samples, Notes: []string{}}
+	out.Means = meansNonEmpty(r.Model)
 	if s.Decision != nil {
 		d := s.Decision.Display()
 		out.Decision = &d

@@ -74,6 +74,7 @@ func (r *SolveReport) WriteText(w io.Writer) error {
 		t.f("note:            a fraction was rounded at %d decimal places;\n"+
 			"                 the figures are exact to that precision\n", compiled.DivisionScale)
 	}
+	writeMeans(t, sol.Compiled)
 	t.ln()
 	t.ln("Recommended policy")
 	p.policy(sol)

@@ -74,6 +74,7 @@ func (r *MapReport) WriteText(out io.Writer) error {
 	for _, n := range mp.Notes {
 		w.f("note: %s\n", note(n))
 	}
+	writeMeans(w, r.Model)
 	w.ln()
 	w.f("Best option at %s in each cell\n", quoted(mp.Decision.Display()))
 	ylab := make([]string, len(mp.Y.Values))
@@ -182,6 +183,7 @@ type mapJSON struct {
 	Boundaries []boundaryJSON `json:"boundaries"`
 	Exact      bool           `json:"exact"`
 	Samples    int            `json:"samples"`
+	Means      []meanJSON     `json:"means,omitempty"`
 	Notes      []string       `json:"notes"`
 }
 
@@ -211,6 +213,7 @@ func (r *MapReport) shape() mapJSON {
 		X: axisShape(mp.X, true), Y: axisShape(mp.Y, true), Decision: mp.Decision.Display(),
 		Path: append([]string{}, mp.Path...), Options: mp.Options, Tied: mp.Tied, Boundaries: []boundaryJSON{},
 		Exact: mp.Exact, Samples: mp.Samples, Notes: []string{}}
+	out.Means = meansNonEmpty(r.Model)
 	for _, row := range mp.Best {
 		rj := make([]*string, len(row))
 		for i, k := range row {

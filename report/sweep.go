@@ -90,6 +90,7 @@ func (r *SweepReport) WriteText(out io.Writer) error {
 	for _, n := range sw.Notes {
 		w.f("note: %s\n", note(n))
 	}
+	writeMeans(w, r.Model)
 	w.ln()
 	w.f("Each option's %s, its own cash included (%s), and the best\n", wordsOf(sw.Objective).value, cur)
 	head := append(append([]string{sw.Input.Vary.String()}, sw.Options...), "best")
@@ -184,6 +185,7 @@ type sweepJSON struct {
 	Segments  []segmentJSON    `json:"segments"`
 	Exact     bool             `json:"exact"`
 	Samples   int              `json:"samples"`
+	Means     []meanJSON       `json:"means,omitempty"`
 	Notes     []string         `json:"notes"`
 }
 
@@ -205,6 +207,7 @@ func (r *SweepReport) shape() sweepJSON {
 		Decision: sw.Decision.Display(), Path: append([]string{}, sw.Path...), Options: sw.Options,
 		Points: []sweepPointJSON{}, Switches: switchesShape(sw.Options, sw.Switches), Segments: []segmentJSON{},
 		Exact: sw.Exact, Samples: sw.Samples, Notes: []string{}}
+	out.Means = meansNonEmpty(r.Model)
 	for k, x := range sw.Input.Values {
 		p := sweepPointJSON{X: x.String(), Best: []string{}}
 		for _, v := range sw.Values[k] {

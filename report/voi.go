@@ -89,6 +89,7 @@ func (r *VOIReport) WriteText(out io.Writer) error {
 		w.ln(m.Title)
 	}
 	w.f("objective:  %s\n", objectiveText(m))
+	writeMeans(w, r.Solution.Compiled)
 	w.f("%s of the best plan in the tree:  %s\n\n", words.value, money(info.Value))
 
 	w.ln("Expected value of perfect information (EVPI)")
@@ -283,6 +284,7 @@ type voiJSON struct {
 	EVPINote      string        `json:"evpi_note,omitempty"`
 	Uncertainties []uncJSON     `json:"uncertainties"`
 	Tests         []testVOIJSON `json:"tests"`
+	Means         []meanJSON    `json:"means,omitempty"`
 }
 
 type uncJSON struct {
@@ -352,6 +354,7 @@ func (r *VOIReport) shape() voiJSON {
 	note := r.Options.Names.Apply
 	out := voiJSON{Title: m.Title, Objective: m.Objective.String(), Currency: m.Currency, Value: info.Value.String(),
 		EVPINote: note(info.TotalNote), Uncertainties: []uncJSON{}, Tests: []testVOIJSON{}}
+	out.Means = meansNonEmpty(r.Solution.Compiled)
 	if t := info.Total; t != nil {
 		e, with := t.EVPI.String(), t.With.String()
 		out.EVPI, out.EVPIWith, out.EVPIScope, out.EVPIExact = &e, &with, t.Scope.String(), t.Exact

@@ -143,3 +143,34 @@ func mustFloat(t *testing.T, s string) float64 {
 	}
 	return f
 }
+
+// Every exact analysis says that inputs written as distributions stand for
+// their means: in its text, and in its JSON's "means" (solve's JSON is
+// the interchange format, whose inputs show the distributions as
+// written).
+func TestExactAnalysesSayMeans(t *testing.T) {
+	for _, args := range [][]string{
+		{"solve"}, {"voi"}, {"breakeven", "--vary", "contract"}, {"sensitivity"},
+		{"sweep", "--vary", "contract", "--steps", "2"}, {"profile"},
+	} {
+		code, out, errs := forkcast(t, "", append(args, "example:project-cost")...)
+		if code != 0 || !strings.Contains(out, "the 9 distributions stand for their means here") ||
+			!strings.Contains(out, "building = pert(310_000, 340_000, 450_000): mean ≈353,333.333333") {
+			t.Errorf("%v: exit %d:\n%s%s", args, code, out, errs)
+		}
+		if args[0] == "solve" {
+			continue
+		}
+		code, out, errs = forkcast(t, "", append(args, "--json", "example:project-cost")...)
+		var res struct {
+			Means []struct {
+				Input, Written, Mean string
+				Exact                bool
+			}
+		}
+		if err := json.Unmarshal([]byte(out), &res); code != 0 || err != nil || len(res.Means) != 9 ||
+			res.Means[0].Input != "design" || res.Means[0].Mean != "48000" || !res.Means[0].Exact || res.Means[7].Input != "" {
+			t.Errorf("%v --json: exit %d, %v, means %+v\n%s", args, code, err, res.Means, errs)
+		}
+	}
+}
