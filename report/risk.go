@@ -105,8 +105,12 @@ func (p printer) riskPolicy(rs *eval.RiskSolution) {
 		}
 		if e := rs.EMV.At(i); !e.IsBest(chosen) {
 			best := e.Chosen()
-			w.f("     the expected-value policy takes %s here (expected value %s, against %s)\n",
-				quoted(s.Node.Branches[best].Label), p.money(e.BranchValue(best)), p.money(e.BranchValue(chosen)))
+			what := "expected value"
+			if sol.Model.Objective == tree.Min {
+				what = "expected cost"
+			}
+			w.f("     the expected-value policy takes %s here (%s %s, against %s)\n",
+				quoted(s.Node.Branches[best].Label), what, p.money(e.BranchValue(best)), p.money(e.BranchValue(chosen)))
 		}
 	}
 	if len(ds) == 0 {

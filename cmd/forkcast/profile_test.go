@@ -186,3 +186,23 @@ func TestRiskToleranceIgnoredNote(t *testing.T) {
 		}
 	}
 }
+
+// Under objective min the certainty equivalent is a certain cost, above
+// the expected cost: in the release example, with a risk tolerance of
+// 100,000, reworking for a sure 45,000 is preferred to testing first
+// (expected cost 30,980, by the example's own figures).
+func TestSolveRiskCosts(t *testing.T) {
+	code, out, errs := forkcast(t, "", "solve", "example:release", "--risk-tolerance", "100_000", "--no-tree")
+	if code != 0 {
+		t.Fatal(errs)
+	}
+	for _, want := range []string{
+		"certainty equivalent:  45,000.00 EUR (a certain cost)",
+		"The expected-value policy expects 30,980.00 EUR: caution costs 14,020.00 EUR in expected value.",
+		`the expected-value policy takes "Run the soak test" here (expected cost 30,980.00 EUR, against 45,000.00 EUR)`,
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("no %q in\n%s", want, out)
+		}
+	}
+}
