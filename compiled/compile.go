@@ -109,6 +109,9 @@ func (k *compiler) figure(e tree.Expr, kind figKind, i, j, kk int32) (exact.Num,
 	if !p.isConst() {
 		k.c.sh.dyn = append(k.c.sh.dyn, dynFig{kind: kind, i: i, j: j, k: kk, prog: p})
 	}
+	if kind != figInput { // an input's rounding is tracked per input (inInexact)
+		k.c.noteRounded(!isExact, !p.isConst())
+	}
 	return v, true
 }
 
@@ -638,6 +641,40 @@ func (k *compiler) tree() {
 		}
 	}
 	sh.first = append(sh.first, int32(len(sh.nodes)))
+	if named {
+		k.seenAbove()
+	}
+}
+
+// seenAbove marks every node on an uncertainty that has another node on the
+// same uncertainty above it, in one depth-first walk that counts, per
+// uncertainty, the nodes on it on the current path.
+func (k *compiler) seenAbove() {
+	sh := k.c.sh
+	sh.seen = make([]bool, len(sh.kind))
+	count := make([]int32, len(sh.uncs))
+	type item struct {
+		i     int32
+		leave bool
+	}
+	stack := []item{{0, false}}
+	for len(stack) > 0 {
+		it := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		u := sh.unc[it.i]
+		if it.leave {
+			count[u]--
+			continue
+		}
+		if u >= 0 {
+			sh.seen[it.i] = count[u] > 0
+			count[u]++
+			stack = append(stack, item{it.i, true})
+		}
+		for c := sh.first[it.i+1] - 1; c >= sh.first[it.i]; c-- {
+			stack = append(stack, item{c, false})
+		}
+	}
 }
 
 // plainChance checks and evaluates the probabilities of a chance node that

@@ -51,13 +51,15 @@ type derived struct {
 	eBig    []*big.Int // set when E does not fit in 128 bits at the scale
 	exact   bool
 
-	rhoOnce sync.Once
-	rhoBig  []*big.Int
-	bigOnce sync.Once
-	bigE    []*big.Int
-	fltOnce sync.Once
-	fltE    []float64
-	fltMass []float64
+	workOnce sync.Once
+	work     int
+	rhoOnce  sync.Once
+	rhoBig   []*big.Int
+	bigOnce  sync.Once
+	bigE     []*big.Int
+	fltOnce  sync.Once
+	fltE     []float64
+	fltMass  []float64
 }
 
 // arith is the arithmetic the mass pass needs, so that one pass serves
@@ -123,49 +125,55 @@ func (floatArith) normalize(j []float64) []float64 {
 
 // ctx is what is known about the named uncertainties on the way to a
 // node: for each one seen, the joint probability of each state with the
-// readings and outcomes so far.
+// readings and outcomes so far. It is a persistent list, newest first,
+// shared by every node below the point where it was made.
 type ctx[T any] struct {
-	u    []int32
-	j    [][]T
-	prod T // Π over u of Σ j[u]: the joint probability of everything seen
+	u    int32
+	j    []T
+	sum  T // Σ j
+	prod T // Π over the list of the sums: the joint probability of everything seen
+	prev *ctx[T]
 }
 
+// joint is u's joint vector in x, or its prior when u has not been seen.
 func joint[T any](x *ctx[T], prior [][]T, u int32) []T {
-	if x != nil {
-		for i, v := range x.u {
-			if v == u {
-				return x.j[i]
-			}
+	for n := x; n != nil; n = n.prev {
+		if n.u == u {
+			return n.j
 		}
 	}
 	return prior[u]
 }
 
-// with returns a context with u's joint vector replaced.
-func with[T any](ar arith[T], x *ctx[T], u int32, j []T) *ctx[T] {
-	y := &ctx[T]{}
-	if x != nil {
-		y.u = append(make([]int32, 0, len(x.u)+1), x.u...)
-		y.j = append(make([][]T, 0, len(x.j)+1), x.j...)
+// with returns x with u's joint vector set to j. fresh says u is not in x
+// yet (the usual case: the first node on u on the way down), which costs
+// one multiplication; otherwise the list is rebuilt without u's old entry.
+func with[T any](ar arith[T], x *ctx[T], u int32, j []T, fresh bool) *ctx[T] {
+	if !fresh {
+		x = without(ar, x, u)
 	}
-	found := false
-	for i, v := range y.u {
-		if v == u {
-			y.j[i] = j
-			found = true
+	return push(ar, x, u, j)
+}
+
+func push[T any](ar arith[T], x *ctx[T], u int32, j []T) *ctx[T] {
+	s := ar.zero()
+	for _, v := range j {
+		s = ar.add(s, v)
+	}
+	return &ctx[T]{u: u, j: j, sum: s, prod: ar.mul(prodOf(ar, x), s), prev: x}
+}
+
+// without rebuilds x without u, oldest entry first.
+func without[T any](ar arith[T], x *ctx[T], u int32) *ctx[T] {
+	var keep []*ctx[T]
+	for n := x; n != nil; n = n.prev {
+		if n.u != u {
+			keep = append(keep, n)
 		}
 	}
-	if !found {
-		y.u = append(y.u, u)
-		y.j = append(y.j, j)
-	}
-	y.prod = ar.one()
-	for _, v := range y.j {
-		s := ar.zero()
-		for _, x := range v {
-			s = ar.add(s, x)
-		}
-		y.prod = ar.mul(y.prod, s)
+	var y *ctx[T]
+	for i := len(keep) - 1; i >= 0; i-- {
+		y = &ctx[T]{u: keep[i].u, j: keep[i].j, sum: keep[i].sum, prod: ar.mul(prodOf(ar, y), keep[i].sum), prev: y}
 	}
 	return y
 }
@@ -209,9 +217,13 @@ func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, z
 		if named {
 			plain[k] = ar.one()
 			if x := ctxs[k]; x != nil {
-				y := &ctx[T]{}
-				for i, u := range x.u {
-					y = with(ar, y, u, ar.normalize(x.j[i]))
+				var entries []*ctx[T]
+				for n := x; n != nil; n = n.prev {
+					entries = append(entries, n)
+				}
+				var y *ctx[T]
+				for e := len(entries) - 1; e >= 0; e-- {
+					y = push(ar, y, entries[e].u, ar.normalize(entries[e].j))
 				}
 				ctxs[k] = y
 				mass[k] = y.prod
@@ -261,7 +273,11 @@ func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, z
 		default:
 			u := sh.unc[i]
 			t := sh.test[i]
-			j := joint(ctxs[i], prior, u)
+			fresh := !sh.seen[i]
+			j := prior[u]
+			if !fresh {
+				j = joint(ctxs[i], prior, u)
+			}
 			for k := from; k < to; k++ {
 				o := sh.out[k]
 				nj := make([]T, len(j))
@@ -275,7 +291,7 @@ func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, z
 					}
 					nj[o] = j[o]
 				}
-				x := with(ar, ctxs[i], u, nj)
+				x := with(ar, ctxs[i], u, nj, fresh)
 				plain[k] = plain[i]
 				if ar.isZero(x.prod) {
 					// Never reached: a frame of its own. A known state
@@ -283,9 +299,9 @@ func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, z
 					// uncertainty as it was before it.
 					markRestart(k)
 					if t >= 0 {
-						x = with(ar, ctxs[i], u, j)
+						x = with(ar, ctxs[i], u, j, fresh)
 						if ar.isZero(x.prod) {
-							x = with(ar, ctxs[i], u, prior[u])
+							x = with(ar, ctxs[i], u, prior[u], fresh)
 						}
 						if zeroReading != nil {
 							zeroReading(k, t)
@@ -296,7 +312,7 @@ func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, z
 							unit[s] = ar.zero()
 						}
 						unit[o] = ar.one()
-						x = with(ar, ctxs[i], u, unit)
+						x = with(ar, ctxs[i], u, unit, fresh)
 					}
 					plain[k] = ar.one()
 				}

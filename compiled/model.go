@@ -41,8 +41,15 @@ type Model struct {
 	prior     [][]exact.Num
 	lik       [][][]exact.Num // per test: [reading][state]
 	tcost     []exact.Num     // per test
-	rounded   bool            // some figure went through a rounded division
-	d         *derived
+	rounded   bool            // while compiling: the figures checked so far went through a rounded division
+	// constRounded is set when a figure that reads no input was rounded;
+	// dynInexact, per dynamic figure, when its last evaluation was (nil
+	// when none was); inputs have inInexact. Exact follows from them, so
+	// that a change of inputs that removes the only rounded figure makes
+	// the model exact again.
+	constRounded bool
+	dynInexact   []bool
+	d            *derived
 }
 
 // shape is what every variant of a model shares: its layout and the
@@ -57,6 +64,7 @@ type shape struct {
 	unc  []int32 // per node: the uncertainty a chance node samples or a test node tests, or -1
 	test []int32 // per node: the test a node runs, or -1
 	out  []int32 // per node: the state or reading of the branch into it (parent on an event), or -1
+	seen []bool  // per node on an event: a node on the same uncertainty lies above it
 	// restAt is, per plain chance node, the child that takes the rest, or
 	// -1; nil when no chance node has a rest branch.
 	restAt []int32
@@ -184,7 +192,40 @@ func (c *Model) TestCostAt(i int) decimal.Decimal {
 // be rounded at DivisionScale places (a fraction that is no finite decimal,
 // such as 1/3). Rollback adds and compares only, so its results are then
 // exact consequences of figures correct to DivisionScale decimal places.
-func (c *Model) Exact() bool { return !c.rounded && c.d.exact }
+func (c *Model) Exact() bool { return !c.figuresRounded() && c.d.exact }
+
+// figuresRounded reports whether some figure went through a rounded
+// division.
+func (c *Model) figuresRounded() bool {
+	if c.constRounded {
+		return true
+	}
+	for _, r := range c.dynInexact {
+		if r {
+			return true
+		}
+	}
+	for _, r := range c.inInexact {
+		if r {
+			return true
+		}
+	}
+	return false
+}
+
+// noteRounded records whether the figure just evaluated was rounded: the
+// last dynamic figure (dyn) or a constant one.
+func (c *Model) noteRounded(rounded, dyn bool) {
+	switch {
+	case !dyn:
+		c.constRounded = c.constRounded || rounded
+	case rounded || c.dynInexact != nil:
+		for len(c.dynInexact) < len(c.sh.dyn) {
+			c.dynInexact = append(c.dynInexact, false)
+		}
+		c.dynInexact[len(c.sh.dyn)-1] = rounded
+	}
+}
 
 // Uncertainty returns the index of the named uncertainty, or -1.
 func (c *Model) Uncertainty(name string) int {
@@ -357,8 +398,37 @@ func (c *Model) FrameWeight(k int) decimal.Decimal {
 	return c.pool.Dec(c.d.rho[k])
 }
 
+// RootWeight is what a mass in node k's frame is worth at the root: the
+// product of the frame weights on the way down (1 when no frame lies
+// above k; 0 when k can never be reached). Masses, and T, of nodes in
+// different models compare only after this.
+func (c *Model) RootWeight(k int) decimal.Decimal {
+	w := decimal.NewFromInt(1)
+	for ; k >= 0; k = c.Parent(k) {
+		if c.FrameStart(k) {
+			w = w.Mul(c.FrameWeight(k))
+		}
+	}
+	return w
+}
+
 // Unreachable reports whether node k lies just below a branch of
 // probability 0.
 func (c *Model) Unreachable(k int) bool {
 	return c.FrameStart(k) && (c.d.rho == nil || c.d.rho[k].IsZero())
+}
+
+// Work is what one change of inputs and one rollback of c cost, in units of
+// about a microsecond: a node, plus one per 18 decimal places of its mass
+// (long masses are big numbers). Analyses count their work budgets in it.
+func (c *Model) Work() int {
+	d := c.d
+	d.workOnce.Do(func() {
+		w := 0
+		for _, m := range d.mass {
+			w += 1 + int(c.pool.Places(m))/18
+		}
+		d.work = w
+	})
+	return d.work
 }

@@ -137,6 +137,20 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 	}
 	sort.Slice(order, func(a, b int) bool { return order[a] < order[b] })
 	var ds tree.Diagnostics
+	dynCopied := false
+	// An input given its own value is no longer computed: its expression's
+	// rounding no longer counts.
+	if c.dynInexact != nil {
+		for fi, f := range c.sh.dyn {
+			if f.kind == figInput && n.fixed != nil && n.fixed[f.i] && c.dynInexact[fi] {
+				if !dynCopied {
+					n.dynInexact = ownCopy(c.dynInexact, len(c.sh.dyn))
+					dynCopied = true
+				}
+				n.dynInexact[fi] = false
+			}
+		}
+	}
 	for _, fi := range order {
 		f := c.sh.dyn[fi]
 		if (f.kind == figProb && w.setDirectly(f.i)) || (f.kind == figPrior && w.stateSetDirectly(f.i, f.j)) {
@@ -147,14 +161,18 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 			ds = append(ds, tree.Diagnostic{Severity: tree.Error, Pos: err.Pos, Summary: err.Msg, Hint: err.Hint})
 			continue
 		}
-		if !isExact {
-			n.rounded = true
-			if f.kind == figInput {
-				if n.inInexact == nil {
-					n.inInexact = make([]bool, len(n.in))
-				}
-				n.inInexact[f.i] = true
+		if !isExact || n.dynInexact != nil {
+			if !dynCopied {
+				n.dynInexact = ownCopy(c.dynInexact, len(c.sh.dyn))
+				dynCopied = true
 			}
+			n.dynInexact[fi] = !isExact
+		}
+		if !isExact && f.kind == figInput {
+			if n.inInexact == nil {
+				n.inInexact = make([]bool, len(n.in))
+			}
+			n.inInexact[f.i] = true
 		}
 		switch f.kind {
 		case figInput:
@@ -327,7 +345,7 @@ func (w *writer) check(ds *tree.Diagnostics) {
 			}
 			vs[j], have[j] = c.prob[k], true
 		}
-		if probs(pool, ds, fmt.Sprintf("%q", node.Display()), node.Pos, vs, have, rest, pos, exprs, c.rounded) {
+		if probs(pool, ds, fmt.Sprintf("%q", node.Display()), node.Pos, vs, have, rest, pos, exprs, c.figuresRounded()) {
 			for j := 0; j < nb; j++ {
 				c.prob[from+int32(j)] = vs[j]
 			}
@@ -345,7 +363,7 @@ func (w *writer) check(ds *tree.Diagnostics) {
 			}
 			vs[s], have[s] = c.prior[u][s], true
 		}
-		if probs(pool, ds, fmt.Sprintf("uncertainty %q", un.Name), un.Pos, vs, have, rest, pos, exprs, c.rounded) {
+		if probs(pool, ds, fmt.Sprintf("uncertainty %q", un.Name), un.Pos, vs, have, rest, pos, exprs, c.figuresRounded()) {
 			copy(c.prior[u], vs)
 		}
 	}
@@ -362,7 +380,7 @@ func (w *writer) check(ds *tree.Diagnostics) {
 			}
 			vs[r], have[r] = c.lik[t][r][s], true
 		}
-		if probs(pool, ds, fmt.Sprintf("test %q given %q", tst.Name, c.sh.uncs[c.TestOn(int(t))].States[s].Label), tst.Pos, vs, have, rest, pos, nil, c.rounded) {
+		if probs(pool, ds, fmt.Sprintf("test %q given %q", tst.Name, c.sh.uncs[c.TestOn(int(t))].States[s].Label), tst.Pos, vs, have, rest, pos, nil, c.figuresRounded()) {
 			for r := 0; r < nr; r++ {
 				c.lik[t][r][s] = vs[r]
 			}
@@ -429,4 +447,11 @@ func (c *Model) reweigh(old *derived, nodes []int32) *derived {
 		d.e[i] = x
 	}
 	return d
+}
+
+// ownCopy is a copy of flags of length n (flags may be shorter or nil).
+func ownCopy(flags []bool, n int) []bool {
+	out := make([]bool, n)
+	copy(out, flags)
+	return out
 }

@@ -273,3 +273,25 @@ func ExampleModel_With() {
 	// fee 40: Carrier, net -40
 	// fee 60: Own fleet, net -55
 }
+
+// TestWithExactAgain: an input whose expression divides inexactly (1/3)
+// makes the model not exact; setting it to a figure makes it exact again,
+// as editing its `let` line would.
+func TestWithExactAgain(t *testing.T) {
+	m := &tree.Model{
+		Params: []*tree.Param{tree.Input("share", &tree.Binary{Op: '/', X: num("1"), Y: num("3")})},
+		Root:   tree.Decision("D", tree.Choice("a", tree.Gain(tree.Ref("share")), nil), tree.Choice("b", tree.NoCash, nil)),
+	}
+	c := mustCompile(t, m)
+	if c.Exact() {
+		t.Fatal("1/3 reported exact")
+	}
+	s, _ := c.Set("share", decimal.RequireFromString("0.25"))
+	c2, err := c.With(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !c2.Exact() || c.Exact() {
+		t.Errorf("after setting share: exact %v (the original %v)", c2.Exact(), c.Exact())
+	}
+}

@@ -165,8 +165,12 @@ type TestValue struct {
 	Cost  decimal.Decimal
 	Sites []TestSite
 	// Warnings say what could not be computed and why (a test never run,
-	// run where there is no alternative, a reading that cannot occur).
+	// run where there is no alternative, a reading that cannot occur, the
+	// work budget).
 	Warnings []string
+	// Skipped is set when the work budget ran out before the test's sites
+	// were valued: only its table is given.
+	Skipped bool
 }
 
 // EVSI values the named test: its table at the prior (BayesTable) and, at
@@ -222,7 +226,7 @@ func (v *voi) evsi(name string) (*TestValue, error) {
 		}
 		if scen == nil {
 			for s := range c.Uncertainties()[ui].States {
-				if err := v.spend(2*c.Len(), "EVSI of "+t.Name); err != nil {
+				if err := v.spend(2*c.Work(), "EVSI of "+t.Name); err != nil {
 					return nil, err
 				}
 				cs, err := v.knowing(map[int]int{ui: s})
@@ -311,15 +315,22 @@ func (v *voi) site(ds, node *Solved, u int, scenModels []*compiled.Model, scen [
 	// Perfect information about u just before the decision: Σ_s P(s) ×
 	// T_s(d) over the decision's mass (P(s) × mass_s(d) / mass(d) is the
 	// posterior of s on the way to d).
+	// Masses of different models compare in root units (RootWeight):
+	// scenario T over base mass, each in its own frames.
+	base := c.RootWeight(d)
 	with := decimal.Zero
 	for s, rs := range scen {
 		p := c.Prior(u, s)
 		if p.IsZero() || !reached(scenModels[s], d) {
 			continue
 		}
-		with = with.Add(p.Mul(rs.Weighted(d)))
+		t := rs.Weighted(d)
+		if w := scenModels[s].RootWeight(d); !w.Equal(base) {
+			t, _ = divide(t.Mul(w), base)
+		}
+		with = with.Add(p.Mul(t))
 	}
-	evpi, err := nonNegative(per(with.Sub(talt)), fmt.Sprintf("%q at %q", c.Uncertainties()[u].Name, ds.Node.Display()), obj)
+	evpi, err := nonNegativeIn(c, per(with.Sub(talt)), fmt.Sprintf("%q at %q", c.Uncertainties()[u].Name, ds.Node.Display()), obj)
 	if err != nil {
 		return nil, err
 	}
@@ -400,18 +411,28 @@ func ValueOfInformation(ctx context.Context, sol *Solution, opts VOIOptions) (*I
 	default:
 		info.Total = total
 	}
-	for u := range v.c.Uncertainties() {
-		v.work, v.maxWork = 0, work
+	// The uncertainties share one budget, and the tests another: past it,
+	// the rest are listed as not computed rather than the whole analysis
+	// failing.
+	v.work, v.maxWork = 0, work
+	for u, un := range v.c.Uncertainties() {
 		pi, err := v.evpiOne(u)
-		if err != nil {
+		if errors.As(err, &be) {
+			pi = &PerfectInfo{Uncertainty: un, Scope: ScopeOne, Skipped: true, Exact: v.c.Exact(),
+				Note: "not computed: " + be.Error()}
+		} else if err != nil {
 			return nil, err
 		}
 		info.Uncertainties = append(info.Uncertainties, pi)
 	}
+	v.work, v.maxWork = 0, work
 	for _, t := range v.c.Tests() {
-		v.work, v.maxWork = 0, work
 		tv, err := v.evsi(t.Name)
-		if err != nil {
+		if errors.As(err, &be) {
+			tb, _ := BayesTable(v.c, t.Name)
+			tv = &TestValue{Test: t, Table: tb, Cost: v.c.TestCost(v.c.Test(t.Name)), Skipped: true,
+				Warnings: []string{"the value of the test is not computed: " + be.Error()}}
+		} else if err != nil {
 			return nil, err
 		}
 		info.Tests = append(info.Tests, tv)
@@ -420,12 +441,15 @@ func ValueOfInformation(ctx context.Context, sol *Solution, opts VOIOptions) (*I
 }
 
 // noise is x, or 0 when x is smaller than the rounding of a model's figures
-// could make it (10^-(DivisionScale-10) of scale, or of 1).
+// could make it: 10^-20 of scale (or of 1). Each rounding is at
+// DivisionScale places, but a deep tree with tests in sequence rounds at
+// every frame of its own, and the errors add up along its paths; 10^-20 of
+// a value is still far below any amount of money.
 func noise(x, scale decimal.Decimal) decimal.Decimal {
 	if scale.LessThan(one) {
 		scale = one
 	}
-	if x.Abs().LessThanOrEqual(scale.Shift(-(compiled.DivisionScale - 10))) {
+	if x.Abs().LessThanOrEqual(scale.Shift(-20)) {
 		return decimal.Zero
 	}
 	return x

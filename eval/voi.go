@@ -37,10 +37,10 @@ import (
 // TotalEVPI enumerates.
 const DefaultMaxScenarios = 100_000
 
-// DefaultMaxWork caps the work of a value-of-information analysis, counted
-// in node evaluations plus points of the value distributions built (each
-// costs well under a microsecond).
-const DefaultMaxWork = 50_000_000
+// DefaultMaxWork caps the work of a value-of-information analysis, in units
+// of about a microsecond: each rollback costs compiled.Model.Work units,
+// each point of a value distribution built one.
+const DefaultMaxWork = 5_000_000
 
 // VOIOptions bound the work of the analyses. Zero fields take the
 // defaults.
@@ -48,9 +48,9 @@ type VOIOptions struct {
 	// MaxScenarios caps the joint states of the named uncertainties
 	// (DefaultMaxScenarios).
 	MaxScenarios int
-	// MaxWork caps the node evaluations and distribution points of the
-	// total EVPI, and separately those of every other part of the analysis
-	// (DefaultMaxWork).
+	// MaxWork caps the work of the total EVPI, and separately that of the
+	// EVPI of every named uncertainty and that of the value of every test
+	// (DefaultMaxWork; see compiled.Model.Work for the unit).
 	MaxWork int
 }
 
@@ -115,8 +115,12 @@ type PerfectInfo struct {
 	// such as 1/3); every rollback itself is exact.
 	Exact bool
 	// Note explains anything the number does not say by itself (a
-	// narrower scope, an uncertainty no decision depends on).
+	// narrower scope, an uncertainty no decision depends on, a figure not
+	// computed).
 	Note string
+	// Skipped is set when the analysis's work budget ran out before this
+	// figure: With and EVPI are then not computed (zero), and Note says so.
+	Skipped bool
 }
 
 // ErrTooMuchWork is returned (wrapped) when an analysis would pass its
@@ -180,7 +184,7 @@ func newVOI(ctx context.Context, sol *Solution, maxWork int) (*voi, error) {
 func (v *voi) spend(n int, budget string) error {
 	v.work += n
 	if v.work > v.maxWork {
-		return &BudgetError{What: fmt.Sprintf("more than %d node evaluations (%s)", v.maxWork, budget), Option: "VOIOptions.MaxWork"}
+		return &BudgetError{What: fmt.Sprintf("more than %d units of work (%s)", v.maxWork, budget), Option: "VOIOptions.MaxWork"}
 	}
 	return v.ctx.Err()
 }
@@ -217,7 +221,7 @@ func (v *voi) evpiOne(u int) (*PerfectInfo, error) {
 		if p.IsZero() {
 			continue
 		}
-		if err := v.spend(2*v.c.Len(), "EVPI of "+un.Name); err != nil {
+		if err := v.spend(2*v.c.Work(), "EVPI of "+un.Name); err != nil {
 			return nil, err
 		}
 		cs, err := v.knowing(map[int]int{u: s})
@@ -228,7 +232,7 @@ func (v *voi) evpiOne(u int) (*PerfectInfo, error) {
 		with = with.Add(p.Mul(val))
 		pi.Scenarios++
 	}
-	gain, err := nonNegative(with.Sub(base), fmt.Sprintf("%q", un.Name), obj)
+	gain, err := nonNegativeIn(v.c, with.Sub(base), fmt.Sprintf("%q", un.Name), obj)
 	if err != nil {
 		return nil, err
 	}
@@ -239,6 +243,15 @@ func (v *voi) evpiOne(u int) (*PerfectInfo, error) {
 // nonNegative checks that a value of information (a net gain) is not
 // negative: rollbacks are exact, so a negative one is a bug.
 func nonNegative(d decimal.Decimal, what string, obj tree.Objective) (decimal.Decimal, error) {
+	return nonNegativeIn(nil, d, what, obj)
+}
+
+// nonNegativeIn is nonNegative, where c's rounded figures (when c is not
+// exact) may leave noise below the rounding: that is 0, not a bug.
+func nonNegativeIn(c *compiled.Model, d decimal.Decimal, what string, obj tree.Objective) (decimal.Decimal, error) {
+	if c != nil && !c.Exact() {
+		d = noise(d, decimal.NewFromInt(1))
+	}
 	if d.IsNegative() {
 		return d, fmt.Errorf("eval: internal error: the value of perfect information about %s came out negative (%s)", what, obj.Figure(d))
 	}
@@ -323,7 +336,7 @@ func (v *voi) total(opts VOIOptions) (*PerfectInfo, error) {
 		if err != nil {
 			return nil, err
 		}
-		gain, err := nonNegative(with.Sub(base), "everything", obj)
+		gain, err := nonNegativeIn(v.c, with.Sub(base), "everything", obj)
 		if err != nil {
 			return nil, err
 		}
@@ -358,7 +371,7 @@ func (v *voi) enumerate(fixed []int, plain []bool, resolvePlain bool) (decimal.D
 		}
 		cs, r := c, v.r // nothing fixed: the model as solved
 		if len(known) > 0 {
-			if err := v.spend(2*c.Len(), "the total EVPI"); err != nil {
+			if err := v.spend(2*c.Work(), "the total EVPI"); err != nil {
 				return decimal.Zero, n, err
 			}
 			var err error
@@ -459,7 +472,7 @@ func (v *voi) clairvoyant(cs *compiled.Model, r *compiled.Rollback, plain []bool
 				size := 1
 				for _, k := range ks {
 					if size *= k.size(); size > v.maxWork-v.work {
-						return decimal.Zero, &BudgetError{What: fmt.Sprintf("more than %d node evaluations (the total EVPI)", v.maxWork), Option: "VOIOptions.MaxWork"}
+						return decimal.Zero, &BudgetError{What: fmt.Sprintf("more than %d units of work (the total EVPI)", v.maxWork), Option: "VOIOptions.MaxWork"}
 					}
 				}
 				d = weightedSum(ws, ks).shift(tc)

@@ -108,7 +108,11 @@ func (r *VOIReport) WriteText(out io.Writer) error {
 		if pi.Uncertainty.Label != "" {
 			label += "  " + quoted(pi.Uncertainty.Label)
 		}
-		rows = append(rows, []string{label, money(pi.EVPI)})
+		fig := money(pi.EVPI)
+		if pi.Skipped {
+			fig = "not computed"
+		}
+		rows = append(rows, []string{label, fig})
 	}
 	textTable(w, "  ", 3, []bool{false, true}, rows)
 	if t := info.Total; t != nil && t.Note != "" {
@@ -288,11 +292,11 @@ type voiJSON struct {
 }
 
 type uncJSON struct {
-	Name  string `json:"name"`
-	Label string `json:"label,omitempty"`
-	EVPI  string `json:"evpi"`
-	With  string `json:"value_with_perfect_information"`
-	Note  string `json:"note,omitempty"`
+	Name  string  `json:"name"`
+	Label string  `json:"label,omitempty"`
+	EVPI  *string `json:"evpi"`                           // null when not computed (the note says why)
+	With  *string `json:"value_with_perfect_information"` // null when not computed
+	Note  string  `json:"note,omitempty"`
 }
 
 type testVOIJSON struct {
@@ -363,8 +367,12 @@ func (r *VOIReport) shape() voiJSON {
 		}
 	}
 	for _, pi := range info.Uncertainties {
-		out.Uncertainties = append(out.Uncertainties, uncJSON{Name: pi.Uncertainty.Name, Label: pi.Uncertainty.Label,
-			EVPI: pi.EVPI.String(), With: pi.With.String(), Note: note(pi.Note)})
+		u := uncJSON{Name: pi.Uncertainty.Name, Label: pi.Uncertainty.Label, Note: note(pi.Note)}
+		if !pi.Skipped {
+			e, with := pi.EVPI.String(), pi.With.String()
+			u.EVPI, u.With = &e, &with
+		}
+		out.Uncertainties = append(out.Uncertainties, u)
 	}
 	for _, tv := range info.Tests {
 		tb := tv.Table

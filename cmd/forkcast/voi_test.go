@@ -171,7 +171,9 @@ func TestMessagesNameFlags(t *testing.T) {
 		want   string
 	}{
 		{[]string{"breakeven", "example:sourcing", "--vary", "licence", "--max-samples", "5"}, "stderr", 1, "more than 5 rollbacks (raise --max-samples to allow more)"},
-		{[]string{"voi", "example:sourcing", "--max-work", "5"}, "stderr", 1, "(raise --max-work to allow more)"},
+		// Past the budget the figures not computed are listed as such;
+		// the analysis still ends with what it has.
+		{[]string{"voi", "example:sourcing", "--max-work", "5"}, "stdout", 0, "not computed: the analysis is over its work budget: more than 5 units of work (EVPI of delivery) (raise --max-work to allow more)"},
 		{[]string{"voi", "example:release", "--max-scenarios", "1"}, "stdout", 0, "more than 1 joint states of the named uncertainties (raise --max-scenarios to allow more)"},
 		{[]string{"voi", "example:release", "--max-scenarios", "1", "--json"}, "stdout", 0, "(raise --max-scenarios to allow more)"},
 		{[]string{"breakeven", "example:sourcing", "--vary", "benefit"}, "stderr", 2, "has no range: give --in LOW..HIGH, or write `let benefit = ... in LOW .. HIGH`"},

@@ -11,6 +11,7 @@ package exact
 
 import (
 	"math"
+	"math/big"
 	"math/bits"
 
 	"github.com/shopspring/decimal"
@@ -80,6 +81,7 @@ func (p *Pool) Of(d decimal.Decimal) Num {
 }
 
 func (p *Pool) keep(d decimal.Decimal) Num {
+	d = trim(d)
 	// A value that fits after all (a big result that shrank) goes back
 	// into machine words, so equal values have one form where possible.
 	if d.NumDigits() <= 18 {
@@ -87,6 +89,43 @@ func (p *Pool) keep(d decimal.Decimal) Num {
 	}
 	p.bigs = append(p.bigs, d)
 	return Num{x: int32(len(p.bigs))}
+}
+
+// trimPowers are the powers of ten trim divides by, largest first.
+var trimPowers = func() (t [5]struct {
+	n int32
+	p *big.Int
+}) {
+	for i, n := range []int32{32, 8, 4, 2, 1} {
+		t[i].n, t[i].p = n, new(big.Int).Exp(big.NewInt(10), big.NewInt(int64(n)), nil)
+	}
+	return t
+}()
+
+// trim drops the trailing zeros of d's coefficient, so that products of
+// rounded figures do not drag ever more zeros along (and Places is just
+// the exponent).
+func trim(d decimal.Decimal) decimal.Decimal {
+	c := d.Coefficient()
+	if c.Sign() == 0 {
+		return decimal.Zero
+	}
+	var q, r big.Int
+	if r.Rem(c, bigTen).Sign() != 0 {
+		return d
+	}
+	e := d.Exponent()
+	for _, tp := range trimPowers {
+		for {
+			q.QuoRem(c, tp.p, &r)
+			if r.Sign() != 0 {
+				break
+			}
+			c.Set(&q)
+			e += tp.n
+		}
+	}
+	return decimal.NewFromBigInt(c, e)
 }
 
 // Dec is n as a decimal.
@@ -121,22 +160,7 @@ func (p *Pool) Sign(n Num) int {
 func (p *Pool) Places(n Num) int32 {
 	e := n.e
 	if n.x > 0 {
-		d := p.bigs[n.x-1]
-		e = d.Exponent()
-		// Trailing zeros of a big coefficient do not count.
-		if e < 0 {
-			c := d.Coefficient()
-			ten := bigTen
-			var r bigInt
-			for e < 0 && c.Sign() != 0 {
-				q, m := new(bigInt).QuoRem(c, ten, &r)
-				if m.Sign() != 0 {
-					break
-				}
-				c = q
-				e++
-			}
-		}
+		e = p.bigs[n.x-1].Exponent() // kept trimmed: no trailing zeros
 	}
 	if e >= 0 {
 		return 0
