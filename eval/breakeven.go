@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math/big"
+	"slices"
 	"sort"
 	"strings"
 	"unicode"
@@ -849,8 +850,9 @@ func (s *search) run(opts BreakevenOptions) (*Breakeven, error) {
 	return be, nil
 }
 
-// Refinement limits: how often a grid interval may be halved where the
-// options' values bend, and how many extra samples that may cost in all.
+// Refinement limits: how finely a grid interval may be split where the
+// options' values bend (its width against the range's over the grid), and
+// how many extra samples that may cost in all.
 const (
 	maxRefineDepth   = 24
 	maxRefineSamples = 4096
@@ -863,63 +865,197 @@ const (
 var bendTolerance = decimal.New(1, -30)
 
 type cell struct {
-	a, b  *sample
-	depth int
+	a, b *sample
 }
 
-// refine splits the grid intervals until every option's value is a
-// straight line across each of them (checked at the midpoint: the values
-// are convex in the input — the best of lines — so a midpoint on the chord
-// means a line), so that a switch and a switch back inside one interval
-// cannot hide: where every option is linear across an interval, an option
-// best at both ends is best throughout. The intervals come back in order.
+// refine splits the grid intervals until none can hide a change of the
+// best option that its ends do not show, and returns them in order.
+//
+// It rests on convexity. Every option's T (mass × value, exact) is, for a
+// fixed policy below it, linear in an input that enters each path once,
+// and the best of such lines over the policies: convex. A convex function
+// lies below its chord between two samples and above the secants of the
+// samples beside them, extended. So in an interval [a, b] where option A
+// is best at both ends, no option C can beat A inside when C's chord stays
+// below the lower bound of A made of the secants from the neighbouring
+// samples (checked where that bound bends: at a, at b and where the two
+// secants cross). Such an interval needs no sample inside it; the others
+// are split at a point near their middle (a short decimal, which keeps the
+// figures short) until they pass. An interval whose ends have different
+// best options A and B passes when no third option can beat the better of
+// the two (the same bound, on the envelope of all options) and A and B are
+// both straight across it, so that they cross once and the narrowing of
+// between finds where.
 func (s *search) refine(grid []*sample) ([]cell, error) {
+	pts := append([]*sample(nil), grid...)
 	var out []cell
-	work := make([]cell, 0, len(grid))
-	for i := len(grid) - 2; i >= 0; i-- {
-		work = append(work, cell{grid[i], grid[i+1], 0})
+	minWidth := decimal.Zero
+	if n := len(grid) - 1; n > 0 {
+		w := s.be.High.Sub(s.be.Low).Div(decimal.NewFromInt(int64(n)))
+		minWidth = w.Div(decimal.New(1<<maxRefineDepth, 0))
 	}
 	extra := 0
-	for len(work) > 0 {
-		c := work[len(work)-1]
-		work = work[:len(work)-1]
-		if c.depth >= maxRefineDepth {
-			// A bend inside an interval this small (the range / 64 / 2^24)
-			// is a kink of some inner decision; nothing fits inside it.
-			out = append(out, c)
+	for i := 0; i+1 < len(pts); {
+		a, b := pts[i], pts[i+1]
+		var left, right *sample
+		if i > 0 {
+			left = pts[i-1]
+		}
+		if i+2 < len(pts) {
+			right = pts[i+2]
+		}
+		if s.resolved(left, a, b, right) {
+			out = append(out, cell{a, b})
+			i++
+			continue
+		}
+		if b.x.Sub(a.x).LessThan(minWidth) {
+			// A bend inside an interval this small (the range / grid /
+			// 2^24) is a kink of some inner decision; nothing fits in it.
+			out = append(out, cell{a, b})
+			i++
 			continue
 		}
 		if extra >= maxRefineSamples {
 			s.noteRefineLimit()
-			out = append(out, c)
+			out = append(out, cell{a, b})
+			i++
 			continue
 		}
-		m, err := s.sample(c.a.x.Add(c.b.x).Mul(half).Round(compiled.DivisionScale))
+		mx, ok := inside(a.x, b.x)
+		if !ok {
+			out = append(out, cell{a, b})
+			i++
+			continue
+		}
+		m, err := s.sample(mx)
 		if err != nil {
 			return nil, err
 		}
 		extra++
-		all := make([]int, len(m.t))
-		for i := range all {
-			all[i] = i
-		}
-		if straight(c.a, m, c.b, all...) {
-			out = append(out, c)
+		// Between different ends A and B: enough that no third option can
+		// beat them and both are straight across the whole interval
+		// (between narrows it down).
+		if a.best != b.best && (m.best == a.best || m.best == b.best) &&
+			s.bounded(left, a, b, right, a.best, b.best) && straight(a, m, b, a.best, b.best) {
+			out = append(out, cell{a, b})
+			i++
 			continue
 		}
-		work = append(work, cell{m, c.b, c.depth + 1}, cell{c.a, m, c.depth + 1})
+		pts = slices.Insert(pts, i+1, m)
 	}
 	return out, nil
 }
 
-// straight reports whether the given options' values at m lie on the
-// chords from a to b (m is the midpoint).
+// resolved reports whether the interval [a, b] (left and right its
+// neighbouring samples, nil at the ends of the range) can hide no change
+// of the best option without a sample inside it: the ends agree and no
+// other option can beat theirs (see refine).
+func (s *search) resolved(left, a, b, right *sample) bool {
+	if a.best != b.best {
+		return false
+	}
+	return s.bounded(left, a, b, right, a.best, a.best)
+}
+
+// bounded reports whether, on [a, b], every option other than A and B
+// stays below the lower bound that convexity gives: of A's T when A = B,
+// else of the envelope (the best option's T).
+func (s *search) bounded(left, a, b, right *sample, A, B int) bool {
+	if left == nil && right == nil {
+		return false
+	}
+	tOf := func(sm *sample, j int) *big.Rat { return sm.t[j].Rat() }
+	low := func(sm *sample) *big.Rat {
+		if A == B {
+			return tOf(sm, A)
+		}
+		return tOf(sm, sm.best)
+	}
+	ax, bx := a.x.Rat(), b.x.Rat()
+	// The secants from the neighbours, extended into [a, b]: each is
+	// (x0, y0, slope).
+	type line struct{ x0, y0, k *big.Rat }
+	var lines []line
+	if left != nil {
+		lx := left.x.Rat()
+		k := new(big.Rat).Quo(new(big.Rat).Sub(low(a), low(left)), new(big.Rat).Sub(ax, lx))
+		lines = append(lines, line{ax, low(a), k})
+	}
+	if right != nil {
+		rx := right.x.Rat()
+		k := new(big.Rat).Quo(new(big.Rat).Sub(low(right), low(b)), new(big.Rat).Sub(rx, bx))
+		lines = append(lines, line{bx, low(b), k})
+	}
+	at := func(l line, x *big.Rat) *big.Rat {
+		v := new(big.Rat).Sub(x, l.x0)
+		return v.Add(v.Mul(v, l.k), l.y0)
+	}
+	bound := func(x *big.Rat) *big.Rat {
+		v := at(lines[0], x)
+		for _, l := range lines[1:] {
+			if w := at(l, x); w.Cmp(v) > 0 {
+				v = w
+			}
+		}
+		return v
+	}
+	// Where the bound may bend: a, b and the crossing of the secants.
+	xs := []*big.Rat{ax, bx}
+	if len(lines) == 2 && lines[0].k.Cmp(lines[1].k) != 0 {
+		// y0 + k0 (x − x0) = y1 + k1 (x − x1)
+		num := new(big.Rat).Sub(new(big.Rat).Sub(lines[1].y0, new(big.Rat).Mul(lines[1].k, lines[1].x0)),
+			new(big.Rat).Sub(lines[0].y0, new(big.Rat).Mul(lines[0].k, lines[0].x0)))
+		x := num.Quo(num, new(big.Rat).Sub(lines[0].k, lines[1].k))
+		if x.Cmp(ax) > 0 && x.Cmp(bx) < 0 {
+			xs = append(xs, x)
+		}
+	}
+	width := new(big.Rat).Sub(bx, ax)
+	for j := range a.t {
+		if j == A || j == B {
+			continue
+		}
+		ya, yb := tOf(a, j), tOf(b, j)
+		for _, x := range xs {
+			// C's chord at x.
+			c := new(big.Rat).Sub(x, ax)
+			c.Mul(c, new(big.Rat).Sub(yb, ya)).Quo(c, width).Add(c, ya)
+			if c.Cmp(bound(x)) > 0 {
+				return false
+			}
+		}
+	}
+	return true
+}
+
+// inside is a point well inside (a, b): the decimal with the fewest places
+// in its middle half, so that samples keep short figures (the engine's
+// exact arithmetic stays in machine words), else the midpoint; ok is false
+// when no decimal of compiled.DivisionScale places lies strictly between.
+func inside(a, b decimal.Decimal) (decimal.Decimal, bool) {
+	w := b.Sub(a)
+	lo, hi := a.Add(w.Div(decimal.NewFromInt(4))), b.Sub(w.Div(decimal.NewFromInt(4)))
+	mid := a.Add(b).Mul(half)
+	for p := int32(0); p <= compiled.DivisionScale; p++ {
+		if r := mid.Round(p); r.GreaterThanOrEqual(lo) && r.LessThanOrEqual(hi) && r.GreaterThan(a) && r.LessThan(b) {
+			return r, true
+		}
+	}
+	mid = mid.Round(compiled.DivisionScale)
+	return mid, mid.GreaterThan(a) && mid.LessThan(b)
+}
+
+// straight reports whether the given options' values at m, which lies
+// between a and b, are on the chords from a to b.
 func straight(a, m, b *sample, options ...int) bool {
 	f := y(a, m, b)
 	exact := yExact(a, m, b)
+	wa, wb, w := b.x.Sub(m.x), m.x.Sub(a.x), b.x.Sub(a.x)
 	for _, i := range options {
-		bend := f(a, i).Add(f(b, i)).Sub(f(m, i).Mul(two)).Abs()
-		if (exact && !bend.IsZero()) || bend.GreaterThan(bendTolerance) {
+		// f(m)·(b − a) against f(a)·(b − m) + f(b)·(m − a).
+		bend := f(a, i).Mul(wa).Add(f(b, i).Mul(wb)).Sub(f(m, i).Mul(w)).Abs()
+		if (exact && !bend.IsZero()) || (!exact && bend.GreaterThan(bendTolerance.Mul(w))) {
 			return false
 		}
 	}

@@ -433,6 +433,25 @@ func TestSensitivityRandomTrees(t *testing.T) {
 					}
 				}
 			}
+			// No switch missed: at points spread over the range the best
+			// option on big.Rat is the one the segment there names.
+			for k := 1; k < 40; k++ {
+				x := new(big.Rat).Add(rat(in.Low), new(big.Rat).Mul(new(big.Rat).Sub(rat(in.High), rat(in.Low)), big.NewRat(int64(k), 40)))
+				seg := -1
+				for _, sg := range in.Segments {
+					if rat(sg.From).Cmp(x) < 0 && x.Cmp(rat(sg.To)) < 0 {
+						seg = sg.Best
+					}
+				}
+				if seg < 0 {
+					continue // on a switch
+				}
+				fresh := &ratTree{m: m, env: at(name, x), best: map[*tree.Node]int{}}
+				opts := fresh.options()
+				if fresh.value(m.Root); opts[seg].Cmp(opts[fresh.best[m.Root]]) != 0 {
+					t.Errorf("tree %d %s = %s: the segments say option %d, big.Rat %d is better", it, name, x.FloatString(6), seg, fresh.best[m.Root])
+				}
+			}
 			for _, p := range in.Curve {
 				fresh := &ratTree{m: m, env: at(name, rat(p.X))}
 				if got, want := rat(p.Value), fresh.value(m.Root); got.Cmp(want) != 0 {
