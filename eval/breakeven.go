@@ -26,9 +26,10 @@ import (
 // (compiled.Model.With re-evaluates only the figures that depend on it) and
 // one rollback.
 //
-// The range is sampled on a grid, and every grid interval across which
-// some option's value is not a straight line is halved until it is (see
-// refine), so a switch and back again inside one interval is found too.
+// The range is sampled on a grid, and every grid interval in which some
+// option might rise above the best one unseen (bounds from convexity, see
+// refine) is split until none can, so a switch and back again inside one
+// interval is found too.
 // Where the best option changes inside an interval, the interval is
 // narrowed until both options are straight lines across it; their crossing
 // is then a rational number computed exactly, and confirmed by solving the
