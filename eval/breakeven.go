@@ -7,6 +7,7 @@ import (
 	"math/big"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 	"unicode"
 
@@ -100,6 +101,8 @@ func splitVary(s string) (left string, sep byte, right string, err error) {
 	inQuote := false
 	for i := 0; i < len(s); i++ {
 		switch c := s[i]; {
+		case inQuote && c == '\\':
+			i++ // an escaped character inside quotes
 		case c == '"':
 			inQuote = !inQuote
 		case !inQuote && (c == ':' || c == '/'):
@@ -127,6 +130,11 @@ func splitVary(s string) (left string, sep byte, right string, err error) {
 func unquotePart(p string) (string, error) {
 	p = strings.TrimSpace(p)
 	if strings.HasPrefix(p, `"`) {
+		// Escapes as Go writes them (String uses strconv.Quote) are read
+		// back; a label typed in quotes with no escapes reads as it is.
+		if u, err := strconv.Unquote(p); err == nil {
+			return u, nil
+		}
 		if len(p) < 2 || !strings.HasSuffix(p, `"`) || strings.Count(p, `"`) != 2 {
 			return "", &RequestError{Msg: fmt.Sprintf("%s: a quoted label runs from one double quote to the next", p)}
 		}

@@ -3,7 +3,6 @@ package interchange_test
 import (
 	"bytes"
 	"fmt"
-	"runtime"
 	"testing"
 	"testing/iotest"
 	"time"
@@ -11,6 +10,7 @@ import (
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/interchange"
+	"github.com/forkcast/forkcast/internal/fuzzkit"
 	"github.com/forkcast/forkcast/tree"
 )
 
@@ -41,39 +41,10 @@ func FuzzReadJSON(f *testing.F) {
 	f.Add([]byte("\ufeff{\"title\": \"t\\u00e9\\ud83d\\ude00\", \"x\": [[[{}]]], \"root\": {\"type\": \"end\"}}\r\n"))
 	f.Add(minified(3))
 	f.Fuzz(func(t *testing.T, src []byte) {
-		if msg := within(10*time.Second, 256<<20+uint64(64*len(src)), func() string { return roundTrip(src) }); msg != "" {
+		if msg := fuzzkit.Within(10*time.Second, 256<<20+uint64(64*len(src)), func() string { return roundTrip(src) }); msg != "" {
 			t.Fatalf("%s\ninput: %q", msg, src)
 		}
 	})
-}
-
-// within runs f under a time and allocation budget and returns what f
-// reports, or which budget it went over.
-func within(d time.Duration, maxBytes uint64, f func() string) string {
-	var before, after runtime.MemStats
-	runtime.ReadMemStats(&before)
-	done := make(chan string, 1)
-	go func() {
-		defer func() {
-			if p := recover(); p != nil {
-				done <- fmt.Sprintf("panic: %v", p)
-			}
-		}()
-		done <- f()
-	}()
-	select {
-	case msg := <-done:
-		if msg != "" {
-			return msg
-		}
-	case <-time.After(d):
-		return fmt.Sprintf("over the time budget of %v", d)
-	}
-	runtime.ReadMemStats(&after)
-	if n := after.TotalAlloc - before.TotalAlloc; n > maxBytes {
-		return fmt.Sprintf("allocated %d bytes, over the budget of %d", n, maxBytes)
-	}
-	return ""
 }
 
 // roundTrip checks one input (see FuzzReadJSON); it returns what is wrong,

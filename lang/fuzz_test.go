@@ -3,13 +3,13 @@ package lang
 import (
 	"fmt"
 	"reflect"
-	"runtime/debug"
 	"strings"
 	"testing"
 	"time"
 
 	"github.com/alecthomas/participle/v2/lexer"
 	"github.com/forkcast/forkcast/compiled"
+	"github.com/forkcast/forkcast/internal/fuzzkit"
 	"github.com/forkcast/forkcast/tree"
 )
 
@@ -55,54 +55,11 @@ const (
 )
 
 // underBudget runs check on its own goroutine and fails the test if it
-// panics, reports a problem, or runs past limit: a slow input then fails
-// the fuzz run (and is saved as a reproducer) instead of stalling it.
+// reports a problem, panics or runs past limit (fuzzkit.Within).
 func underBudget(t *testing.T, limit time.Duration, check func() string) {
 	t.Helper()
-	if problem := runBudgeted(limit, check); problem != "" {
+	if problem := fuzzkit.Within(limit, 0, check); problem != "" {
 		t.Fatal(problem)
-	}
-}
-
-// runBudgeted runs check and returns its problem, a panic with its stack,
-// or a note that it ran past limit (it is then left running: a goroutine
-// cannot be stopped, but the run it belongs to fails).
-func runBudgeted(limit time.Duration, check func() string) string {
-	done := make(chan string, 1)
-	go func() {
-		defer func() {
-			if p := recover(); p != nil {
-				done <- fmt.Sprintf("panic: %v\n%s", p, debug.Stack())
-			}
-		}()
-		done <- check()
-	}()
-	timer := time.NewTimer(limit)
-	defer timer.Stop()
-	select {
-	case problem := <-done:
-		return problem
-	case <-timer.C:
-		return fmt.Sprintf("over the time budget of %v", limit)
-	}
-}
-
-// TestRunBudgeted checks that the budget of a fuzz input catches what it
-// is there to catch.
-func TestRunBudgeted(t *testing.T) {
-	if got := runBudgeted(time.Second, func() string { return "" }); got != "" {
-		t.Errorf("quick and clean: %q", got)
-	}
-	if got := runBudgeted(time.Second, func() string { return "wrong" }); got != "wrong" {
-		t.Errorf("a problem: %q", got)
-	}
-	if got := runBudgeted(time.Second, func() string { panic("boom") }); !strings.HasPrefix(got, "panic: boom\n") {
-		t.Errorf("a panic: %q", got)
-	}
-	release := make(chan struct{})
-	defer close(release)
-	if got := runBudgeted(10*time.Millisecond, func() string { <-release; return "" }); !strings.HasPrefix(got, "over the time budget") {
-		t.Errorf("a stall: %q", got)
 	}
 }
 

@@ -12,13 +12,13 @@ import (
 
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
-	"github.com/forkcast/forkcast/render/internal/fixtures"
+	"github.com/forkcast/forkcast/internal/fuzzkit"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
 
 // Each fuzz target runs every input under a budget of its own (time and
-// bytes allocated, fixtures.Within): a slow or greedy input fails the run.
+// bytes allocated, fuzzkit.Check): a slow or greedy input fails the run.
 
 // checkSafe fails the test if s holds a character no picture or terminal
 // may get: what clean removes, or invalid UTF-8. DOT's own tabs and line
@@ -47,7 +47,7 @@ func FuzzWrapText(f *testing.F) {
 		width = 1 + int(uint(width)%80)
 		var c string
 		var lines []string
-		fixtures.Within(t, 2*time.Second, uint64(32*len(s))+1<<20, func() {
+		fuzzkit.Check(t, 2*time.Second, uint64(32*len(s))+1<<20, func() {
 			c = clean(s)
 			lines = wrapText(c, width)
 		})
@@ -104,7 +104,7 @@ func FuzzMoney(f *testing.F) {
 		unit := MinorUnit(currency)
 		pd := int32(places % 8)
 		var money, pct, cash string
-		fixtures.Within(t, 2*time.Second, 64<<20, func() {
+		fuzzkit.Check(t, 2*time.Second, 64<<20, func() {
 			money = Money(d, currency)
 			pct = Percent(d, pd)
 			cash = Cash(d, tree.Max, currency)
@@ -188,7 +188,7 @@ func fuzzSeeds() [][]byte {
 // so the fuzz targets skip nothing they should not.
 func TestFuzzSeedsResolve(t *testing.T) {
 	for _, data := range append(fuzzSeeds(), nil, []byte{1, 2, 3}, bytes.Repeat([]byte{0xff}, 500)) {
-		m := fixtures.FromBytes(data)
+		m := fuzzkit.FromBytes(data)
 		if _, ds := compiled.Compile(m); ds.HasErrors() {
 			t.Errorf("%q: %v", data, ds)
 		}
@@ -207,7 +207,7 @@ func FuzzDOT(f *testing.F) {
 		f.Add(s, byte(0x83))
 	}
 	f.Fuzz(func(t *testing.T, data []byte, ob byte) {
-		m := fixtures.FromBytes(data)
+		m := fuzzkit.FromBytes(data)
 		c, ds := compiled.Compile(m)
 		if ds.HasErrors() {
 			t.Skipf("does not compile: %v", ds)
@@ -216,7 +216,7 @@ func FuzzDOT(f *testing.F) {
 		var pic, again *Picture
 		var err, err2 error
 		opts := fuzzOptions(ob)
-		fixtures.Within(t, 5*time.Second, 256<<20, func() {
+		fuzzkit.Check(t, 5*time.Second, 256<<20, func() {
 			var serr error
 			if sol, serr = eval.Solve(c); serr != nil {
 				return

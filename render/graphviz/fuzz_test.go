@@ -10,8 +10,8 @@ import (
 
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/internal/fuzzkit"
 	"github.com/forkcast/forkcast/render"
-	"github.com/forkcast/forkcast/render/internal/fixtures"
 )
 
 // FuzzSVG draws small trees whose labels (title, nodes, branches,
@@ -36,7 +36,7 @@ func FuzzSVG(f *testing.F) {
 	}
 	r := renderer(f)
 	f.Fuzz(func(t *testing.T, data []byte, ob byte) {
-		m := fixtures.FromBytes(data)
+		m := fuzzkit.FromBytes(data)
 		c, ds := compiled.Compile(m)
 		if ds.HasErrors() {
 			t.Skipf("does not compile: %v", ds)
@@ -47,7 +47,7 @@ func FuzzSVG(f *testing.F) {
 		}
 		var svg bytes.Buffer
 		var err error
-		fixtures.Within(t, 20*time.Second, 512<<20, func() {
+		fuzzkit.Check(t, 20*time.Second, 512<<20, func() {
 			sol, serr := eval.Solve(c)
 			if serr != nil {
 				err = serr
