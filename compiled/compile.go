@@ -27,6 +27,7 @@ func Compile(m *tree.Model) (*Model, tree.Diagnostics) {
 		k.ds.Add(tree.Pos{}, "add a `decision` or `chance` node", "the model has no tree")
 	} else {
 		k.tree()
+		k.env = nil
 	}
 	for _, p := range m.Params {
 		if !k.used[p.Name] && !k.dupParam[p] {
@@ -57,6 +58,17 @@ type compiler struct {
 	work     group       // reused while checking sibling probabilities
 	random   []bool      // per input slot: a distribution feeds it
 	current  *tree.Param // the input being compiled, if any
+	// calls gives each distribution written in a `let` its slot, so that
+	// a let compiled again below a split (split.go, while relet is set)
+	// reads the same random input. Elsewhere every distribution in the
+	// expanded tree is a random input of its own, as in a model read
+	// from JSON, where copies share nothing.
+	calls map[*tree.Call]int32
+	relet bool
+	// env maps input slots to the slots that stand for them below the
+	// branch of a split being compiled (split.go); envOf is each node's.
+	env   map[int32]int32
+	envOf []map[int32]int32
 }
 
 // look resolves a name to its input slot.
@@ -64,6 +76,9 @@ func (k *compiler) look(n *tree.Name) (int32, *EvalError) {
 	s, ok := k.c.sh.slotOf[n.Name]
 	if ok && s < k.visible {
 		k.used[n.Name] = true
+		if o, over := k.env[s]; over {
+			return o, nil // below a split: the input at the branch's value
+		}
 		return s, nil
 	}
 	if p := k.m.Param(n.Name); p != nil {
@@ -138,6 +153,9 @@ func (k *compiler) readsRandom(p *program) bool {
 // drawn by simulation. Its arguments may read inputs, but not random ones
 // and not other distributions.
 func (k *compiler) source(call *tree.Call) (int32, *EvalError) {
+	if s, ok := k.calls[call]; ok && k.relet {
+		return s, nil
+	}
 	var nested *tree.Call
 	for _, a := range call.Args {
 		walkExpr(a, func(e tree.Expr) {
@@ -179,6 +197,10 @@ func (k *compiler) source(call *tree.Call) (int32, *EvalError) {
 		let = k.visible
 	}
 	k.c.sh.sources = append(k.c.sh.sources, source{call: call, slot: slot, prog: p, let: let})
+	if k.calls == nil {
+		k.calls = map[*tree.Call]int32{}
+	}
+	k.calls[call] = slot
 	if !p.isConst() {
 		k.c.sh.dyn = append(k.c.sh.dyn, dynFig{kind: figInput, i: slot, prog: p})
 	}
@@ -569,6 +591,11 @@ func (k *compiler) tree() {
 		k.c.cash = append(k.c.cash, exact.Zero)
 		k.c.prob = append(k.c.prob, exact.Zero)
 		k.c.payoff = append(k.c.payoff, exact.Zero)
+		if parent >= 0 {
+			k.envOf = append(k.envOf, k.envOf[parent])
+		} else {
+			k.envOf = append(k.envOf, nil)
+		}
 		if named {
 			sh.unc = append(sh.unc, -1)
 			sh.test = append(sh.test, -1)
@@ -587,6 +614,10 @@ func (k *compiler) tree() {
 		from := int32(len(sh.nodes))
 		for _, b := range n.Branches {
 			push(b.Node, ii)
+		}
+		k.env = k.envOf[i]
+		if n.Split != nil {
+			k.split(n, from)
 		}
 		switch n.Kind {
 		case tree.KindEnd:
@@ -786,6 +817,10 @@ func (k *compiler) matchLabels(n *tree.Node, what string, labels []string, set f
 func (k *compiler) feeds() {
 	sh := k.c.sh
 	sh.readers = make([][]int32, len(k.c.in))
+	sh.isSource = make([]bool, len(k.c.in))
+	for _, s := range sh.sources {
+		sh.isSource[s.slot] = true
+	}
 	for fi, f := range sh.dyn {
 		for _, r := range f.prog.slots {
 			sh.readers[r] = append(sh.readers[r], int32(fi))

@@ -212,7 +212,7 @@ func (c *Model) NewFloats() *Floats {
 	return f
 }
 
-func (c *Model) isSource(slot int32) bool { return int(slot) >= len(c.sh.params) }
+func (c *Model) isSource(slot int32) bool { return c.sh.isSource[slot] }
 
 // Draw gives the random inputs the values x (in the order of
 // Model.Uncertain) and evaluates again what depends on them. An error says

@@ -86,6 +86,9 @@ type shape struct {
 	// corrCols their indices in sources (none when nothing is correlated).
 	corr     dist.Correlation
 	corrCols []int
+	// isSource marks, per input slot, the slots that distributions stand
+	// in (the others after the lets are a split's, split.go).
+	isSource []bool
 	dyn      []dynFig  // figures that read inputs, inputs first in slot order
 	readers  [][]int32 // per slot: the dyn figures that read it directly
 }

@@ -43,6 +43,9 @@ const (
 	opMul
 	opDiv
 	opCall // a distribution of arg arguments, written at expr (a *tree.Call): its mean
+	// opQuantile is a distribution of arg arguments and, above them on the
+	// stack, a level: its quantile there (split.go).
+	opQuantile
 )
 
 type op struct {
@@ -217,6 +220,22 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 			isExact = isExact && ok
 			st = append(st, pool.Of(mean))
 			continue
+		case opQuantile:
+			call := o.expr.(*tree.Call)
+			n := int(o.arg)
+			level := pool.Float64(st[len(st)-1])
+			st = st[:len(st)-1]
+			args := make([]decimal.Decimal, n)
+			for i := range args {
+				args[i] = pool.Dec(st[len(st)-n+i])
+			}
+			st = st[:len(st)-n]
+			q, err := quantileOf(call, args, level)
+			if err != nil {
+				return exact.Zero, false, &EvalError{Pos: call.At, Msg: err.Error(), Hint: "write it as " + functions[call.Func].usage}
+			}
+			st = append(st, pool.Of(q))
+			continue
 		}
 		x, y := st[len(st)-2], st[len(st)-1]
 		st = st[:len(st)-1]
@@ -268,6 +287,17 @@ func (p *program) evalFloat(in []float64) float64 {
 			continue
 		case opNeg:
 			st[len(st)-1] = -st[len(st)-1]
+			continue
+		case opQuantile:
+			// Its arguments never read a random input, so simulation
+			// never needs it again; done the exact way for completeness.
+			n := int(o.arg)
+			args := make([]decimal.Decimal, n)
+			for i := range args {
+				args[i] = decimal.NewFromFloat(st[len(st)-1-n+i])
+			}
+			q, _ := quantileOf(o.expr.(*tree.Call), args, st[len(st)-1])
+			st = append(st[:len(st)-1-n], q.InexactFloat64())
 			continue
 		}
 		y := st[len(st)-1]

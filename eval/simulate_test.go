@@ -351,3 +351,50 @@ decision "Route"
 		}
 	}
 }
+
+// TestSimulateSplit: below a three-point split the input stands at the
+// branch's value in every run, inputs computed from it included, while
+// other distributions are still drawn there; the simulated mean is then
+// within 4 standard errors of the exact expected value (the model is
+// linear in the drawn input), and with only the split's input uncertain
+// every run gives the exact value.
+func TestSimulateSplit(t *testing.T) {
+	for _, c := range []struct {
+		noise string
+		sd0   bool
+	}{{"0", true}, {"normal(0, 4_000)", false}} {
+		src := `let labour = pert(90_000, 110_000, 170_000)
+let noise  = ` + c.noise + `
+let total  = labour + noise
+decision "Bid"
+  "Bid"  gain 300_000
+    chance labour by swanson
+      decision "Overtime?"
+        "Pay overtime"  cost total + 5_000
+        "Accept delay"  cost 150_000
+  "Pass"  gain 10
+`
+		m := loadText(t, src)
+		for _, inputsOnly := range []bool{true, false} {
+			s, err := Simulate(context.Background(), m, SimulateOptions{Runs: 4000, Seed: 3, InputsOnly: inputsOnly})
+			if err != nil {
+				t.Fatal(err)
+			}
+			o := s.Options[0]
+			want, _ := o.AtMeans.Float64()
+			if diff := math.Abs(o.Sample.Mean() - want); diff > 4*o.Sample.StdErr()+1e-6 {
+				t.Errorf("noise %s inputs-only %v: mean %v, exact %v", c.noise, inputsOnly, o.Sample.Mean(), want)
+			}
+			if c.sd0 && inputsOnly && o.Sample.SD() > 1e-6 {
+				t.Errorf("only the split's input is uncertain, yet the runs vary: SD %v", o.Sample.SD())
+			}
+			// The noise reaches the split's branches through total: overtime
+			// is paid at all three points (the P90 of labour is about
+			// 141,700, and 141,700 + 5,000 < 150,000), so the option's SD
+			// is the noise's, 4,000.
+			if !c.sd0 && inputsOnly && math.Abs(o.Sample.SD()-4000) > 200 {
+				t.Errorf("SD %v, want about 4,000: the drawn noise does not reach below the split", o.Sample.SD())
+			}
+		}
+	}
+}

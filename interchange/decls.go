@@ -42,6 +42,8 @@ func (r *reader) model(at tree.Pos) {
 			m.Objective = obj
 		case mInputs:
 			r.array(r.s.next(), "inputs", "the model", "an input", r.input)
+		case mCorrelations:
+			r.array(r.s.next(), "correlations", "the model", "a correlation", r.correlation)
 		case mUncertainties:
 			r.array(r.s.next(), "uncertainties", "the model", "an uncertainty", r.uncertainty)
 		case mTests:
@@ -115,6 +117,73 @@ func (r *reader) input() {
 		p.Expr = &tree.Number{At: p.Pos}
 	}
 	r.m.Params = append(r.m.Params, p)
+}
+
+// correlation reads {"a": NAME, "b": NAME, "rho": FIGURE}: the language's
+// `correlate A B RHO`.
+func (r *reader) correlation() {
+	c := &tree.Correlation{Pos: r.s.pos}
+	var seen [3]bool
+	r.object("a correlation", correlationKeys, func(k int) {
+		seen[k] = true
+		switch k {
+		case 0:
+			c.A, c.APos, _ = r.str("a", "a correlation")
+		case 1:
+			c.B, c.BPos, _ = r.str("b", "a correlation")
+		case 2:
+			c.Rho, _ = r.figure("rho", "a correlation", false)
+		}
+	})
+	if r.stopped {
+		return
+	}
+	for k, key := range correlationKeys {
+		if !seen[k] {
+			r.err(c.Pos, "a correlation reads {\"a\": \"build\", \"b\": \"labour\", \"rho\": 0.6}", "a correlation has no %q", key)
+			return
+		}
+	}
+	if c.Rho == nil {
+		return // reported
+	}
+	r.m.Correlations = append(r.m.Correlations, c)
+}
+
+// split reads a node's {"input": NAME, "rule": "swanson"|"pearson"}: the
+// language's `chance NAME by RULE` (its branches are written out).
+func (r *reader) split(n *tree.Node) {
+	sp := &tree.Split{}
+	var seen [2]bool
+	at := r.s.pos
+	r.object("a split", splitKeys, func(k int) {
+		seen[k] = true
+		switch k {
+		case 0:
+			sp.Input, sp.InputPos, _ = r.str("input", "a split")
+		case 1:
+			rule, pos, ok := r.str("rule", "a split")
+			switch {
+			case !ok:
+			case rule == "swanson":
+				sp.Rule = tree.SwansonMegill
+			case rule == "pearson":
+				sp.Rule = tree.PearsonTukey
+			default:
+				r.err(pos, "use \"swanson\" (P10, P50, P90) or \"pearson\" (P5, P50, P95)", "unknown three-point rule %q", shorten(rule))
+			}
+		}
+	})
+	if r.stopped {
+		return
+	}
+	if !seen[0] || !seen[1] {
+		r.err(at, "a split reads {\"input\": \"labour\", \"rule\": \"swanson\"}", "a split needs its \"input\" and \"rule\"")
+		return
+	}
+	if sp.Rule != 0 {
+		n.Split = sp
+	}
 }
 
 func (r *reader) uncertainty() {

@@ -40,6 +40,10 @@ func FuzzReadJSON(f *testing.F) {
 	  {"label": "b", "probability": "rest", "node": {"type": "end", "payoff": "-(k + 1)", "value": "\u0031"}}]}}`))
 	f.Add([]byte("\ufeff{\"title\": \"t\\u00e9\\ud83d\\ude00\", \"x\": [[[{}]]], \"root\": {\"type\": \"end\"}}\r\n"))
 	f.Add(minified(3))
+	f.Add([]byte(`{"inputs": [{"name": "a", "value": "pert(1, 2, 4)"}, {"name": "b", "value": "uniform(0, 1)"}],
+	  "correlations": [{"a": "a", "b": "b", "rho": -0.3}],
+	  "root": {"type": "chance", "split": {"input": "a", "rule": "swanson"}, "branches": [{"label": "P10", "probability": 0.3, "cash": "a"},
+	  {"label": "P50", "probability": 0.4, "cash": "b"}, {"label": "P90", "probability": 0.3}]}}`))
 	f.Fuzz(func(t *testing.T, src []byte) {
 		if msg := fuzzkit.Within(10*time.Second, 256<<20+uint64(64*len(src)), func() string { return roundTrip(src) }); msg != "" {
 			t.Fatalf("%s\ninput: %q", msg, src)

@@ -57,14 +57,17 @@ func ReadBytes(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
 // its bit in the set of keys seen.
 var (
 	modelKeys = []string{"title", "currency", "objective", "inputs", "uncertainties", "tests", "root", "value", "exact",
-		"risk_tolerance", "certainty_equivalent", "risk_premium", "expected_value_policy_value", "cost_of_caution", "risk_note"}
+		"risk_tolerance", "certainty_equivalent", "risk_premium", "expected_value_policy_value", "cost_of_caution", "risk_note",
+		"correlations"}
+	correlationKeys = []string{"a", "b", "rho"}
+	splitKeys       = []string{"input", "rule"}
 	inputKeys       = []string{"name", "value", "low", "high"}
 	uncertaintyKeys = []string{"name", "label", "states"}
 	stateKeys       = []string{"label", "probability"}
 	testKeys        = []string{"name", "label", "on", "cost", "readings"}
 	readingKeys     = []string{"label", "likelihoods", "rest"}
 	likelihoodKeys  = []string{"state", "probability"}
-	nodeKeys        = []string{"type", "label", "uncertainty", "test", "payoff", "value", "best", "branches"}
+	nodeKeys        = []string{"type", "label", "uncertainty", "test", "payoff", "value", "best", "branches", "split"}
 	branchKeys      = []string{"label", "probability", "gain", "cost", "cash", "node"}
 )
 
@@ -87,6 +90,7 @@ const (
 	mEVPolicyValue
 	mCostOfCaution
 	mRiskNote
+	mCorrelations
 )
 
 const (
@@ -98,6 +102,7 @@ const (
 	nValue
 	nBest
 	nBranches
+	nSplit
 )
 
 const (

@@ -135,6 +135,12 @@ func (r *reader) tree(t tokKind) {
 				}
 			case nBest:
 				r.skip(r.nextDiscard()) // what `solve --json` adds: recomputed
+			case nSplit:
+				if t := r.s.next(); t != tObject {
+					r.wrongType(t, fmt.Sprintf("\"split\" of a node must be an object, not %s", kindName(t)), "")
+					continue
+				}
+				r.split(n)
 			case nBranches:
 				t := r.s.next()
 				if t != tArray {

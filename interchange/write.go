@@ -422,6 +422,19 @@ func (j *writer) model() {
 		}
 		j.close(']')
 	}
+	if len(m.Correlations) > 0 {
+		j.key("correlations")
+		j.open('[')
+		for _, cr := range m.Correlations {
+			j.item()
+			j.inlineObject(func() {
+				j.must("a", cr.A)
+				j.must("b", cr.B)
+				j.fig("rho", cr.Rho)
+			})
+		}
+		j.close(']')
+	}
 	if m.Root != nil {
 		j.key("root")
 		j.tree()
@@ -537,6 +550,13 @@ func (j *writer) node(n *tree.Node, i int) bool {
 	j.str("label", n.Label)
 	j.str("uncertainty", n.Uncertainty)
 	j.str("test", n.Test)
+	if sp := n.Split; sp != nil {
+		j.key("split")
+		j.inlineObject(func() {
+			j.must("input", sp.Input)
+			j.must("rule", sp.Rule.String())
+		})
+	}
 	if n.Payoff != nil {
 		// Held as net value; written in the objective's terms.
 		p := n.Payoff

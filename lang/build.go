@@ -44,6 +44,7 @@ type frame struct {
 	nodeLine    int
 	owner       *subtreeDef // the subtree the line is in; nil for the main tree
 	detached    bool        // not part of the model (placed wrongly, reported)
+	split       bool        // a three-point chance node: it takes one node, its branches are made
 	silent      bool        // under a line that could not be read: no structure checks
 }
 
@@ -514,6 +515,9 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 		}
 		return b.placeNode(l, parent, n, "decision", "", true, quiet)
 	case *gChance:
+		if g.By != nil {
+			return b.splitLine(l, g, parent, quiet)
+		}
 		n := &tree.Node{Kind: tree.KindChance, Pos: tokPos(g.Kw)}
 		if g.Name != nil {
 			n.Uncertainty = g.Name.Value
@@ -612,7 +616,7 @@ func (b *builder) placeNode(l *srcLine, parent *frame, n *tree.Node, noun, name 
 		f.detached = true
 		return f
 	}
-	if n.Kind == tree.KindChance && n.Uncertainty == "" && n.Test == "" {
+	if n.Kind == tree.KindChance && n.Uncertainty == "" && n.Test == "" && n.Split == nil {
 		defer func() {
 			if !f.detached {
 				b.chances = append(b.chances, plainChance{n: n, line: l.num, width: l.lx.endCol - l.first().Pos.Column})
@@ -692,6 +696,11 @@ func (b *builder) placeItem(l *srcLine, g *gItem, parent *frame, role itemRole, 
 		b.reading(l, g, label, parent)
 		return &frame{kind: fLeaf, noun: "reading", label: label, hasLabel: true}
 	case fBranch:
+		if parent.split {
+			b.errAt(lp, lw, "its branches are made for it ("+splitLabels(parent.node)+"); indent under it the node that follows each of them",
+				"a three-point chance node takes a node under it, not branches")
+			break
+		}
 		b.addStray(parent, strayItem{pos: lp, width: lw, indent: l.indent, label: label,
 			prob: g.tail().Amount != nil, afterNode: parent.hasNode})
 	case fSubtree:
@@ -973,4 +982,5 @@ func (b *builder) finish() {
 		}
 	}
 	b.expand()
+	b.splitOut()
 }

@@ -199,11 +199,13 @@ func (b *builder) weigh(root *tree.Node) int {
 			continue
 		}
 		total = b.sat(total, 1)
-		for _, br := range n.Branches {
-			if br.Node == nil {
-				total = b.sat(total, 1)
-			} else {
-				stack = append(stack, br.Node)
+		for range copies(n) {
+			for _, br := range n.Branches {
+				if br.Node == nil {
+					total = b.sat(total, 1)
+				} else {
+					stack = append(stack, br.Node)
+				}
 			}
 		}
 	}
@@ -234,11 +236,13 @@ func (b *builder) checkLimit() bool {
 			continue
 		}
 		total++
-		for _, br := range n.Branches {
-			if br.Node == nil {
-				total++
-			} else {
-				stack = append(stack, br.Node)
+		for range copies(n) {
+			for _, br := range n.Branches {
+				if br.Node == nil {
+					total++
+				} else {
+					stack = append(stack, br.Node)
+				}
 			}
 		}
 		if total > b.limit {

@@ -78,6 +78,7 @@ func FuzzLoad(f *testing.F) {
 		"# mac\rdecision \"D\"\r  \"a\" gain 1\r\n  \"b\"\r",
 		"decision \"D\x1b\"\n  \"a\x07\"\n  \"b\" gain 1 \x00\n",
 		"let p = 30% in 5 .. 40%\ndecision \"D\"\n  \"a\" cost 100 + 20%\n    chance \"C\"\n      \"x\" p\n      \"y\" rets\n",
+		"let a = pert(1, 2, 4)\nlet b = a * 2\ncorrelate a c -0.5\ndecision \"D\"\n  \"x\"\n    chance a \"A\" by pearson\n      use s\n  \"y\" gain b\nsubtree s\n  chance a by swanson\n    decision \"E\"\n      \"e\" gain b\n",
 	} {
 		f.Add([]byte(s))
 	}

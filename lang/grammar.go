@@ -73,10 +73,14 @@ type gDecision struct {
 	Label *gLabel     `parser:"@@?"`
 }
 
+// gChance is a chance node; with `by RULE` it is a split: the input NAME
+// at three points (split.go).
 type gChance struct {
 	Kw    lexer.Token  `parser:"@\"chance\""`
 	Name  *lexer.Token `parser:"@Ident?"`
 	Label *lexer.Token `parser:"@String?"`
+	By    *lexer.Token `parser:"( @\"by\""`
+	Rule  *lexer.Token `parser:"  @Ident )?"`
 }
 
 // gCorrelate is `correlate A B RHO`: the rank correlation of two inputs

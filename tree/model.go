@@ -215,7 +215,92 @@ type Node struct {
 	// Payoff is an end node's terminal value as net value (positive is
 	// good, whatever the objective); nil is 0.
 	Payoff Expr
-	Pos    Pos
+	// Split, on a chance node, makes it the three-point approximation of
+	// an input written as a distribution (see Split): its branches are the
+	// three points and each subtree below sees the input at its branch's
+	// value.
+	Split *Split
+	Pos   Pos
+}
+
+// SplitRule is a three-point approximation of a distribution (Keefer &
+// Bodily, 1983, "Three-point approximations for continuous random
+// variables", Management Science 29(5)).
+type SplitRule uint8
+
+const (
+	// SwansonMegill is the extended Swanson–Megill rule: P10, P50 and P90
+	// with probabilities 0.3, 0.4 and 0.3.
+	SwansonMegill SplitRule = iota + 1
+	// PearsonTukey is the extended Pearson–Tukey rule: P5, P50 and P95
+	// with probabilities 0.185, 0.63 and 0.185.
+	PearsonTukey
+)
+
+// Points returns the rule's branch labels (the percentiles), their levels
+// and their probabilities as written in a model.
+func (r SplitRule) Points() (labels [3]string, levels [3]string, probs [3]string) {
+	if r == PearsonTukey {
+		return [3]string{"P5", "P50", "P95"}, [3]string{"0.05", "0.5", "0.95"}, [3]string{"18.5%", "63%", "18.5%"}
+	}
+	return [3]string{"P10", "P50", "P90"}, [3]string{"0.1", "0.5", "0.9"}, [3]string{"30%", "40%", "30%"}
+}
+
+// String is the rule's word in the language: swanson or pearson.
+func (r SplitRule) String() string {
+	switch r {
+	case SwansonMegill:
+		return "swanson"
+	case PearsonTukey:
+		return "pearson"
+	}
+	return fmt.Sprintf("SplitRule(%d)", int(r))
+}
+
+// Split is `chance NAME by swanson` (or `by pearson`): a chance node of
+// three branches, one for each point of the rule, in which the input NAME
+// (a `let` written as a distribution) takes the distribution's percentile
+// at that point, in the subtree below the branch and in every input
+// computed from it. Elsewhere in the tree the input keeps its mean.
+type Split struct {
+	Input    string
+	Rule     SplitRule
+	InputPos Pos
+}
+
+// SplitOn makes the three-point chance node on input by rule, each branch
+// leading to its own copy of body (nil: the branches end). label names the
+// node; "" gives it SplitLabel's.
+func SplitOn(input string, rule SplitRule, label string, body *Node) *Node {
+	if label == "" {
+		label = SplitLabel(input, rule)
+	}
+	n := &Node{Kind: KindChance, Label: label, Split: &Split{Input: input, Rule: rule}}
+	n.Branches = SplitBranches(rule, body)
+	return n
+}
+
+// SplitLabel is the label a split has when none is written:
+// "labour at P10, P50, P90".
+func SplitLabel(input string, rule SplitRule) string {
+	labels, _, _ := rule.Points()
+	return input + " at " + strings.Join(labels[:], ", ")
+}
+
+// SplitBranches makes the three branches of a split by rule, each leading
+// to its own copy of body.
+func SplitBranches(rule SplitRule, body *Node) []*Branch {
+	labels, _, probs := rule.Points()
+	out := make([]*Branch, 3)
+	for i := range out {
+		next := body
+		if i > 0 {
+			next = Clone(body)
+		}
+		p := decimal.RequireFromString(strings.TrimSuffix(probs[i], "%")).Shift(-2)
+		out[i] = &Branch{Label: labels[i], Prob: &Number{Value: p, Text: probs[i]}, Node: next}
+	}
+	return out
 }
 
 // Branch leads from a node to the next one.
