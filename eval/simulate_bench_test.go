@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math/rand"
+	"os"
 	"strings"
 	"syscall"
 	"testing"
@@ -104,4 +105,19 @@ func cpuTime() time.Duration {
 		return 0
 	}
 	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
+}
+
+// TestWriteSimBenchModel writes BenchmarkSimulate's model to the file named
+// by FORKCAST_SIMBENCH_MODEL, for timing `forkcast simulate` as a whole
+// process (BENCHMARKS.md); without it the test checks the model's size.
+func TestWriteSimBenchModel(t *testing.T) {
+	src := simBenchModel()
+	if path := os.Getenv("FORKCAST_SIMBENCH_MODEL"); path != "" {
+		if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	if n := loadText(t, src).Len(); n < 1000 || n > 1300 {
+		t.Errorf("the benchmark model has %d nodes; it should have about 1,000", n)
+	}
 }
