@@ -155,11 +155,14 @@ func isIdent(s string) bool {
 	return s != ""
 }
 
-// String writes the Vary back in ParseVary's syntax.
+// String writes the Vary back in ParseVary's syntax: a part that holds a
+// ':', '/' or '=' (which the command line uses to give a range), or starts
+// or ends with a space, in double quotes, as it is (ParseVary reads a
+// quoted part without escapes).
 func (v Vary) String() string {
 	q := func(s string) string {
-		if strings.ContainsAny(s, `:/"`) || s != strings.TrimSpace(s) {
-			return fmt.Sprintf("%q", s)
+		if strings.ContainsAny(s, `:/"=`) || s != strings.TrimSpace(s) {
+			return `"` + s + `"`
 		}
 		return s
 	}
