@@ -151,3 +151,28 @@ func TestSensitivityChartFiles(t *testing.T) {
 		t.Errorf("a directory as the tornado: exit %d: %s", code, errs)
 	}
 }
+
+// --set answers as editing the let line would: the same JSON, byte for
+// byte, from sensitivity and from a sweep.
+func TestSensitivitySetAsEdited(t *testing.T) {
+	src, err := os.ReadFile("../../examples/sourcing.fork")
+	if err != nil {
+		t.Fatal(err)
+	}
+	edited := strings.Replace(string(src), "let licence   = 310_000", "let licence   = 280_000", 1)
+	edited = strings.Replace(edited, "let benefit   = 1_400_000", "let benefit   = 1_500_000", 1)
+	if edited == string(src) {
+		t.Fatal("the example's let lines changed; fix the test")
+	}
+	file := writeFile(t, "edited.fork", edited)
+	for _, args := range [][]string{
+		{"sensitivity", "--pct", "20", "--json"},
+		{"sweep", "--vary", "lease_fee=250_000..450_000", "--steps", "5", "--json"},
+	} {
+		_, want, errs := forkcast(t, "", append(append([]string{}, args...), file)...)
+		code, got, errs2 := forkcast(t, string(src), append(append([]string{}, args...), "--set", "licence=280_000", "--set", "benefit=1_500_000", "-")...)
+		if code != 0 || got != want || want == "" {
+			t.Errorf("%v: --set and the edited file differ (exit %d):\n%s\n%s\n%s%s", args, code, got, want, errs, errs2)
+		}
+	}
+}
