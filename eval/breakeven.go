@@ -156,13 +156,13 @@ func isIdent(s string) bool {
 }
 
 // String writes the Vary back in ParseVary's syntax: a part that holds a
-// ':', '/' or '=' (which the command line uses to give a range), or starts
-// or ends with a space, in double quotes, as it is (ParseVary reads a
-// quoted part without escapes).
+// ':', '/', '"' or '=' (which the command line uses to give a range), or
+// starts or ends with a space, quoted as Go quotes strings (ParseVary reads
+// the escapes back).
 func (v Vary) String() string {
 	q := func(s string) string {
 		if strings.ContainsAny(s, `:/"=`) || s != strings.TrimSpace(s) {
-			return `"` + s + `"`
+			return strconv.Quote(s)
 		}
 		return s
 	}

@@ -122,12 +122,17 @@ func sensitivityAction(c *cli.Context) error {
 }
 
 // parseVaryRange reads INPUT or INPUT=LOW..HIGH; the = that starts the
-// range is the last one outside double quotes.
+// range is the last one outside double quotes (inside them a backslash
+// escapes the next character, as eval.ParseVary reads them).
 func parseVaryRange(s string) (eval.VaryRange, error) {
 	spec, rng, hasRange := s, "", false
 	inQuote := false
 	for i := 0; i < len(s); i++ {
 		switch s[i] {
+		case '\\':
+			if inQuote {
+				i++
+			}
 		case '"':
 			inQuote = !inQuote
 		case '=':
