@@ -2,6 +2,7 @@ package eval_test
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"strings"
 	"testing"
@@ -114,5 +115,40 @@ func TestManyTiedOptions(t *testing.T) {
 	sol, _ := eval.Solve(loadText(t, b.String()))
 	if len(sol.Root.Best()) != 4000 || sol.Root.Chosen() != 0 || !sol.Root.IsBest(3999) {
 		t.Errorf("%d best, chosen %d", len(sol.Root.Best()), sol.Root.Chosen())
+	}
+}
+
+// TestBreakevenStuckInput: an input used as the probability of a state of
+// an uncertainty with no `rest` cannot move without the states leaving a
+// sum of 1; breakeven says so and what to do, instead of narrowing the
+// range to a point.
+func TestBreakevenStuckInput(t *testing.T) {
+	c := loadText(t, `let p_fail = 20%  in 5% .. 50%
+uncertainty outcome
+  "Failed"  p_fail
+  "Worked"  80%
+decision "Launch?"
+  "Launch"
+    chance outcome
+      "Failed"  cost 100
+      "Worked"  gain 40
+  "Wait"
+`)
+	v, _ := eval.ParseVary("p_fail")
+	_, err := eval.FindBreakeven(context.Background(), c, eval.BreakevenOptions{Vary: v})
+	var re *eval.RequestError
+	if !errors.As(err, &re) || !strings.Contains(err.Error(), "would no longer sum to 1") || !strings.Contains(err.Error(), "`rest`") || !strings.Contains(err.Error(), "outcome:Failed") {
+		t.Fatalf("got %v", err)
+	}
+}
+
+// TestSolveNothing: solving no model is an error, not a panic; a model
+// can only be solved once compiled, which checks it.
+func TestSolveNothing(t *testing.T) {
+	if _, err := eval.Solve(nil); !errors.Is(err, eval.ErrNoModel) {
+		t.Fatalf("got %v", err)
+	}
+	if _, err := eval.Follow(nil, nil); !errors.Is(err, eval.ErrNoModel) {
+		t.Fatalf("got %v", err)
 	}
 }
