@@ -44,7 +44,8 @@ const exitStatusHelp = "Exit status: 0 success; 1 the model has errors, or a fil
 	"read or written (missing, a directory, a symbolic link as output); 2 the\n" +
 	"command line is wrong (unknown command or flag, a flag value out of range,\n" +
 	"a missing FILE argument); 3 an internal error in forkcast (please report it);\n" +
-	"130 interrupted with Ctrl-C before the work was done (nothing is written)."
+	"130 interrupted with Ctrl-C before the work was done (nothing is written,\n" +
+	"except by simulate, which reports the runs done)."
 
 func main() { os.Exit(mainStatus(os.Args)) }
 
