@@ -17,9 +17,9 @@ func Compile(m *tree.Model) (*Model, tree.Diagnostics) {
 	k.c = c
 	k.params()
 	k.correlations()
-	if r := m.RiskTolerance; r != nil && r.Value.Sign() <= 0 {
+	if r := m.RiskTolerance; r != nil && r.Value().Sign() <= 0 {
 		k.ds.Add(r.At, "it is the amount of money at which a 50-50 gamble of winning it or losing half of it is just acceptable, e.g. `risk tolerance 250_000`",
-			"a risk tolerance is a positive amount of money, not %s", r.Value)
+			"a risk tolerance is a positive amount of money, not %s", r.Value())
 	}
 	k.uncertainties()
 	k.tests()
@@ -92,12 +92,21 @@ func (k *compiler) look(n *tree.Name) (int32, *EvalError) {
 		Hint: "define it with `let " + n.Name + " = ...` above this line"}
 }
 
+// numOf is a literal's value, made without a decimal when it fits in
+// machine words.
+func numOf(pool *exact.Pool, n *tree.Number) exact.Num {
+	if c, e, ok := n.Small(); ok {
+		return exact.Small(c, e)
+	}
+	return pool.Of(n.Value())
+}
+
 // figure compiles and evaluates e; a figure that reads inputs is recorded
 // so that it is evaluated again when they change. ok is false when e cannot
 // be evaluated (reported).
 func (k *compiler) figure(e tree.Expr, kind figKind, i, j, kk int32) (exact.Num, bool) {
 	if num, ok := e.(*tree.Number); ok {
-		return k.pool.Of(num.Value), true // the common case: a number as written
+		return numOf(k.pool, num), true // the common case: a number as written
 	}
 	p, err := compileExpr(k.pool, e, k.look, k.source)
 	if err != nil {
@@ -541,9 +550,9 @@ func (k *compiler) cash(b *tree.Branch, i int32) {
 	switch {
 	case b.Gain == nil && b.Cost == nil:
 	case gok && b.Cost == nil:
-		k.c.cash[i] = k.pool.Of(g.Value)
+		k.c.cash[i] = numOf(k.pool, g)
 	case cok && b.Gain == nil:
-		k.c.cash[i] = k.pool.Neg(k.pool.Of(c.Value))
+		k.c.cash[i] = k.pool.Neg(numOf(k.pool, c))
 	default:
 		k.c.cash[i], _ = k.figure(netExpr(b), figCash, i, 0, 0)
 	}

@@ -94,7 +94,7 @@ func compileExpr(pool *exact.Pool, e tree.Expr, look scope, source sourceOf) (p 
 			p.consts = append(p.consts, exact.Zero)
 		case *tree.Number:
 			p.ops = append(p.ops, op{code: opConst, arg: int32(len(p.consts)), at: e.At})
-			p.consts = append(p.consts, pool.Of(e.Value))
+			p.consts = append(p.consts, numOf(pool, e))
 		case *tree.Name:
 			slot, err := look(e)
 			if err != nil {

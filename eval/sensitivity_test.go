@@ -199,7 +199,7 @@ func ratEnv(e tree.Expr, env map[string]*big.Rat) *big.Rat {
 	case nil:
 		return new(big.Rat)
 	case *tree.Number:
-		return rat(e.Value)
+		return rat(e.Value())
 	case *tree.Name:
 		return new(big.Rat).Set(env[e.Name])
 	case *tree.Unary:

@@ -303,7 +303,7 @@ func ratExpr(e tree.Expr) *big.Rat {
 	case nil:
 		return new(big.Rat)
 	case *tree.Number:
-		return rat(e.Value)
+		return rat(e.Value())
 	case *tree.Unary:
 		return new(big.Rat).Neg(ratExpr(e.X))
 	case *tree.Binary:

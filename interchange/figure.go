@@ -41,7 +41,7 @@ func (r *reader) figureOf(t token, restOK bool) (x tree.Expr, rest bool) {
 		if !ok {
 			return nil, false
 		}
-		return &tree.Number{At: t.pos, Value: d}, false
+		return tree.NumberOf(t.pos, d), false
 	case restOK && string(t.text) == "rest":
 		return nil, true
 	case isNameBytes(t.text):
@@ -54,7 +54,7 @@ func (r *reader) figureOf(t token, restOK bool) (x tree.Expr, rest bool) {
 		if !ok {
 			return nil, false
 		}
-		return &tree.Number{At: t.pos, Value: d}, false
+		return tree.NumberOf(t.pos, d), false
 	}
 	return r.calculation(t), false
 }
@@ -170,7 +170,7 @@ func (r *reader) calculation(t token) tree.Expr {
 		if !p.IsValid() {
 			return t.pos
 		}
-		return t.at(p.Col - 1)
+		return t.at(int(p.Col) - 1)
 	}
 	for _, d := range ds {
 		if r.stopped {
@@ -264,7 +264,7 @@ func plus(x, y tree.Expr) tree.Expr {
 func negate(x tree.Expr) tree.Expr {
 	switch e := x.(type) {
 	case *tree.Number:
-		return &tree.Number{At: e.At, Value: e.Value.Neg()}
+		return tree.NumberOf(e.At, e.Value().Neg())
 	case *tree.Unary:
 		if e.Op == '-' {
 			return e.X

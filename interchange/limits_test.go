@@ -78,14 +78,14 @@ func TestReadLimits(t *testing.T) {
 			want: fmt.Sprintf("the JSON nests arrays and objects more than %d deep", interchange.MaxNesting),
 			// The model and the root node are two levels; the nest goes
 			// past the limit at its (MaxNesting-1)th bracket.
-			pos: tree.Pos{Line: 1, Col: len(`{"root": {"type": "end", "best": `) + interchange.MaxNesting - 1},
+			pos: tree.At(1, len(`{"root": {"type": "end", "best": `)+interchange.MaxNesting-1),
 			max: 1 << 20,
 		},
 		{
 			name: "deep nest of { in an unknown key",
 			src:  []byte(`{"x": ` + strings.Repeat(`{"a": `, interchange.MaxNesting+10)),
 			want: fmt.Sprintf("the JSON nests arrays and objects more than %d deep", interchange.MaxNesting),
-			pos:  tree.Pos{Line: 1, Col: len(`{"x": `) + 6*(interchange.MaxNesting-1) + 1},
+			pos:  tree.At(1, len(`{"x": `)+6*(interchange.MaxNesting-1)+1),
 			max:  1 << 20,
 		},
 		{
@@ -95,14 +95,14 @@ func TestReadLimits(t *testing.T) {
 			want: "the tree has more than 1,000 nodes",
 			// The root and 999 branches fill the limit: the 1,000th
 			// branch goes past it.
-			pos: tree.Pos{Line: 1, Col: len(`{"root": {"type": "decision", "label": "d", "branches": [`) + 15*999 + 1},
+			pos: tree.At(1, len(`{"root": {"type": "decision", "label": "d", "branches": [`)+15*999+1),
 			max: 1 << 20,
 		},
 		{
 			name: "long flat array of mistakes",
 			src:  []byte(`{"root": {"type": "decision", "label": "d", "branches": [` + strings.Repeat(`7,`, 100_000) + `7]}}`),
 			want: fmt.Sprintf("more than %d errors; reading stopped here", interchange.MaxErrors),
-			pos:  tree.Pos{Line: 1, Col: len(`{"root": {"type": "decision", "label": "d", "branches": [`) + 2*interchange.MaxErrors + 1},
+			pos:  tree.At(1, len(`{"root": {"type": "decision", "label": "d", "branches": [`)+2*interchange.MaxErrors+1),
 			max:  1 << 20,
 		},
 		{
@@ -122,7 +122,7 @@ func TestReadLimits(t *testing.T) {
 			name: "long calculation",
 			src:  []byte(`{"root": {"type": "decision", "branches": [{"label": "a", "gain": "` + strings.Repeat("1+", 2_000_000) + `1"}]}}`),
 			want: "the calculation is too long: more than 10000 parts",
-			pos:  tree.Pos{Line: 1, Col: len(`{"root": {"type": "decision", "branches": [{"label": "a", "gain": `) + 2 + 10_000},
+			pos:  tree.At(1, len(`{"root": {"type": "decision", "branches": [{"label": "a", "gain": `)+2+10_000),
 			// The calculation is kept as text while it is read (with room
 			// for twice its length), copied once for the expression
 			// reader, whose tokens stop at the limit: about four times

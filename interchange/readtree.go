@@ -201,7 +201,7 @@ func (r *reader) endNode(f *frame) {
 		n.Payoff = nil
 	case n.Payoff == nil && n.Kind == tree.KindEnd && f.value != nil:
 		n.Payoff, _ = r.figureOf(*f.value, false)
-		if num, ok := n.Payoff.(*tree.Number); ok && num.Value.IsZero() {
+		if num, ok := n.Payoff.(*tree.Number); ok && num.Value().IsZero() {
 			n.Payoff = nil // the same as none: the end of a path in solved output
 		}
 	}

@@ -22,7 +22,7 @@ func TestRiskTolerance(t *testing.T) {
 	if ds.HasErrors() {
 		t.Fatal(ds)
 	}
-	if m.RiskTolerance == nil || !m.RiskTolerance.Value.Equal(decimal.NewFromInt(250000)) {
+	if m.RiskTolerance == nil || !m.RiskTolerance.Value().Equal(decimal.NewFromInt(250000)) {
 		t.Fatalf("risk tolerance %v", m.RiskTolerance)
 	}
 	c, ds := compiled.Compile(m)
@@ -30,7 +30,7 @@ func TestRiskTolerance(t *testing.T) {
 		t.Fatal(ds)
 	}
 	sol, _ := eval.Solve(c)
-	rs, err := eval.SolveRiskAverse(sol, m.RiskTolerance.Value)
+	rs, err := eval.SolveRiskAverse(sol, m.RiskTolerance.Value())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -47,7 +47,7 @@ func TestRiskTolerance(t *testing.T) {
 		}
 	}
 	back, ds := interchange.ReadBytes(out.Bytes(), interchange.Options{})
-	if ds.HasErrors() || back.RiskTolerance == nil || !back.RiskTolerance.Value.Equal(m.RiskTolerance.Value) {
+	if ds.HasErrors() || back.RiskTolerance == nil || !back.RiskTolerance.Value().Equal(m.RiskTolerance.Value()) {
 		t.Fatalf("read back: %v, %v", ds, back.RiskTolerance)
 	}
 	for _, bad := range []string{`"risk_tolerance": "k * 2"`, `"risk_tolerance": true`} {

@@ -144,7 +144,7 @@ func (s *scanner) advance() {
 	}
 }
 
-func (s *scanner) here() tree.Pos { return tree.Pos{Line: s.line, Col: s.col} }
+func (s *scanner) here() tree.Pos { return tree.At(s.line, s.col) }
 
 // fail ends scanning with an error at pos.
 func (s *scanner) fail(pos tree.Pos, hint, format string, args ...any) tokKind {
@@ -557,9 +557,9 @@ func (t token) at(k int) tree.Pos {
 	case k < 0:
 		return start
 	case len(t.cols) == 0:
-		return tree.Pos{Line: start.Line, Col: start.Col + 1 + k}
+		return tree.At(int(start.Line), int(start.Col)+1+k)
 	case k < len(t.cols):
-		return tree.Pos{Line: start.Line, Col: start.Col + int(t.cols[k])}
+		return tree.At(int(start.Line), int(start.Col)+int(t.cols[k]))
 	}
-	return tree.Pos{Line: start.Line, Col: start.Col + int(t.endOff) + k - len(t.cols)}
+	return tree.At(int(start.Line), int(start.Col)+int(t.endOff)+k-len(t.cols))
 }

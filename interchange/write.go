@@ -194,11 +194,11 @@ func (j *writer) fig(k string, x tree.Expr) {
 func (j *writer) figure(x tree.Expr) {
 	switch e := x.(type) {
 	case *tree.Number:
-		j.number(e.Value)
+		j.number(e.Value())
 		return
 	case *tree.Unary:
 		if n, ok := e.X.(*tree.Number); ok && e.Op == '-' {
-			j.number(n.Value.Neg())
+			j.number(n.Value().Neg())
 			return
 		}
 	}
@@ -313,7 +313,7 @@ func (j *writer) model() {
 		j.value(rk.Tolerance, "the risk tolerance")
 	case m.RiskTolerance != nil:
 		j.key("risk_tolerance")
-		j.value(m.RiskTolerance.Value, "the risk tolerance")
+		j.value(m.RiskTolerance.Value(), "the risk tolerance")
 	}
 	if sv != nil && m.Root != nil {
 		j.key("value")

@@ -135,7 +135,7 @@ func (b *builder) errAt(p tree.Pos, n int, hint, format string, args ...any) {
 	b.ds = append(b.ds, tree.Diagnostic{Severity: tree.Error, Pos: p, Len: n, Summary: fmt.Sprintf(format, args...), Hint: hint})
 }
 
-func tokPos(t lexer.Token) tree.Pos { return tree.Pos{Line: t.Pos.Line, Col: t.Pos.Column} }
+func tokPos(t lexer.Token) tree.Pos { return tree.At(t.Pos.Line, t.Pos.Column) }
 
 // tokWidth is the width of a token in characters, found from the line.
 func tokWidth(lx lexed, t lexer.Token) int {
@@ -894,7 +894,8 @@ func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed, top bool) (tree.Ex
 		if msg != "" {
 			b.errAt(at, tokWidth(lx, e.Tok), hint, "%s", msg)
 		}
-		return &tree.Number{At: at, Value: v, Text: e.Tok.Value}, at
+		n := tree.WrittenDecimal(at, v, e.Tok.Value)
+		return &n, at
 	case *eRest:
 		at := tokPos(e.Tok)
 		switch c {
@@ -908,7 +909,8 @@ func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed, top bool) (tree.Ex
 			b.errAt(at, 4, "rest stands only for a probability (what the other branches leave); write an amount here",
 				"`rest` is not an amount")
 		}
-		return &tree.Number{At: at, Value: decimal.Zero, Text: "rest"}, at
+		n := tree.WrittenDecimal(at, decimal.Zero, "rest")
+		return &n, at
 	case *eName:
 		at := tokPos(e.Tok)
 		b.useName(e.Tok, lx, c, top)
@@ -937,7 +939,7 @@ func (b *builder) lowerExpr(e exprValue, c exprCtx, lx lexed, top bool) (tree.Ex
 		y, _ := b.lowerExpr(e.Y, c, lx, sum)
 		return &tree.Binary{At: at, Op: e.Op.Value[0], X: x, Y: y}, at
 	}
-	return &tree.Number{Value: decimal.Zero}, tree.Pos{}
+	return tree.NumberOf(tree.Pos{}, decimal.Zero), tree.Pos{}
 }
 
 // finish runs the checks that need the whole file.
@@ -951,7 +953,7 @@ func (b *builder) finish() {
 		b.errAt(tree.Pos{Line: 1, Col: 1}, 1, "a model needs at least a tree: a `decision` line with its options indented beneath it",
 			"the model is empty: it has no lines other than comments and blank lines")
 	case b.m.Root == nil && !b.sawNodeTop && b.firstLine > 0 && !b.ds.HasErrors():
-		b.errAt(tree.Pos{Line: b.firstLine, Col: 1}, 1, "add the tree at the left edge: a `decision` line, with its options indented beneath it",
+		b.errAt(tree.At(b.firstLine, 1), 1, "add the tree at the left edge: a `decision` line, with its options indented beneath it",
 			"the model has no tree: no decision, chance or test line at the top level")
 	}
 	for _, p := range b.cash {

@@ -148,8 +148,8 @@ func TestExactNumbers(t *testing.T) {
 		if !ok {
 			t.Fatalf("%s: %T", c.name, m.Param(c.name).Expr)
 		}
-		if !n.Value.Equal(dec(c.value)) || n.Text != c.text {
-			t.Errorf("%s: %s %q", c.name, n.Value, n.Text)
+		if !n.Value().Equal(dec(c.value)) || n.Text() != c.text {
+			t.Errorf("%s: %s %q", c.name, n.Value(), n.Text())
 		}
 	}
 	// 0.1 + 0.2 is exactly 0.3, not 0.30000000000000004.
@@ -521,7 +521,7 @@ decision "D"
 	_, ds := Load([]byte(src), Options{})
 	var lines []int
 	for _, d := range ds {
-		lines = append(lines, d.Pos.Line)
+		lines = append(lines, int(d.Pos.Line))
 	}
 	if !reflect.DeepEqual(lines, []int{1, 2, 4, 5, 6}) {
 		t.Errorf("lines %v: %v", lines, ds)

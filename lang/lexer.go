@@ -113,7 +113,7 @@ func (a *arena) lexLine(s string, line, col int, ds *tree.Diagnostics) (out lexe
 	}()
 	pos := func(c int) lexer.Position { return lexer.Position{Line: line, Column: c} }
 	errAt := func(c, n int, hint, format string, args ...any) {
-		*ds = append(*ds, tree.Diagnostic{Severity: tree.Error, Pos: tree.Pos{Line: line, Col: c}, Len: n,
+		*ds = append(*ds, tree.Diagnostic{Severity: tree.Error, Pos: tree.At(line, c), Len: n,
 			Summary: fmt.Sprintf(format, args...), Hint: hint})
 		out.lexErr = true
 	}

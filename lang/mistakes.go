@@ -303,7 +303,7 @@ func (o *chanceOutcomes) restValue() (decimal.Decimal, bool) {
 				o.bad = true
 				break
 			}
-			sum = sum.Add(n.Value)
+			sum = sum.Add(n.Value())
 		}
 		r := decimal.NewFromInt(1).Sub(sum)
 		o.rest = &r
@@ -344,7 +344,7 @@ func (o *chanceOutcomes) same(p *chanceOutcomes) bool {
 				other = x.Prob
 			}
 			n, isNum := other.(*tree.Number)
-			if !ok || !isNum || !n.Value.Equal(r) {
+			if !ok || !isNum || !n.Value().Equal(r) {
 				return false
 			}
 		default:
@@ -352,7 +352,7 @@ func (o *chanceOutcomes) same(p *chanceOutcomes) bool {
 			yn, ok2 := y.Prob.(*tree.Number)
 			switch {
 			case ok1 && ok2:
-				if !xn.Value.Equal(yn.Value) {
+				if !xn.Value().Equal(yn.Value()) {
 					return false
 				}
 			case x.Prob == nil || y.Prob == nil || exprKey(x.Prob) != exprKey(y.Prob):
@@ -368,7 +368,7 @@ func (o *chanceOutcomes) same(p *chanceOutcomes) bool {
 func exprKey(e tree.Expr) string {
 	switch x := e.(type) {
 	case *tree.Number:
-		return x.Value.String()
+		return x.Value().String()
 	case *tree.Name:
 		return x.Name
 	case *tree.Unary:

@@ -27,7 +27,7 @@ import (
 // what is wrong and where, as for a model's text.
 func ParseExpr(text string, at tree.Pos) (tree.Expr, tree.Diagnostics) {
 	var ds tree.Diagnostics
-	lx := lexLine(text, at.Line, at.Col, &ds)
+	lx := lexLine(text, int(at.Line), int(at.Col), &ds)
 	if lx.lexErr || lx.noParse {
 		for i, d := range ds {
 			if strings.HasPrefix(d.Summary, "the line is too long") {
@@ -41,7 +41,7 @@ func ParseExpr(text string, at tree.Pos) (tree.Expr, tree.Diagnostics) {
 		ds.Add(at, "write a number, the name of an input or a calculation", "the calculation is empty")
 		return nil, ds
 	}
-	c := &cursor{toks: lx.toks, eof: lexer.EOFToken(lexer.Position{Line: at.Line, Column: lx.endCol})}
+	c := &cursor{toks: lx.toks, eof: lexer.EOFToken(lexer.Position{Line: int(at.Line), Column: lx.endCol})}
 	e, err := exprOn(c)
 	if err == nil && c.i != len(c.toks) {
 		err = unexpected(c.Peek(), "")

@@ -53,5 +53,6 @@ func (b *builder) riskLine(l *srcLine) {
 		b.errAt(at, tokWidth(l.lx, amount), "a risk tolerance is a positive amount of money", "a risk tolerance of 0 means no gamble is ever worth taking; give a positive amount")
 		return
 	}
-	b.m.RiskTolerance = &tree.Number{At: at, Value: v, Text: amount.Value}
+	n := tree.WrittenDecimal(at, v, amount.Value)
+	b.m.RiskTolerance = &n
 }

@@ -19,8 +19,8 @@ func TestRiskLine(t *testing.T) {
 		m := load(t, c.src)
 		switch {
 		case c.want == "" && m.RiskTolerance != nil:
-			t.Errorf("%q: risk tolerance %v, want none", c.src, m.RiskTolerance.Value)
-		case c.want != "" && (m.RiskTolerance == nil || !m.RiskTolerance.Value.Equal(dec(c.want))):
+			t.Errorf("%q: risk tolerance %v, want none", c.src, m.RiskTolerance.Value())
+		case c.want != "" && (m.RiskTolerance == nil || !m.RiskTolerance.Value().Equal(dec(c.want))):
 			t.Errorf("%q: risk tolerance %v, want %s", c.src, m.RiskTolerance, c.want)
 		}
 	}

@@ -81,7 +81,7 @@ func scan(src []byte) []*srcLine {
 		l := &srcLine{num: num, indent: n, tab: tabAt >= 0}
 		switch {
 		case l.tab && firstTab == nil:
-			l.diags.Add(tree.Pos{Line: num, Col: tabAt + 1},
+			l.diags.Add(tree.At(num, tabAt+1),
 				"indent with spaces only (two per level is usual); most editors can be set to insert spaces for the Tab key",
 				"tab character in the indentation")
 			l.diags[len(l.diags)-1].Len = 1
@@ -126,7 +126,7 @@ func fillLen(src []byte, ds tree.Diagnostics) {
 		if lines == nil {
 			lines = tree.SplitLines(src)
 		}
-		if d.Pos.Line > len(lines) {
+		if int(d.Pos.Line) > len(lines) {
 			continue
 		}
 		raw := lines[d.Pos.Line-1]
@@ -135,9 +135,9 @@ func fillLen(src []byte, ds tree.Diagnostics) {
 			n++
 		}
 		var scratch tree.Diagnostics
-		lx := lexLine(string(raw[n:]), d.Pos.Line, n+1, &scratch)
+		lx := lexLine(string(raw[n:]), int(d.Pos.Line), n+1, &scratch)
 		for j, t := range lx.toks {
-			if t.Pos.Column != d.Pos.Col {
+			if t.Pos.Column != int(d.Pos.Col) {
 				continue
 			}
 			d.Len = lx.width[j]

@@ -63,7 +63,7 @@ func (b *builder) reportStrays(f *frame, ss []strayItem) {
 	for _, s := range ss {
 		sibling := s.up != nil && s.up.kind == fNode && takes(s.up.node, s.prob) && (s.afterNode || before == 1 && !f.hasNode)
 		nephew := s.afterNode && child != nil && child.Kind != kindUse && takes(child, s.prob) &&
-			len(child.Branches) > 0 && child.Branches[0].Pos.Col > s.indent+1
+			len(child.Branches) > 0 && int(child.Branches[0].Pos.Col) > s.indent+1
 		what := fmt.Sprintf("branch %q", s.label)
 		switch {
 		case sibling && nephew:

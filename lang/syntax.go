@@ -174,7 +174,7 @@ func syntaxError(err error, k lineKind, role itemRole, lx lexed) tree.Diagnostic
 	case errors.As(err, &ute):
 	case errors.As(err, &perr):
 		p := perr.Position()
-		d.Pos = tree.Pos{Line: p.Line, Col: p.Column}
+		d.Pos = tree.At(p.Line, p.Column)
 		d.Summary = perr.Message()
 		return d
 	default:
@@ -184,10 +184,10 @@ func syntaxError(err error, k lineKind, role itemRole, lx lexed) tree.Diagnostic
 	t := ute.Unexpected
 	idx := tokenIndex(lx, t)
 	if t.EOF() {
-		d.Pos = tree.Pos{Line: t.Pos.Line, Col: lx.endCol}
+		d.Pos = tree.At(t.Pos.Line, lx.endCol)
 		d.Len = 1
 	} else {
-		d.Pos = tree.Pos{Line: t.Pos.Line, Col: t.Pos.Column}
+		d.Pos = tree.At(t.Pos.Line, t.Pos.Column)
 		if idx >= 0 {
 			d.Len = lx.width[idx]
 		}

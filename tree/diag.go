@@ -4,14 +4,25 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"math"
 	"sort"
 	"strings"
 )
 
 // Pos is a position in a source file: 1-based line and column (in
 // characters). The zero Pos means "no position", as for a model built in Go.
+// Both are 32-bit, as every node and branch of a model holds one (see At).
 type Pos struct {
-	Line, Col int
+	Line, Col int32
+}
+
+// At makes the position of line and column. A line or column past
+// math.MaxInt32, which only a source of 2 GiB or more can have, is held as
+// math.MaxInt32 rather than wrapping around.
+func At(line, col int) Pos { return Pos{Line: clamp32(line), Col: clamp32(col)} }
+
+func clamp32(n int) int32 {
+	return int32(min(max(n, math.MinInt32), math.MaxInt32))
 }
 
 // IsValid reports whether the position points into a source.
@@ -181,11 +192,11 @@ func (ds Diagnostics) Print(w io.Writer, file string, src []byte) {
 			fmt.Fprintf(w, "%s:", file)
 		}
 		fmt.Fprintln(w, d.Error())
-		if d.Pos.IsValid() && d.Pos.Line <= len(lines) {
-			if cachedLine != d.Pos.Line {
-				cached, cachedLine = []rune(string(lines[d.Pos.Line-1])), d.Pos.Line
+		if line := int(d.Pos.Line); d.Pos.IsValid() && line <= len(lines) {
+			if cachedLine != line {
+				cached, cachedLine = []rune(string(lines[line-1])), line
 			}
-			snippet, caret := excerpt(cached, max(d.Pos.Col-1, 0), min(max(d.Len, 1), snippetWidth/2))
+			snippet, caret := excerpt(cached, max(int(d.Pos.Col)-1, 0), min(max(d.Len, 1), snippetWidth/2))
 			fmt.Fprintf(w, "    %s\n    %s\n", snippet, caret)
 		}
 		if d.Hint != "" {

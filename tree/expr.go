@@ -1,6 +1,7 @@
 package tree
 
 import (
+	"strconv"
 	"strings"
 
 	"github.com/shopspring/decimal"
@@ -16,11 +17,162 @@ type Expr interface {
 	String() string
 }
 
-// Number is a literal. Percent literals are stored already divided by 100.
+// Number is a literal: a value, and the text it was written as, if any
+// ("55%", "1_150_000"). Percent literals are held already divided by 100.
+//
+// A large model holds a number or two on every branch, so a Number is
+// kept small: the value as a coefficient and a power of ten in machine
+// words, and the text only when it cannot be told from them (the usual
+// forms, such as 55%, 0.50 and 1_150_000, can). A coefficient too large
+// for 64 bits is kept as a decimal on the side.
 type Number struct {
-	At    Pos
-	Value decimal.Decimal
-	Text  string // as written, e.g. "55%" or "1_150_000"; may be empty
+	At   Pos
+	c    int64      // the value is c × 10^e, unless ext holds a big one
+	ext  *numberExt // nil for most numbers
+	e    int32
+	form numberForm
+}
+
+// numberExt is what few numbers need: a value too large for Number.c, or
+// text that the value does not give back.
+type numberExt struct {
+	big  *decimal.Decimal
+	text string
+}
+
+// numberForm says how a number was written, so that its text can be given
+// back from its value.
+type numberForm uint8
+
+const (
+	formWritten numberForm = 1 << iota // read from text: String gives it back
+	formPercent                        // written with %: the digits are c × 10^(e+2)
+	formGrouped                        // written with _ between groups of three digits
+)
+
+// NumberOf makes a number of value v, with no text (String gives the value
+// itself).
+func NumberOf(at Pos, v decimal.Decimal) *Number {
+	n := &Number{At: at}
+	n.set(v)
+	return n
+}
+
+func (n *Number) set(v decimal.Decimal) {
+	if v.NumDigits() <= 18 {
+		n.c, n.e = v.CoefficientInt64(), v.Exponent()
+		return
+	}
+	n.ext = &numberExt{big: &v}
+}
+
+// WrittenNumber makes the number written as text at at, whose value is
+// c × 10^e (a percent already divided by 100).
+func WrittenNumber(at Pos, c int64, e int32, text string) Number {
+	if c <= -maxSmall || c >= maxSmall {
+		return WrittenDecimal(at, decimal.New(c, e), text)
+	}
+	n := Number{At: at, c: c, e: e, form: formWritten}
+	n.keepText(text)
+	return n
+}
+
+// maxSmall bounds the coefficients held in machine words: 18 digits, so
+// that sums of two never overflow (the compiled form counts on it).
+const maxSmall = 1_000_000_000_000_000_000
+
+// WrittenDecimal is WrittenNumber for a value of any size.
+func WrittenDecimal(at Pos, v decimal.Decimal, text string) Number {
+	n := Number{At: at, form: formWritten}
+	n.set(v)
+	n.keepText(text)
+	return n
+}
+
+// keepText records how text writes the value: as flags when the text can
+// be made again from them, as the text itself otherwise.
+func (n *Number) keepText(text string) {
+	if strings.HasSuffix(text, "%") {
+		n.form |= formPercent
+	}
+	if strings.Contains(text, "_") {
+		n.form |= formGrouped
+	}
+	var buf [64]byte
+	if n.ext == nil && len(text) < len(buf)-8 && string(n.appendWritten(buf[:0])) == text {
+		return
+	}
+	if n.ext == nil {
+		n.ext = &numberExt{}
+	}
+	n.ext.text = text
+}
+
+// appendWritten writes the number as its flags say it was written: digits
+// with a decimal point, _ between groups of three in the whole part when
+// grouped, % when a percent.
+func (n *Number) appendWritten(b []byte) []byte {
+	e := n.e
+	if n.form&formPercent != 0 {
+		e += 2
+	}
+	if n.c < 0 || e > 0 {
+		return append(b, '?') // never written so: keepText keeps the text
+	}
+	var dbuf [20]byte
+	digits := strconv.AppendInt(dbuf[:0], n.c, 10)
+	places := int(-e)
+	whole := digits
+	var frac []byte
+	if places > 0 {
+		for len(digits) <= places {
+			digits = append([]byte{'0'}, digits...)
+		}
+		whole, frac = digits[:len(digits)-places], digits[len(digits)-places:]
+	}
+	for i, d := range whole {
+		if i > 0 && n.form&formGrouped != 0 && (len(whole)-i)%3 == 0 {
+			b = append(b, '_')
+		}
+		b = append(b, d)
+	}
+	if len(frac) > 0 {
+		b = append(b, '.')
+		b = append(b, frac...)
+	}
+	if n.form&formPercent != 0 {
+		b = append(b, '%')
+	}
+	return b
+}
+
+// Value is the number's value.
+func (n *Number) Value() decimal.Decimal {
+	if n.ext != nil && n.ext.big != nil {
+		return *n.ext.big
+	}
+	return decimal.New(n.c, n.e)
+}
+
+// Small returns the value as c × 10^e, without making a decimal, when the
+// coefficient has at most 18 digits (ok false otherwise: Value has it).
+func (n *Number) Small() (c int64, e int32, ok bool) {
+	if n.ext != nil && n.ext.big != nil {
+		return 0, 0, false
+	}
+	return n.c, n.e, true
+}
+
+// Text is the number as written ("55%", "1_150_000"), or "" for a number
+// that was not read from text.
+func (n *Number) Text() string {
+	switch {
+	case n.form&formWritten == 0:
+		return ""
+	case n.ext != nil && n.ext.text != "":
+		return n.ext.text
+	}
+	return string(n.appendWritten(nil))
 }
 
 // Name refers to a parameter (`let`).
@@ -57,10 +209,10 @@ func (e *Binary) Pos() Pos { return e.At }
 func (e *Call) Pos() Pos   { return e.At }
 
 func (e *Number) String() string {
-	if e.Text != "" {
-		return e.Text
+	if t := e.Text(); t != "" {
+		return t
 	}
-	return e.Value.String()
+	return e.Value().String()
 }
 func (e *Name) String() string  { return e.Name }
 func (e *Unary) String() string { return string(e.Op) + e.X.String() }

@@ -462,7 +462,7 @@ func (m *Model) Clone() *Model {
 // Num for a number or Ref for an input (a `let`).
 
 // Num wraps a decimal as an expression.
-func Num(d decimal.Decimal) Expr { return &Number{Value: d} }
+func Num(d decimal.Decimal) Expr { return NumberOf(Pos{}, d) }
 
 // Ref refers to the input (Param) with that name.
 func Ref(name string) Expr { return &Name{Name: name} }

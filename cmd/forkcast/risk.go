@@ -30,7 +30,8 @@ func riskTolerance(c *cli.Context, l *loaded) (*decimal.Decimal, error) {
 		return &r, nil
 	}
 	if rt := l.Model.RiskTolerance; rt != nil {
-		return &rt.Value, nil
+		v := rt.Value()
+		return &v, nil
 	}
 	return nil, nil
 }
