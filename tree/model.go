@@ -298,7 +298,8 @@ func SplitBranches(rule SplitRule, body *Node) []*Branch {
 			next = Clone(body)
 		}
 		p := decimal.RequireFromString(strings.TrimSuffix(probs[i], "%")).Shift(-2)
-		out[i] = &Branch{Label: labels[i], Prob: &Number{Value: p, Text: probs[i]}, Node: next}
+		prob := WrittenDecimal(Pos{}, p, probs[i])
+		out[i] = &Branch{Label: labels[i], Prob: &prob, Node: next}
 	}
 	return out
 }
