@@ -300,9 +300,7 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 			if v < 0 {
 				loss++
 			}
-			if obj == tree.Min {
-				vs[i] = 0 - v // a cost; 0 − v, not −v, so that no −0 is shown
-			}
+			vs[i] = obj.FigureFloat(v)
 		}
 		sample, err := pdist.NewSample(vs)
 		if err != nil {

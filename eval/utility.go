@@ -165,10 +165,7 @@ func (rs *RiskSolution) Differences() []*Solved {
 }
 
 func (rs *RiskSolution) figure(net float64) decimal.Decimal {
-	if rs.figures == tree.Min {
-		net = -net
-	}
-	return roundSig(net)
+	return roundSig(rs.figures.FigureFloat(net))
 }
 
 // roundSig is x to RiskDigits significant digits, as a decimal.

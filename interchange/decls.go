@@ -314,17 +314,12 @@ func (r *reader) likelihood() *tree.Likelihood {
 func (r *reader) finish() {
 	m := r.m
 	for _, c := range r.cash {
-		if m.Objective == tree.Min {
-			c.b.Cost = plus(c.b.Cost, c.x)
-		} else {
-			c.b.Gain = plus(c.b.Gain, c.x)
-		}
+		add := m.Objective.CashOf(c.x)
+		c.b.Gain, c.b.Cost = plus(c.b.Gain, add.Gain), plus(c.b.Cost, add.Cost)
 	}
-	if m.Objective == tree.Min {
-		// An end node's payoff is held as net value.
-		for _, n := range r.payoffs {
-			n.Payoff = negate(n.Payoff)
-		}
+	// An end node's payoff is held as net value (written as a figure).
+	for _, n := range r.payoffs {
+		n.Payoff = m.Objective.FigureExpr(n.Payoff)
 	}
 	if len(r.names) == 0 {
 		return

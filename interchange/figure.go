@@ -259,16 +259,3 @@ func plus(x, y tree.Expr) tree.Expr {
 	}
 	return &tree.Binary{At: x.Pos(), Op: '+', X: x, Y: y}
 }
-
-// negate is -x, written simply where it can be.
-func negate(x tree.Expr) tree.Expr {
-	switch e := x.(type) {
-	case *tree.Number:
-		return tree.NumberOf(e.At, e.Value().Neg())
-	case *tree.Unary:
-		if e.Op == '-' {
-			return e.X
-		}
-	}
-	return &tree.Unary{At: x.Pos(), Op: '-', X: x}
-}

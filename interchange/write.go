@@ -559,11 +559,7 @@ func (j *writer) node(n *tree.Node, i int) bool {
 	}
 	if n.Payoff != nil {
 		// Held as net value; written in the objective's terms.
-		p := n.Payoff
-		if obj == tree.Min {
-			p = negate(p)
-		}
-		j.fig("payoff", p)
+		j.fig("payoff", obj.FigureExpr(n.Payoff))
 	}
 	if sv != nil {
 		j.key("value")

@@ -262,14 +262,13 @@ func (d *drawer) runnerUp(s *eval.Solved) (kid *eval.Solved, ok bool) {
 	if s.Node.Kind != tree.KindDecision || len(s.Node.Branches) < 2 || c < 0 {
 		return nil, false
 	}
-	min := d.m.Objective == tree.Min
+	obj := d.m.Objective
 	var best decimal.Decimal
 	for _, k := range s.Kids() {
 		if k.Index() == int(c) {
 			continue
 		}
-		v := d.optionValue(k)
-		if kid == nil || (!min && v.GreaterThan(best)) || (min && v.LessThan(best)) {
+		if v := obj.Net(d.optionValue(k)); kid == nil || v.GreaterThan(best) {
 			kid, best = k, v
 		}
 	}
@@ -832,15 +831,19 @@ func Cash(c decimal.Decimal, obj tree.Objective, currency string) string {
 	if c.IsZero() {
 		return ""
 	}
-	gain := c.IsPositive()
-	if obj == tree.Min {
-		gain = !gain
+	return CashWith(c, obj, func(a decimal.Decimal) string { return Money(a, currency) })
+}
+
+// CashWith is Cash with the amount written by format.
+func CashWith(c decimal.Decimal, obj tree.Objective, format func(decimal.Decimal) string) string {
+	if c.IsZero() {
+		return ""
 	}
 	word := "cost "
-	if gain {
+	if obj.Net(c).IsPositive() {
 		word = "gain "
 	}
-	return word + Money(c.Abs(), currency)
+	return word + format(c.Abs())
 }
 
 func plural(n int, one, many string) string {

@@ -91,10 +91,7 @@ func showInput(x decimal.Decimal, prob bool) string {
 
 // gain is how much better value is than fixed, in the objective's terms.
 func gain(obj tree.Objective, value, fixed decimal.Decimal) decimal.Decimal {
-	if obj == tree.Min {
-		return fixed.Sub(value)
-	}
-	return value.Sub(fixed)
+	return obj.Net(value).Sub(obj.Net(fixed))
 }
 
 // WriteText writes the analysis: a table of the inputs by swing, where the

@@ -97,17 +97,7 @@ func (p printer) money(d decimal.Decimal) string { return render.Money(d, p.cur)
 
 // cash shows a branch's cash flow as people write it: gain or cost.
 func (p printer) cash(c decimal.Decimal) string {
-	if c.IsZero() {
-		return ""
-	}
-	gain := c.IsPositive()
-	if p.m.Objective == tree.Min {
-		gain = !gain
-	}
-	if gain {
-		return "gain " + render.Amount(c.Abs(), p.cur)
-	}
-	return "cost " + render.Amount(c.Abs(), p.cur)
+	return render.CashWith(c, p.m.Objective, func(a decimal.Decimal) string { return render.Amount(a, p.cur) })
 }
 
 // policy lists the decisions the optimal policy reaches, in model order,

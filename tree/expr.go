@@ -243,3 +243,17 @@ func Names(e Expr, f func(*Name)) {
 		}
 	}
 }
+
+// Negate is −x as simply as it can be written: a number negated, a
+// negation undone, anything else wrapped.
+func Negate(x Expr) Expr {
+	switch e := x.(type) {
+	case *Number:
+		return NumberOf(e.At, e.Value().Neg())
+	case *Unary:
+		if e.Op == '-' {
+			return e.X
+		}
+	}
+	return &Unary{At: x.Pos(), Op: '-', X: x}
+}

@@ -55,6 +55,32 @@ func (o Objective) Figure(net decimal.Decimal) decimal.Decimal {
 // under Min) into net value.
 func (o Objective) Net(figure decimal.Decimal) decimal.Decimal { return o.Figure(figure) }
 
+// FigureFloat is Figure in float64 (simulation, utility).
+func (o Objective) FigureFloat(net float64) float64 {
+	if o == Min {
+		return 0 - net // not -net: no −0 to show
+	}
+	return net
+}
+
+// FigureExpr is an expression of net value written in the objective's
+// terms (as the JSON interchange writes figures).
+func (o Objective) FigureExpr(net Expr) Expr {
+	if o == Min && net != nil {
+		return Negate(net)
+	}
+	return net
+}
+
+// CashOf is an amount written in the objective's terms put on a branch: a
+// gain under Max, a cost under Min.
+func (o Objective) CashOf(x Expr) Cash {
+	if o == Min {
+		return Cost(x)
+	}
+	return Gain(x)
+}
+
 // Kind is the kind of a node.
 type Kind uint8
 
