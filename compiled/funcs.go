@@ -119,3 +119,23 @@ func argError(name string, fn function, n int) string {
 	}
 	return fmt.Sprintf("%s takes %s arguments, not %d: write %s", name, want, n, fn.usage)
 }
+
+// Distribution builds the distribution the language writes as
+// name(args...) — pert, triangular, uniform, normal, lognormal or discrete
+// — from exact arguments, checked as in a model. It serves readers of
+// other formats (a register read from a spreadsheet) that write the same
+// distributions.
+func Distribution(name string, args []decimal.Decimal) (dist.Distribution, error) {
+	fn, ok := functions[name]
+	if !ok {
+		return nil, fmt.Errorf("unknown distribution %q: the distributions are %s", name, functionNames())
+	}
+	if n := len(args); n < fn.min || (fn.max >= 0 && n > fn.max) {
+		return nil, fmt.Errorf("%s", argError(name, fn, n))
+	}
+	return fn.make(args)
+}
+
+// DistributionUsage is how the distribution called name is written, such
+// as "pert(LOW, LIKELY, HIGH)", or "" when there is none of that name.
+func DistributionUsage(name string) string { return functions[name].usage }

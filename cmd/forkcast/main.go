@@ -87,6 +87,7 @@ func commands() []*cli.Command {
 		sweepCommand(),
 		profileCommand(),
 		simulateCommand(),
+		registerCommand(),
 		drawCommand(),
 		examplesCommand(),
 	}
@@ -231,6 +232,21 @@ func reorder(args []string, cmds []*cli.Command) ([]string, error) {
 	}
 	if cmd == nil {
 		return args, nil
+	}
+	// A subcommand named right after its command (`register import
+	// FILE`) takes the place of the command: its own flags are moved.
+	var sub *cli.Command
+	for _, s := range cmd.Subcommands {
+		if s.HasName(args[2]) {
+			sub = s
+		}
+	}
+	if sub != nil {
+		inner, err := reorder(append([]string{args[0] + " " + args[1]}, args[2:]...), []*cli.Command{sub})
+		if err != nil {
+			return nil, err
+		}
+		return append([]string{args[0], args[1]}, inner[1:]...), nil
 	}
 	takesValue := map[string]bool{}
 	for _, f := range cmd.Flags {
