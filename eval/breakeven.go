@@ -1110,14 +1110,18 @@ func (s *search) between(a, b *sample) ([]Switch, error) {
 	return out, nil
 }
 
-// narrow closes in on the switch between a and b (best options A and B):
-// it halves the interval until both options are straight lines across it
-// (a quarter point checked too, so a curve cannot pass for a line), then
-// solves their crossing exactly. It returns the switch, or a sample in
-// between where a third option is best (split there and look on both
-// sides).
+// narrow closes in on the switch between a and b (best options A and B).
+// Midpoint steps check whether both options are straight lines across the
+// bracket (a quarter point checked too, so a curve cannot pass for a line);
+// if they are, their crossing is solved exactly. Between them, secant
+// steps (where the chords of the two options cross, written with as few
+// decimal places as keep it inside) close in fast on a curved crossing; a
+// secant step that does not halve the bracket is followed by a midpoint
+// one. It returns the switch, or a sample in between where a third option
+// is best (split there and look on both sides).
 func (s *search) narrow(a, b *sample) (*Switch, *sample, error) {
 	A, B := a.best, b.best
+	secant := false
 	for {
 		if a.best == b.best {
 			return nil, nil, nil
@@ -1131,14 +1135,25 @@ func (s *search) narrow(a, b *sample) (*Switch, *sample, error) {
 			}
 			return &Switch{At: mid, Below: A, Above: B, Values: s.figures(m.values)}, nil, nil
 		}
-		m, err := s.sample(mid)
+		x, atMid := mid, true
+		if secant {
+			if xs, ok := chordCrossing(a, b, A, B); ok {
+				x, atMid = xs, false
+			}
+		}
+		m, err := s.sample(x)
 		if err != nil {
 			return nil, nil, err
 		}
 		if m.best != A && m.best != B {
 			return nil, m, nil
 		}
-		if straight(a, m, b, A, B) && yExact(a, m, b) {
+		if !atMid && m.t[A].Equal(m.t[B]) {
+			// The options are equal at a point the search landed on: an
+			// exact switch, whatever the shape of the curves.
+			return &Switch{At: x, Exact: true, Fraction: x.Rat(), Below: A, Above: B, Values: s.figures(m.values)}, nil, nil
+		}
+		if atMid && straight(a, m, b, A, B) && yExact(a, m, b) {
 			q, err := s.sample(a.x.Add(mid).Mul(half).Round(compiled.DivisionScale))
 			if err != nil {
 				return nil, nil, err
@@ -1157,7 +1172,33 @@ func (s *search) narrow(a, b *sample) (*Switch, *sample, error) {
 		} else {
 			b = m
 		}
+		// Secant while it halves the bracket, a midpoint step otherwise.
+		secant = !secant || b.x.Sub(a.x).Mul(two).LessThanOrEqual(width)
 	}
+}
+
+// chordCrossing is where the chords of options A and B between a and b
+// cross, written with the fewest decimal places that keep it strictly
+// inside (a, b) and within a thousandth of the bracket of the exact
+// crossing; ok is false when there is no such point.
+func chordCrossing(a, b *sample, A, B int) (decimal.Decimal, bool) {
+	f := y(a, b)
+	da := f(a, A).Sub(f(a, B))
+	db := f(b, A).Sub(f(b, B))
+	den := da.Sub(db)
+	if den.Sign() <= 0 {
+		return decimal.Zero, false
+	}
+	width := b.x.Sub(a.x)
+	x := a.x.Add(width.Mul(da).DivRound(den, compiled.DivisionScale))
+	tol := width.Div(decimal.NewFromInt(1000))
+	for places := int32(0); places <= compiled.DivisionScale; places++ {
+		r := x.Round(places)
+		if r.GreaterThan(a.x) && r.LessThan(b.x) && r.Sub(x).Abs().LessThanOrEqual(tol) {
+			return r, true
+		}
+	}
+	return decimal.Zero, false
 }
 
 // crossing solves where options A and B, straight lines between a and b,
