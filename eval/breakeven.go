@@ -823,13 +823,9 @@ func (s *search) run(opts BreakevenOptions) (*Breakeven, error) {
 	if be.Low.Equal(be.High) {
 		n = 0
 	}
-	width := be.High.Sub(be.Low)
 	grid := make([]*sample, 0, n+1)
 	for i := 0; i <= n; i++ {
-		x := be.High
-		if i < n {
-			x = be.Low.Add(width.Mul(decimal.NewFromInt(int64(i))).DivRound(decimal.NewFromInt(int64(n)), compiled.DivisionScale))
-		}
+		x := gridPoint(be.Low, be.High, i, n)
 		sm, err := s.sample(x)
 		if err != nil {
 			return nil, err

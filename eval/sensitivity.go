@@ -325,7 +325,7 @@ func (a *analysis) curve(s *search, is *InputSensitivity, points, vnode int, bas
 	}
 	width := is.High.Sub(is.Low)
 	for k := 1; k < points && width.IsPositive(); k++ {
-		add(is.Low.Add(width.Mul(decimal.NewFromInt(int64(k))).DivRound(decimal.NewFromInt(int64(points)), compiled.DivisionScale)), decimal.Zero, false)
+		add(gridPoint(is.Low, is.High, k, points), decimal.Zero, false)
 	}
 	sort.Slice(ps, func(i, j int) bool { return ps[i].x.LessThan(ps[j].x) })
 	for _, p := range ps {

@@ -186,11 +186,7 @@ func (a *analysis) axis(s *search, vr VaryRange, steps int) (SweepAxis, error) {
 		steps = 0
 	}
 	for k := 0; k <= steps; k++ {
-		x := be.High
-		if k < steps {
-			x = be.Low.Add(width.Mul(decimal.NewFromInt(int64(k))).DivRound(decimal.NewFromInt(int64(steps)), compiled.DivisionScale))
-		}
-		ax.Values = append(ax.Values, x)
+		ax.Values = append(ax.Values, gridPoint(be.Low, be.High, k, steps))
 	}
 	a.notes = append(a.notes, be.Notes...)
 	be.Notes = nil

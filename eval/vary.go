@@ -243,3 +243,20 @@ func (a *analysis) figureOf(r *compiled.Rollback, i int) (decimal.Decimal, bool)
 	v, ok := r.Value(i)
 	return a.obj.Figure(v), ok
 }
+
+// gridPoint is the k-th of n+1 evenly spaced values from lo to hi: exact
+// when that has few decimal places, else rounded to the places of lo and
+// hi plus the digits of n plus two. The rounding moves a point by at most a
+// two-hundredth of a step, so the grid stays strictly ascending, and keeps
+// the figures short: every point is solved exactly, and a figure of fifty
+// decimal places costs the exact arithmetic far more than one of four.
+func gridPoint(lo, hi decimal.Decimal, k, n int) decimal.Decimal {
+	switch {
+	case k <= 0:
+		return lo
+	case k >= n:
+		return hi
+	}
+	places := max(-lo.Exponent(), -hi.Exponent(), 0) + int32(len(fmt.Sprint(n))) + 2
+	return lo.Add(hi.Sub(lo).Mul(decimal.NewFromInt(int64(k))).DivRound(decimal.NewFromInt(int64(n)), places))
+}
