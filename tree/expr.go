@@ -1,6 +1,7 @@
 package tree
 
 import (
+	"bytes"
 	"strconv"
 	"strings"
 
@@ -67,10 +68,11 @@ func (n *Number) set(v decimal.Decimal) {
 }
 
 // WrittenNumber makes the number written as text at at, whose value is
-// c × 10^e (a percent already divided by 100).
-func WrittenNumber(at Pos, c int64, e int32, text string) Number {
+// c × 10^e (a percent already divided by 100). The text is copied only
+// when the value and its form do not give it back.
+func WrittenNumber(at Pos, c int64, e int32, text []byte) Number {
 	if c <= -maxSmall || c >= maxSmall {
-		return WrittenDecimal(at, decimal.New(c, e), text)
+		return WrittenDecimal(at, decimal.New(c, e), string(text))
 	}
 	n := Number{At: at, c: c, e: e, form: formWritten}
 	n.keepText(text)
@@ -85,27 +87,27 @@ const maxSmall = 1_000_000_000_000_000_000
 func WrittenDecimal(at Pos, v decimal.Decimal, text string) Number {
 	n := Number{At: at, form: formWritten}
 	n.set(v)
-	n.keepText(text)
+	n.keepText([]byte(text))
 	return n
 }
 
 // keepText records how text writes the value: as flags when the text can
 // be made again from them, as the text itself otherwise.
-func (n *Number) keepText(text string) {
-	if strings.HasSuffix(text, "%") {
+func (n *Number) keepText(text []byte) {
+	if bytes.HasSuffix(text, []byte("%")) {
 		n.form |= formPercent
 	}
-	if strings.Contains(text, "_") {
+	if bytes.IndexByte(text, '_') >= 0 {
 		n.form |= formGrouped
 	}
 	var buf [64]byte
-	if n.ext == nil && len(text) < len(buf)-8 && string(n.appendWritten(buf[:0])) == text {
+	if n.ext == nil && len(text) < len(buf)-8 && bytes.Equal(n.appendWritten(buf[:0]), text) {
 		return
 	}
 	if n.ext == nil {
 		n.ext = &numberExt{}
 	}
-	n.ext.text = text
+	n.ext.text = string(text)
 }
 
 // appendWritten writes the number as its flags say it was written: digits
@@ -122,23 +124,25 @@ func (n *Number) appendWritten(b []byte) []byte {
 	var dbuf [20]byte
 	digits := strconv.AppendInt(dbuf[:0], n.c, 10)
 	places := int(-e)
-	whole := digits
-	var frac []byte
-	if places > 0 {
-		for len(digits) <= places {
-			digits = append([]byte{'0'}, digits...)
+	if places >= len(digits) {
+		// 0.05: a zero before the point, zeros after it.
+		b = append(b, '0', '.')
+		for range places - len(digits) {
+			b = append(b, '0')
 		}
-		whole, frac = digits[:len(digits)-places], digits[len(digits)-places:]
-	}
-	for i, d := range whole {
-		if i > 0 && n.form&formGrouped != 0 && (len(whole)-i)%3 == 0 {
-			b = append(b, '_')
+		b = append(b, digits...)
+	} else {
+		whole := digits[:len(digits)-places]
+		for i, d := range whole {
+			if i > 0 && n.form&formGrouped != 0 && (len(whole)-i)%3 == 0 {
+				b = append(b, '_')
+			}
+			b = append(b, d)
 		}
-		b = append(b, d)
-	}
-	if len(frac) > 0 {
-		b = append(b, '.')
-		b = append(b, frac...)
+		if places > 0 {
+			b = append(b, '.')
+			b = append(b, digits[len(digits)-places:]...)
+		}
 	}
 	if n.form&formPercent != 0 {
 		b = append(b, '%')

@@ -35,7 +35,7 @@ func TestWrittenNumber(t *testing.T) {
 		{"rest", 0, 0, "0", true},
 	}
 	for _, tt := range tests {
-		n := WrittenNumber(Pos{Line: 3, Col: 4}, tt.c, tt.e, tt.text)
+		n := WrittenNumber(Pos{Line: 3, Col: 4}, tt.c, tt.e, []byte(tt.text))
 		if got := n.Text(); got != tt.text {
 			t.Errorf("%q: text %q", tt.text, got)
 		}
@@ -71,7 +71,7 @@ func TestNumberOfAnySize(t *testing.T) {
 		}
 	}
 	// A written coefficient of 19 digits is held as a decimal.
-	n := WrittenNumber(Pos{}, 1_000_000_000_000_000_001, -2, "10_000_000_000_000_000.01")
+	n := WrittenNumber(Pos{}, 1_000_000_000_000_000_001, -2, []byte("10_000_000_000_000_000.01"))
 	if _, _, ok := n.Small(); ok || n.Text() != "10_000_000_000_000_000.01" || n.Value().String() != "10000000000000000.01" {
 		t.Errorf("19 digits: %s %q", n.Value(), n.Text())
 	}
