@@ -46,10 +46,13 @@ type frame struct {
 	detached    bool        // not part of the model (placed wrongly, reported)
 	split       bool        // a three-point chance node: it takes one node, its branches are made
 	silent      bool        // under a line that could not be read: no structure checks
+	// kids are the branches of a node's frame while it is open: they go
+	// to the node in one piece when it closes (closeFrame).
+	kids []*tree.Branch
 }
 
-func brokenFrame(owner *subtreeDef) *frame {
-	return &frame{kind: fBroken, silent: true, what: "this line", owner: owner}
+func (b *builder) brokenFrame(owner *subtreeDef) *frame {
+	return b.newFrame(frame{kind: fBroken, silent: true, what: "this line", owner: owner})
 }
 
 // desc is how messages name the line: its what, or noun, name and quoted
@@ -104,6 +107,11 @@ type pendingCash struct {
 
 type builder struct {
 	limit    int
+	free     []*frame // closed frames, for reuse
+	alloc    allocator
+	noFast   bool  // read every line with participle (to test the fast path against it)
+	fastRead []int // the lines read by the fast path, when tracing (tests)
+	trace    bool
 	m        *tree.Model
 	ds       tree.Diagnostics
 	stack    []*frame
@@ -173,13 +181,23 @@ func (b *builder) add(l *srcLine) {
 	if len(l.lx.toks) == 0 {
 		return
 	}
+	parent := b.enter(&l.lineHead)
+	b.push(&l.lineHead, parent, b.place(l, parent))
+}
+
+// enter closes the frames a line at h is not under, checks its
+// indentation against the frame it is under, and returns that frame (nil
+// at the top level).
+func (b *builder) enter(h *lineHead) *frame {
 	if b.firstLine == 0 {
-		b.firstLine = l.num
+		b.firstLine = h.num
 	}
-	w := l.indent
+	w := h.indent
 	for len(b.stack) > 0 && b.stack[len(b.stack)-1].indent >= w {
-		b.closeFrame(b.stack[len(b.stack)-1])
+		f := b.stack[len(b.stack)-1]
+		b.closeFrame(f)
 		b.stack = b.stack[:len(b.stack)-1]
+		b.free = append(b.free, f)
 	}
 	var parent *frame
 	if len(b.stack) > 0 {
@@ -187,25 +205,40 @@ func (b *builder) add(l *srcLine) {
 		switch {
 		case parent.childIndent < 0:
 			parent.childIndent = w
-		case parent.childIndent != w && !l.tab && !parent.silent:
+		case parent.childIndent != w && !h.tab && !parent.silent:
 			hint := fmt.Sprintf("line it up with %s on line %d (%s) or with %s on line %d (%s)",
 				parent.lastChild.desc(), parent.lastLine, spaces(parent.childIndent), parent.desc(), parent.line, spaces(parent.indent))
-			b.errAt(l.pos(), l.firstWidth(), hint, "the indentation (%s) does not line up with any line above", spaces(w))
+			b.errAt(h.pos(), h.firstWidth(), hint, "the indentation (%s) does not line up with any line above", spaces(w))
 		}
-	} else if w > 0 && !l.tab {
-		b.errAt(l.pos(), l.firstWidth(), "start top-level lines at the left edge; indent a line only to put it under the line above",
+	} else if w > 0 && !h.tab {
+		b.errAt(h.pos(), h.firstWidth(), "start top-level lines at the left edge; indent a line only to put it under the line above",
 			"this line is indented, but there is no line above it to belong to")
 	}
-	f := b.place(l, parent)
-	f.indent, f.childIndent, f.line = w, -1, l.num
-	if l.tab {
+	return parent
+}
+
+// under is the frame a line indented by w would be under, found without
+// closing anything.
+func (b *builder) under(w int) *frame {
+	for i := len(b.stack) - 1; i >= 0; i-- {
+		if b.stack[i].indent < w {
+			return b.stack[i]
+		}
+	}
+	return nil
+}
+
+// push opens f, the frame of the line at h, under parent.
+func (b *builder) push(h *lineHead, parent, f *frame) {
+	f.indent, f.childIndent, f.line = h.indent, -1, h.num
+	if h.tab {
 		// Its width is unknowable (a tab counts one), so the lines that
 		// seem to nest under it may not: check no structure there, the
 		// tab itself is reported.
 		f.silent = true
 	}
 	if parent != nil {
-		parent.lastChild, parent.lastLine = f, l.num
+		parent.lastChild, parent.lastLine = f, h.num
 		if parent.silent {
 			f.silent = true
 		}
@@ -214,6 +247,24 @@ func (b *builder) add(l *srcLine) {
 		}
 	}
 	b.stack = append(b.stack, f)
+}
+
+// newFrame returns a frame holding v, reusing one that was closed. A
+// closed frame is only looked at again as the last child of the frame
+// above it, for a message about the very line that closed it, before that
+// line's own frame is made (see enter).
+func (b *builder) newFrame(v frame) *frame {
+	if n := len(b.free); n > 0 {
+		f := b.free[n-1]
+		b.free = b.free[:n-1]
+		kids := f.kids[:0]
+		*f = v
+		f.kids = kids
+		return f
+	}
+	f := new(frame)
+	*f = v
+	return f
 }
 
 func spaces(n int) string {
@@ -259,7 +310,7 @@ func (b *builder) place(l *srcLine, parent *frame) *frame {
 		if !silent && !l.lx.lexErr {
 			b.unknownKeyword(l, parent)
 		}
-		return brokenFrame(owner)
+		return b.brokenFrame(owner)
 	case kStray:
 		if !silent && !l.lx.lexErr {
 			hint := "a line starts with a keyword (" + strings.Join(topKeywords, ", ") + ") or with a quoted label"
@@ -268,10 +319,10 @@ func (b *builder) place(l *srcLine, parent *frame) *frame {
 			}
 			b.errAt(l.pos(), l.firstWidth(), hint, "a line cannot start with %s", the(describe(first)))
 		}
-		return brokenFrame(owner)
+		return b.brokenFrame(owner)
 	case kRisk:
 		if silent {
-			return &frame{kind: fLeaf, what: "the risk line", owner: owner}
+			return b.newFrame(frame{kind: fLeaf, what: "the risk line", owner: owner})
 		}
 		return b.header(l, parent, false, "the risk tolerance line", func() { b.riskLine(l) })
 	}
@@ -279,12 +330,12 @@ func (b *builder) place(l *srcLine, parent *frame) *frame {
 		if parent != nil && parent.kind == fBranch && isNodeKind(l.kind) {
 			parent.hasNode = true
 		}
-		return brokenFrame(owner)
+		return b.brokenFrame(owner)
 	}
 	if silent {
 		// Read for its own mistakes, placed nowhere.
 		b.lower(l, parent, role, true)
-		return brokenFrame(owner)
+		return b.brokenFrame(owner)
 	}
 	return b.lower(l, parent, role, false)
 }
@@ -333,6 +384,7 @@ func (b *builder) bareLabel(l *srcLine, role itemRole) {
 	lx := lexed{toks: nt, width: nw, endCol: l.lx.endCol, lexErr: true, noParse: l.lx.noParse}
 	hadLexErr := l.lx.lexErr
 	l.lx, l.kind = lx, kItem
+	l.setHead()
 	l.ast, l.err = nil, nil
 	if !lx.noParse {
 		g, err := parseWith(getParsers().item, nt, lexer.Position{Line: l.num, Column: lx.endCol})
@@ -369,7 +421,7 @@ func (b *builder) unknownKeyword(l *srcLine, parent *frame) {
 }
 
 // topOnly reports a declaration that is indented; it returns false then.
-func (b *builder) topOnly(l *srcLine, parent *frame, what string) bool {
+func (b *builder) topOnly(l *lineHead, parent *frame, what string) bool {
 	if parent == nil {
 		return true
 	}
@@ -427,8 +479,8 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 			b.m.Objective = o
 		})
 	case *gLet:
-		if !quiet && !b.topOnly(l, parent, "a let") {
-			return brokenFrame(owner)
+		if !quiet && !b.topOnly(&l.lineHead, parent, "a let") {
+			return b.brokenFrame(owner)
 		}
 		p := &tree.Param{Name: g.Name.Value, Pos: tokPos(g.Name)}
 		p.Expr = b.expr(g.Value, ctxLet, l.lx)
@@ -446,27 +498,27 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 		if !quiet {
 			b.m.Params = append(b.m.Params, p)
 		}
-		return &frame{kind: fLeaf, what: "let " + p.Name}
+		return b.newFrame(frame{kind: fLeaf, what: "let " + p.Name})
 	case *gUncertainty:
-		if !quiet && !b.topOnly(l, parent, "an uncertainty") {
-			return brokenFrame(owner)
+		if !quiet && !b.topOnly(&l.lineHead, parent, "an uncertainty") {
+			return b.brokenFrame(owner)
 		}
 		u := &tree.Uncertainty{Name: g.Name.Value, Pos: tokPos(g.Name)}
 		if g.Label != nil {
 			u.Label = b.labelTok(l, *g.Label)
 		}
 		if quiet {
-			return brokenFrame(owner)
+			return b.brokenFrame(owner)
 		}
 		b.m.Uncertainties = append(b.m.Uncertainties, u)
-		return &frame{kind: fUnc, what: "uncertainty " + u.Name, unc: u}
+		return b.newFrame(frame{kind: fUnc, what: "uncertainty " + u.Name, unc: u})
 	case *gTest:
 		if g.On != nil {
 			b.refs = append(b.refs, declRef{name: g.Unc.Value, pos: tokPos(*g.Unc), width: tokWidth(l.lx, *g.Unc), kind: refOn, test: g.Name.Value})
 			if !quiet && parent != nil {
 				b.errAt(l.pos(), l.firstWidth(), "declare the test at the top level; in the tree, run it with `test "+g.Name.Value+"`",
 					"a test is declared at the top level, not under %s", parent.desc())
-				return brokenFrame(owner)
+				return b.brokenFrame(owner)
 			}
 			t := &tree.Test{Name: g.Name.Value, Pos: tokPos(g.Name), On: g.Unc.Value}
 			if g.Label != nil {
@@ -479,23 +531,23 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 				}
 			}
 			if quiet {
-				return brokenFrame(owner)
+				return b.brokenFrame(owner)
 			}
 			b.m.Tests = append(b.m.Tests, t)
-			return &frame{kind: fTestDecl, what: "test " + t.Name, test: t}
+			return b.newFrame(frame{kind: fTestDecl, what: "test " + t.Name, test: t})
 		}
 		n := &tree.Node{Kind: tree.KindChance, Test: g.Name.Value, Pos: tokPos(g.Kw)}
 		b.refs = append(b.refs, declRef{name: g.Name.Value, pos: tokPos(g.Name), width: tokWidth(l.lx, g.Name), kind: refTest})
 		if g.Label != nil {
 			n.Label = b.labelTok(l, *g.Label)
 		}
-		return b.placeNode(l, parent, n, "test", g.Name.Value, g.Label != nil, quiet)
+		return b.placeNode(&l.lineHead, parent, n, "test", g.Name.Value, g.Label != nil, quiet)
 	case *gSubtree:
-		if !quiet && !b.topOnly(l, parent, "a subtree") {
-			return brokenFrame(owner)
+		if !quiet && !b.topOnly(&l.lineHead, parent, "a subtree") {
+			return b.brokenFrame(owner)
 		}
 		if quiet {
-			return brokenFrame(owner)
+			return b.brokenFrame(owner)
 		}
 		d := &subtreeDef{name: g.Name.Value, pos: tokPos(g.Name), line: l.num}
 		if prev := b.subs[d.name]; prev != nil {
@@ -505,7 +557,7 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 			b.subs[d.name] = d
 		}
 		b.subOrder = append(b.subOrder, d)
-		return &frame{kind: fSubtree, what: "subtree " + d.name, sub: d, owner: d}
+		return b.newFrame(frame{kind: fSubtree, what: "subtree " + d.name, sub: d, owner: d})
 	case *gDecision:
 		n := &tree.Node{Kind: tree.KindDecision, Pos: tokPos(g.Kw)}
 		if g.Label == nil {
@@ -513,7 +565,7 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 		} else {
 			n.Label = b.label(l, g.Label, "the label")
 		}
-		return b.placeNode(l, parent, n, "decision", "", true, quiet)
+		return b.placeNode(&l.lineHead, parent, n, "decision", "", true, quiet)
 	case *gChance:
 		if g.By != nil {
 			return b.splitLine(l, g, parent, quiet)
@@ -531,10 +583,10 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 				`write chance "Label" for a chance node with its own probabilities, or chance NAME for a declared uncertainty`,
 				"the chance node has no label")
 		}
-		return b.placeNode(l, parent, n, "chance", n.Uncertainty, g.Label != nil, quiet)
+		return b.placeNode(&l.lineHead, parent, n, "chance", n.Uncertainty, g.Label != nil, quiet)
 	case *gUse:
 		n := &tree.Node{Kind: kindUse, Label: g.Name.Value, Pos: tokPos(g.Kw)}
-		f := b.placeNode(l, parent, n, "use", g.Name.Value, false, quiet)
+		f := b.placeNode(&l.lineHead, parent, n, "use", g.Name.Value, false, quiet)
 		if f.kind != fBroken {
 			f.kind = fLeaf
 		}
@@ -545,27 +597,27 @@ func (b *builder) lower(l *srcLine, parent *frame, role itemRole, quiet bool) *f
 	case *gItem:
 		return b.placeItem(l, g, parent, role, quiet)
 	case *gCorrelate:
-		if !quiet && !b.topOnly(l, parent, "a correlation") {
-			return brokenFrame(owner)
+		if !quiet && !b.topOnly(&l.lineHead, parent, "a correlation") {
+			return b.brokenFrame(owner)
 		}
 		c := &tree.Correlation{A: g.A.Value, B: g.B.Value, APos: tokPos(g.A), BPos: tokPos(g.B), Pos: tokPos(g.Kw)}
 		c.Rho = b.expr(g.Rho, ctxLet, l.lx)
 		if !quiet {
 			b.m.Correlations = append(b.m.Correlations, c)
 		}
-		return &frame{kind: fLeaf, what: "the correlate line"}
+		return b.newFrame(frame{kind: fLeaf, what: "the correlate line"})
 	}
-	return brokenFrame(owner)
+	return b.brokenFrame(owner)
 }
 
 // header sets a header once, checking it is at the top level.
 func (b *builder) header(l *srcLine, parent *frame, quiet bool, what string, set func()) *frame {
-	f := &frame{kind: fLeaf, what: what}
+	f := b.newFrame(frame{kind: fLeaf, what: what})
 	if quiet {
 		return f
 	}
-	if !b.topOnly(l, parent, what) {
-		return &frame{kind: fBroken, silent: true, what: what}
+	if !b.topOnly(&l.lineHead, parent, what) {
+		return b.newFrame(frame{kind: fBroken, silent: true, what: what})
 	}
 	if prev := b.headers[l.kind]; prev != 0 {
 		b.errAt(l.pos(), l.firstWidth(), fmt.Sprintf("it was first given on line %d; keep one", prev), "the %s is given twice", strings.TrimSuffix(strings.TrimPrefix(what, "the "), " line"))
@@ -602,8 +654,8 @@ func (b *builder) labelTok(l *srcLine, t lexer.Token) string {
 }
 
 // placeNode attaches a node where its line stands.
-func (b *builder) placeNode(l *srcLine, parent *frame, n *tree.Node, noun, name string, hasLabel, quiet bool) *frame {
-	f := &frame{kind: fNode, node: n, noun: noun, name: name, label: n.Label, hasLabel: hasLabel}
+func (b *builder) placeNode(l *lineHead, parent *frame, n *tree.Node, noun, name string, hasLabel, quiet bool) *frame {
+	f := b.newFrame(frame{kind: fNode, node: n, noun: noun, name: name, label: n.Label, hasLabel: hasLabel})
 	if parent != nil {
 		f.owner = parent.owner
 	}
@@ -619,7 +671,7 @@ func (b *builder) placeNode(l *srcLine, parent *frame, n *tree.Node, noun, name 
 	if n.Kind == tree.KindChance && n.Uncertainty == "" && n.Test == "" && n.Split == nil {
 		defer func() {
 			if !f.detached {
-				b.chances = append(b.chances, plainChance{n: n, line: l.num, width: l.lx.endCol - l.first().Pos.Column})
+				b.chances = append(b.chances, plainChance{n: n, line: l.num, width: l.endCol - int(l.at.Col)})
 			}
 		}()
 	}
@@ -677,24 +729,24 @@ func (b *builder) placeItem(l *srcLine, g *gItem, parent *frame, role itemRole, 
 	lp, lw := tokPos(g.Label), tokWidth(l.lx, g.Label)
 	if quiet {
 		b.itemExprs(l, g)
-		return brokenFrame(owner)
+		return b.brokenFrame(owner)
 	}
 	if parent == nil {
 		b.errAt(lp, lw, "indent it under the decision or chance node it belongs to (or under its uncertainty or test)",
 			"a branch line with no node above it")
-		return brokenFrame(owner)
+		return b.brokenFrame(owner)
 	}
 	switch parent.kind {
 	case fNode:
 		br := b.branch(l, g, label)
-		parent.node.Branches = append(parent.node.Branches, br)
-		return &frame{kind: fBranch, noun: "branch", label: label, hasLabel: true, branch: br, owner: owner}
+		parent.kids = append(parent.kids, br)
+		return b.newFrame(frame{kind: fBranch, noun: "branch", label: label, hasLabel: true, branch: br, owner: owner})
 	case fUnc:
 		b.state(l, g, label, parent)
-		return &frame{kind: fLeaf, noun: "state", label: label, hasLabel: true}
+		return b.newFrame(frame{kind: fLeaf, noun: "state", label: label, hasLabel: true})
 	case fTestDecl:
 		b.reading(l, g, label, parent)
-		return &frame{kind: fLeaf, noun: "reading", label: label, hasLabel: true}
+		return b.newFrame(frame{kind: fLeaf, noun: "reading", label: label, hasLabel: true})
 	case fBranch:
 		if parent.split {
 			b.errAt(lp, lw, "its branches are made for it ("+splitLabels(parent.node)+"); indent under it the node that follows each of them",
@@ -709,7 +761,7 @@ func (b *builder) placeItem(l *srcLine, g *gItem, parent *frame, role itemRole, 
 	default:
 		b.errAt(lp, lw, b.leafHint(parent), "%s takes no lines under it", parent.desc())
 	}
-	return brokenFrame(owner)
+	return b.brokenFrame(owner)
 }
 
 // itemExprs checks the expressions of a line that is placed nowhere.
@@ -763,10 +815,18 @@ func (b *builder) branch(l *srcLine, g *gItem, label string) *tree.Branch {
 		*slot = e
 	}
 	br.Gain, br.Cost = p.gain, p.cost
-	if p.gain != nil || p.cost != nil {
-		b.cash = append(b.cash, p)
-	}
+	b.noteCash(br)
 	return br
+}
+
+// noteCash keeps a branch whose gain or cost is written with a minus sign,
+// to be warned about once the file is read.
+func (b *builder) noteCash(br *tree.Branch) {
+	_, g := br.Gain.(*tree.Unary)
+	_, c := br.Cost.(*tree.Unary)
+	if g || c {
+		b.cash = append(b.cash, pendingCash{b: br, gain: br.Gain, cost: br.Cost})
+	}
 }
 
 func firstTok(g *gGiven) *lexer.Token {

@@ -94,6 +94,43 @@ func FuzzLoad(f *testing.F) {
 	})
 }
 
+// fastAgrees reads src with the fast path and with participle alone and
+// says how the models or diagnostics differ ("" when they do not); it
+// also returns the lines the fast path read.
+func fastAgrees(src []byte) (string, []int) {
+	fb := newBuilder(Options{NodeLimit: fuzzNodeLimit})
+	fb.trace = true
+	fb.read(src)
+	fm, fds := fb.done(src)
+	sb := newBuilder(Options{NodeLimit: fuzzNodeLimit})
+	sb.noFast = true
+	sb.read(src)
+	sm, sds := sb.done(src)
+	if !reflect.DeepEqual(fds, sds) {
+		return fmt.Sprintf("diagnostics: fast path %v, participle %v", fds, sds), nil
+	}
+	if !reflect.DeepEqual(fm, sm) {
+		return fmt.Sprintf("models differ: fast path\n%s\nparticiple\n%s", dumpModel(fm), dumpModel(sm)), nil
+	}
+	return "", fb.fastRead
+}
+
+// dumpModel writes a model's tree with its positions, for messages.
+func dumpModel(m *tree.Model) string {
+	var b strings.Builder
+	for _, p := range m.Params {
+		fmt.Fprintf(&b, "let %s = %s at %v\n", p.Name, p.Expr, p.Pos)
+	}
+	tree.Walk(m.Root, func(n *tree.Node, d int) bool {
+		fmt.Fprintf(&b, "%*s%s %q at %v\n", 2*d, "", n.Kind, n.Label, n.Pos)
+		for _, br := range n.Branches {
+			fmt.Fprintf(&b, "%*s- %q p=%v rest=%v gain=%v cost=%v at %v\n", 2*d+1, "", br.Label, br.Prob, br.Rest, br.Gain, br.Cost, br.Pos)
+		}
+		return true
+	})
+	return b.String()
+}
+
 // checkLoad reads src and returns what is wrong with the result ("" when
 // nothing is).
 func checkLoad(src []byte, ps *parsers) string {
@@ -136,20 +173,8 @@ func checkLoad(src []byte, ps *parsers) string {
 	if placeholder {
 		return "placeholder left in the model"
 	}
-	for _, l := range scan(src) {
-		if len(l.lx.toks) == 0 || l.lx.noParse {
-			continue
-		}
-		ps.parseLine(l)
-		fast := fastParse(l.kind, l.lx.toks)
-		if fast == nil {
-			continue
-		}
-		slow := &srcLine{num: l.num, indent: l.indent, lx: l.lx}
-		ps.slowParse(slow)
-		if slow.err != nil || !reflect.DeepEqual(fast, slow.ast) {
-			return fmt.Sprintf("line %d: fast path %#v, participle %#v (%v)", l.num, fast, slow.ast, slow.err)
-		}
+	if problem, _ := fastAgrees(src); problem != "" {
+		return problem
 	}
 	return ""
 }

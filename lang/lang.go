@@ -29,6 +29,12 @@ var getParsers = sync.OnceValue(newParsers)
 // It does not evaluate expressions or check probabilities: that is
 // [compiled.Compile], which [Load] runs.
 func Parse(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
+	b := newBuilder(opts)
+	b.read(src)
+	return b.done(src)
+}
+
+func newBuilder(opts Options) *builder {
 	b := &builder{
 		limit:   opts.NodeLimit,
 		m:       &tree.Model{},
@@ -42,11 +48,12 @@ func Parse(src []byte, opts Options) (*tree.Model, tree.Diagnostics) {
 		b.limit = tree.DefaultNodeLimit
 	}
 	b.limit = min(b.limit, maxLimit)
-	lines := scan(src)
-	parseLines(lines)
-	for _, l := range lines {
-		b.add(l)
-	}
+	return b
+}
+
+// done runs the checks that need the whole file and returns the model and
+// the diagnostics, sorted.
+func (b *builder) done(src []byte) (*tree.Model, tree.Diagnostics) {
 	b.finish()
 	fillLen(src, b.ds)
 	return b.m, b.ds.Sort()
@@ -65,29 +72,6 @@ func Load(src []byte, opts Options) (*compiled.Model, tree.Diagnostics) {
 	c, cs := compiled.Compile(m)
 	fillLen(src, cs)
 	return c, append(ds, cs...).Sort()
-}
-
-// parseLines reads every line's content with the parser for its kind.
-// Lines are independent of each other, so large files are read in parallel.
-func parseLines(lines []*srcLine) {
-	ps := getParsers()
-	const chunk = 4096
-	if len(lines) < 2*chunk {
-		for _, l := range lines {
-			ps.parseLine(l)
-		}
-		return
-	}
-	var wg sync.WaitGroup
-	for i := 0; i < len(lines); i += chunk {
-		part := lines[i:min(i+chunk, len(lines))]
-		wg.Go(func() {
-			for _, l := range part {
-				ps.parseLine(l)
-			}
-		})
-	}
-	wg.Wait()
 }
 
 // parseLine sets the line's kind and parses it.
@@ -111,10 +95,6 @@ func (ps *parsers) parseLine(l *srcLine) {
 		return
 	}
 	if l.lx.noParse || l.kind == kRisk {
-		return
-	}
-	if ast := fastParse(l.kind, l.lx.toks); ast != nil {
-		l.ast = ast
 		return
 	}
 	ps.slowParse(l)

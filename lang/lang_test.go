@@ -578,32 +578,33 @@ func TestEmpty(t *testing.T) {
 	}
 }
 
-// TestFastPathAgrees checks the fast path against participle on every line
-// it accepts, over all the test inputs.
+// TestFastPathAgrees reads every test input twice, with the fast path and
+// with participle alone, and checks that both give the same model and the
+// same diagnostics, and that participle accepts every line the fast path
+// reads.
 func TestFastPathAgrees(t *testing.T) {
-	srcs := []string{fullExample, string(genModel(3, 3)), doubling(3),
-		"\"a\" 1 + 2\n\"a\" (1 + 2) gain -3 cost f(1, 2, x)\n\"a\" rest if \"x\", 5% if \"y\" gain 1\n\"a\" gain\n\"a\" 5 5\nchance x \"y\"\nchance \"y\"\nchance x\nuse s\ndecision \"d\"\n"}
+	srcs := []string{fullExample, string(genModel(3, 3)), doubling(3), manyNames(50),
+		"\"a\" 1 + 2\n\"a\" (1 + 2) gain -3 cost f(1, 2, x)\n\"a\" rest if \"x\", 5% if \"y\" gain 1\n\"a\" gain\n\"a\" 5 5\nchance x \"y\"\nchance \"y\"\nchance x\nuse s\ndecision \"d\"\n",
+		fastShapes}
 	srcs = append(srcs, badInputs(t)...)
 	ps := getParsers()
 	checked := 0
 	for _, src := range srcs {
-		for _, l := range scan([]byte(src)) {
-			if len(l.lx.toks) == 0 {
-				continue
-			}
+		problem, fast := fastAgrees([]byte(src))
+		if problem != "" {
+			t.Errorf("%s\nin:\n%s", problem, src)
+			continue
+		}
+		lines := tree.SplitLines([]byte(src))
+		for _, num := range fast {
+			raw := string(lines[num-1])
+			content := strings.TrimLeft(raw, " ")
+			l := &srcLine{lineHead: lineHead{num: num, indent: len(raw) - len(content)}}
+			l.lx = lexLine(content, num, l.indent+1, &l.diags)
+			l.setHead()
 			ps.parseLine(l)
-			fast := fastParse(l.kind, l.lx.toks)
-			if fast == nil {
-				continue
-			}
-			slow := &srcLine{num: l.num, indent: l.indent, lx: l.lx}
-			ps.slowParse(slow)
-			if slow.err != nil {
-				t.Errorf("line %d %v: fast path accepts what participle rejects: %v", l.num, l.lx.toks, slow.err)
-				continue
-			}
-			if !reflect.DeepEqual(fast, slow.ast) {
-				t.Errorf("line %d %v: fast %#v, participle %#v", l.num, l.lx.toks, fast, slow.ast)
+			if l.err != nil || len(l.diags) > 0 || l.ast == nil {
+				t.Errorf("line %d %q: the fast path reads what participle rejects: %v %v", num, raw, l.err, l.diags)
 			}
 			checked++
 		}
@@ -612,3 +613,44 @@ func TestFastPathAgrees(t *testing.T) {
 		t.Errorf("only %d lines checked", checked)
 	}
 }
+
+// fastShapes has every shape of line the fast path reads, and near misses
+// that it must leave to participle.
+const fastShapes = `let fee = 2_500 in 1_000 .. 4_000
+let unit = 1_200
+let p = 30% in 15% .. 45%
+let q = (p + 0.1) * 2 - -fee / 3
+let r = 5 in 1 .. 40%
+let s = fee + 10%
+uncertainty u "U"
+  "a" 30%
+  "b" p
+  "c" rest
+decision "Root"
+  "Build"  gain 15_500  cost fee
+    chance "Market"
+      "High"  0.23  gain unit * 2 cost (fee + 1) * 2
+      "Mid"  (p - 0.1)  cost 3
+      "Low"  p
+      "None"  rest  gain -5
+  "Buy"  cost 1 gain 2
+    chance u
+      "a"
+      "b"  gain 00.50
+      "c"  gain 1_0 cost 0.000_1
+  "Lease" gain ((1)) + (2 * (3)) cost -(fee)
+    chance u "Named"
+      "a"  cost  undefined_name
+      "b"  gain unitt
+      "c"  cost 1.5% + 2
+  "Wait"
+    use later
+  "Café ☕"  gain 1__0
+  "x" gain 1e6
+  "y" cost 12345678901234567890
+  "z" gain 5 gain 6
+  "" gain 1
+subtree later
+  decision "Later"
+    "l" gain 1
+`

@@ -93,16 +93,26 @@ func (b *builder) declare(l *srcLine) {
 
 // useName records a name met in an expression.
 func (b *builder) useName(t lexer.Token, lx lexed, c exprCtx, top bool) {
+	if !b.knownLet(t.Value, c, top) {
+		b.pendingNames = append(b.pendingNames, nameRef{name: t.Value, pos: tokPos(t), width: tokWidth(lx, t), ctx: c, top: top})
+	}
+}
+
+// knownLet reports whether name is a let defined above the line that uses
+// it, marking a let that adds a bare percentage as used as money when it
+// is a whole term of an amount. Names it does not know are checked once
+// the whole file is read (checkNames).
+func (b *builder) knownLet(name string, c exprCtx, top bool) bool {
 	// The same input is often used line after line (cost price, ...):
 	// one comparison instead of a map lookup.
-	if t.Value == b.lastLet || b.lets.has(t.Value) {
-		b.lastLet = t.Value
-		if top && c == ctxCash && b.percentLets != nil {
-			b.usedAsMoney(nameRef{name: t.Value, ctx: c, top: top})
-		}
-		return
+	if name != b.lastLet && !b.lets.has(name) {
+		return false
 	}
-	b.pendingNames = append(b.pendingNames, nameRef{name: t.Value, pos: tokPos(t), width: tokWidth(lx, t), ctx: c, top: top})
+	b.lastLet = name
+	if top && c == ctxCash && b.percentLets != nil {
+		b.usedAsMoney(nameRef{name: name, ctx: c, top: top})
+	}
+	return true
 }
 
 // usedAsMoney marks a let that adds a bare percentage as used as money

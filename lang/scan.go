@@ -8,40 +8,57 @@ import (
 	"github.com/forkcast/forkcast/tree"
 )
 
-// srcLine is one logical line: a line of the file with content other than
-// spaces and a comment.
-type srcLine struct {
+// lineHead is what placing a line in the tree needs to know of it, on
+// the fast path and the slow one alike.
+type lineHead struct {
 	num    int // 1-based line number
 	indent int // width of the indentation in characters (a tab counts one)
 	tab    bool
-	lx     lexed
-	kind   lineKind
-	ast    any   // the parsed production; nil if parsing failed or was skipped
-	err    error // the parse error, reported in context by the builder
-	diags  tree.Diagnostics
+	at     tree.Pos // where the first token is
+	width  int      // the first token's width in characters
+	endCol int      // the column just after the last token
+}
+
+// pos returns the position of the line's first token.
+func (h *lineHead) pos() tree.Pos { return h.at }
+
+// firstWidth is the width of the first token.
+func (h *lineHead) firstWidth() int { return h.width }
+
+// srcLine is one logical line read the slow way: lexed by lexLine and
+// parsed by participle.
+type srcLine struct {
+	lineHead
+	lx    lexed
+	kind  lineKind
+	ast   any   // the parsed production; nil if parsing failed or was skipped
+	err   error // the parse error, reported in context by the builder
+	diags tree.Diagnostics
 }
 
 // first returns the line's first token.
 func (l *srcLine) first() lexer.Token { return l.lx.toks[0] }
 
-// pos returns the position of the line's first token.
-func (l *srcLine) pos() tree.Pos { return tokPos(l.lx.toks[0]) }
+// setHead fills the line's head from its tokens.
+func (l *srcLine) setHead() {
+	l.at, l.width, l.endCol = tokPos(l.lx.toks[0]), l.lx.width[0], l.lx.endCol
+}
 
-// firstWidth is the width of the first token.
-func (l *srcLine) firstWidth() int { return l.lx.width[0] }
-
-// scan splits src into logical lines and lexes each. Tabs in the
-// indentation are reported here; everything else about a line's content is
-// reported by the lexer and the parser.
-func scan(src []byte) []*srcLine {
+// read splits src into logical lines and places each in the tree, one at
+// a time: a line is read by the fast path (fast.go) when it can be, by
+// lexLine and participle otherwise. Nothing of a line is kept once it is
+// placed but what goes into the model. Tabs in the indentation are
+// reported here; everything else about a line's content is reported by
+// the lexer, the parser and the builder.
+func (b *builder) read(src []byte) {
 	src = bytes.TrimPrefix(src, []byte("\ufeff"))
-	var out []*srcLine
-	a := &arena{toks: make([]lexer.Token, 0, len(src)/8+16), width: make([]int, 0, len(src)/8+16)}
+	ps := getParsers()
 	num := 0
 	// A file indented with tabs has them on most lines: the first is
 	// reported, and the others counted in a note on it.
-	var firstTab *srcLine
+	firstTab := -1 // its index in b.ds
 	moreTabs, nextTab, lastTab := 0, 0, 0
+	fl := &fastLine{}
 	// A line ends at LF, CRLF or a lone CR, as tree.SplitLines has it. nl
 	// is the offset of the next LF at or after pos (-1: none left), kept
 	// across lines so that a file of lone CRs is read in linear time.
@@ -78,14 +95,20 @@ func scan(src []byte) []*srcLine {
 		if len(content) == 0 || content[0] == '#' {
 			continue
 		}
-		l := &srcLine{num: num, indent: n, tab: tabAt >= 0}
+		if tabAt < 0 && !b.noFast && b.fast(fl, content, num, n) {
+			if b.trace {
+				b.fastRead = append(b.fastRead, num)
+			}
+			continue
+		}
+		l := &srcLine{lineHead: lineHead{num: num, indent: n, tab: tabAt >= 0}}
 		switch {
-		case l.tab && firstTab == nil:
+		case l.tab && firstTab < 0:
 			l.diags.Add(tree.At(num, tabAt+1),
 				"indent with spaces only (two per level is usual); most editors can be set to insert spaces for the Tab key",
 				"tab character in the indentation")
 			l.diags[len(l.diags)-1].Len = 1
-			firstTab = l
+			firstTab = len(b.ds) // add puts the line's diagnostics first
 		case l.tab:
 			moreTabs++
 			if nextTab == 0 {
@@ -93,24 +116,21 @@ func scan(src []byte) []*srcLine {
 			}
 			lastTab = num
 		}
-		l.lx = a.lexLine(string(content), num, n+1, &l.diags)
-		if len(l.lx.toks) == 0 {
-			// Only stray characters, already reported: keep the messages,
-			// but the line takes no part in the structure.
-			if len(l.diags) > 0 {
-				out = append(out, l)
-			}
-			continue
+		l.lx = lexLine(string(content), num, n+1, &l.diags)
+		if len(l.lx.toks) > 0 {
+			l.setHead()
+			ps.parseLine(l)
 		}
-		out = append(out, l)
+		// A line of stray characters only, already reported, takes no
+		// part in the structure: add just keeps its messages.
+		b.add(l)
 	}
 	switch {
 	case moreTabs == 1:
-		firstTab.diags[0].Note = fmt.Sprintf("1 more line is indented with a tab: line %d", nextTab)
+		b.ds[firstTab].Note = fmt.Sprintf("1 more line is indented with a tab: line %d", nextTab)
 	case moreTabs > 1:
-		firstTab.diags[0].Note = fmt.Sprintf("%d more lines are indented with tabs, from line %d to line %d", moreTabs, nextTab, lastTab)
+		b.ds[firstTab].Note = fmt.Sprintf("%d more lines are indented with tabs, from line %d to line %d", moreTabs, nextTab, lastTab)
 	}
-	return out
 }
 
 // fillLen gives a caret span to diagnostics that have none (those from

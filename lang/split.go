@@ -44,7 +44,7 @@ func (b *builder) splitLine(l *srcLine, g *gChance, parent *frame, quiet bool) *
 	}
 	body := &tree.Branch{Pos: n.Pos}
 	n.Branches = []*tree.Branch{body}
-	f := b.placeNode(l, parent, n, "chance", n.Split.Input, g.Label != nil, quiet)
+	f := b.placeNode(&l.lineHead, parent, n, "chance", n.Split.Input, g.Label != nil, quiet)
 	if f.kind == fNode {
 		f.kind, f.branch, f.split = fBranch, body, true
 	}

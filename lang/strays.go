@@ -36,8 +36,12 @@ func (b *builder) addStray(f *frame, s strayItem) {
 // closeFrame runs the checks that wait until no more lines can come under
 // a frame.
 func (b *builder) closeFrame(f *frame) {
+	if f.kind == fNode && len(f.kids) > 0 {
+		f.node.Branches = b.alloc.branchList(f.kids)
+	}
 	if ss := b.strays[f]; len(ss) > 0 {
 		b.reportStrays(f, ss)
+		delete(b.strays, f) // the frame is reused
 	}
 }
 
