@@ -503,7 +503,7 @@ func (f *Floats) weigh() {
 // Rollback rolls the float64 copy back and returns the root's expected
 // value (net).
 func (f *Floats) Rollback() float64 {
-	rollbackFloat64(f.c.sh, f.restart, f.e, f.t, f.best, nil)
+	rollbackFloat(f.c.sh, f.restart, nil, f.e, f.t, f.best, nil)
 	return f.t[0]
 }
 
@@ -513,61 +513,8 @@ func (f *Floats) Rollback() float64 {
 // Total gives the value of each option of a decision with the policy
 // followed below it.
 func (f *Floats) Follow(policy []int32) float64 {
-	rollbackFloat64(f.c.sh, f.restart, f.e, f.t, f.best, policy)
+	rollbackFloat(f.c.sh, f.restart, nil, f.e, f.t, f.best, policy)
 	return f.t[0]
-}
-
-// rollbackFloat64 is the rollback kernel (kernel.go) written out for
-// float64. The generic kernel calls its number type's operations through
-// a dictionary, which Go does not inline: on float64, where each
-// operation is one instruction, that made it about three times slower,
-// and simulation rolls the tree back twice a run. TestFloatKernelAgrees
-// checks the two give the same values and choices. A frame of its own adds
-// nothing to the node above: in float64 masses never grow too long, so the
-// only frames are branches of probability 0 (no rho).
-func rollbackFloat64(sh *shape, restart []bool, e, t []float64, best []int32, policy []int32) {
-	first, kind := sh.first, sh.kind
-	for i := len(kind) - 1; i >= 0; i-- {
-		from, to := first[i], first[i+1]
-		acc := e[i]
-		switch kind[i] {
-		case tree.KindChance:
-			if restart == nil {
-				for _, v := range t[from:to] {
-					acc += v
-				}
-			} else {
-				for k := from; k < to; k++ {
-					if !restart[k] {
-						acc += t[k]
-					}
-				}
-			}
-		case tree.KindDecision:
-			if from == to {
-				break
-			}
-			var b int32
-			if policy != nil {
-				b = policy[i]
-			} else {
-				m := t[from]
-				ties := int32(0)
-				for k := from + 1; k < to; k++ {
-					switch v := t[k]; {
-					case m < v:
-						m, b, ties = v, k-from, 0
-					case v == m:
-						ties = tiedBit
-					}
-				}
-				b |= ties
-			}
-			best[i] = b
-			acc += t[from+b&^tiedBit]
-		}
-		t[i] = acc
-	}
 }
 
 // Value is the expected value from node i on after the last Rollback (net;

@@ -53,7 +53,7 @@ func (c *Model) rollbackInto(dst *Rollback, policy []int32) *Rollback {
 		if len(r.wide) != n {
 			r.wide = make([]exact.Wide, n)
 		}
-		if rollback[exact.Wide, struct{}, wideOps](wideOps{}, c.sh, d.restart, nil, d.e, r.wide, r.best, policy) {
+		if rollbackWide(c.sh, d.restart, d.e, r.wide, r.best, policy) {
 			r.bigs = nil
 			return r
 		}
@@ -70,7 +70,7 @@ func (c *Model) rollbackInto(dst *Rollback, policy []int32) *Rollback {
 		}
 	}
 	r.ops = o
-	rollback[*big.Int, *big.Int, bigOps](o, c.sh, d.restart, c.bigRho(), c.bigE(), r.bigs, r.best, policy)
+	rollbackBig(o, c.sh, d.restart, c.bigRho(), c.bigE(), r.bigs, r.best, policy)
 	return r
 }
 
@@ -243,7 +243,7 @@ func (c *Model) floatE() []float64 {
 // root's expected value (net). t and best are work space of Len() entries
 // each, reused across calls; best receives each decision's choice.
 func (c *Model) RollbackFloat(t []float64, best []int32) float64 {
-	rollback[float64, float64, floatOps](floatOps{}, c.sh, c.d.restart, c.floatRho(), c.floatE(), t, best, nil)
+	rollbackFloat(c.sh, c.d.restart, c.floatRho(), c.floatE(), t, best, nil)
 	return t[0]
 }
 

@@ -2,20 +2,23 @@ package compiled
 
 import (
 	"fmt"
+	"math/big"
 	"math/rand"
 	"slices"
 	"testing"
 
+	"github.com/forkcast/forkcast/internal/exact"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
 
-// TestFloatKernelAgrees: the float64 kernel written out for simulation
-// (rollbackFloat64) gives bit for bit the values and choices of the
-// generic kernel on float64, with and without a policy to follow and with
-// frames of their own, on random shapes and random E (ties included: the
-// values are drawn from a small set).
-func TestFloatKernelAgrees(t *testing.T) {
+// TestKernelsAgree: the kernel's three generated copies (128-bit, big and
+// float64) give the same values and choices on integer figures, with and
+// without a policy to follow and with frames of their own, on random
+// shapes and random E (ties included: the values are drawn from a small
+// set). Integers this small are exact in every type, so any difference
+// is a fault in a copy's operations.
+func TestKernelsAgree(t *testing.T) {
 	rng := rand.New(rand.NewSource(4))
 	var build func(depth int) *tree.Node
 	build = func(depth int) *tree.Node {
@@ -65,12 +68,26 @@ func TestFloatKernelAgrees(t *testing.T) {
 					}
 				}
 			}
-			t1, b1 := make([]float64, n), make([]int32, n)
-			t2, b2 := make([]float64, n), make([]int32, n)
-			rollback[float64, float64, floatOps](floatOps{}, c.sh, restart, nil, e, t1, b1, policy)
-			rollbackFloat64(c.sh, restart, e, t2, b2, policy)
-			if !slices.Equal(t1, t2) || !slices.Equal(b1, b2) {
-				t.Fatalf("trial %d (policy %v): generic %v %v, float64 %v %v", trial, followed, t1, b1, t2, b2)
+			tf, bf := make([]float64, n), make([]int32, n)
+			tw, bw := make([]exact.Wide, n), make([]int32, n)
+			tb, bb := make([]*big.Int, n), make([]int32, n)
+			ew, eb := make([]exact.Wide, n), make([]*big.Int, n)
+			for i, v := range e {
+				eb[i] = big.NewInt(int64(v))
+				ew[i], _ = exact.WideFromBig(eb[i])
+			}
+			rollbackFloat(c.sh, restart, nil, e, tf, bf, policy)
+			if !rollbackWide(c.sh, restart, ew, tw, bw, policy) {
+				t.Fatalf("trial %d: 128-bit overflow on small integers", trial)
+			}
+			rollbackBig(bigOps{}, c.sh, restart, nil, eb, tb, bb, policy)
+			if !slices.Equal(bf, bw) || !slices.Equal(bf, bb) {
+				t.Fatalf("trial %d (policy %v): choices float64 %v, 128-bit %v, big %v", trial, followed, bf, bw, bb)
+			}
+			for i := range tf {
+				if w := tw[i].Big(); w.Cmp(tb[i]) != 0 || float64(w.Int64()) != tf[i] {
+					t.Fatalf("trial %d (policy %v) node %d: float64 %v, 128-bit %v, big %v", trial, followed, i, tf[i], w, tb[i])
+				}
 			}
 		}
 	}
