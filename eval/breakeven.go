@@ -35,7 +35,11 @@ import (
 // narrowed until both options are straight lines across it; their crossing
 // is then a rational number computed exactly, and confirmed by solving the
 // tree at it (or, when it is no finite decimal, just either side of it):
-// such a switch is exact. The values of a decision are piecewise linear in
+// such a switch is exact. Where the switch sits exactly at a bend of one
+// option (an inner decision changes at the same point), no interval around
+// it is straight; there the lines from each side, each checked straight up
+// to the point, must cross at the same point, which is confirmed the same
+// way. The values of a decision are piecewise linear in
 // one cash figure or one probability — the pieces are where inner
 // decisions change — so switches are exact unless the input enters the
 // values non-linearly (a probability used twice on one path); then the
@@ -1118,9 +1122,22 @@ func (s *search) between(a, b *sample) ([]Switch, error) {
 func (s *search) narrow(a, b *sample) (*Switch, *sample, error) {
 	A, B := a.best, b.best
 	secant := false
+	// a2 and b2 are the samples a and b replaced last (on A's side and on
+	// B's), for a switch where an option bends (kink); tried is the last
+	// point kink confirmed or refuted.
+	var a2, b2 *sample
+	var tried *big.Rat
 	for {
 		if a.best == b.best {
 			return nil, nil, nil
+		}
+		if a2 != nil && b2 != nil {
+			if x := kinkPoint(a2, a, b, b2, A, B); x != nil && (tried == nil || tried.Cmp(x) != 0) {
+				tried = x
+				if sw, third, err := s.kink(x, a2, a, b, b2, A, B); err != nil || sw != nil || third != nil {
+					return sw, third, err
+				}
+			}
 		}
 		width := b.x.Sub(a.x)
 		mid := a.x.Add(b.x).Mul(half).Round(compiled.DivisionScale)
@@ -1164,9 +1181,9 @@ func (s *search) narrow(a, b *sample) (*Switch, *sample, error) {
 			}
 		}
 		if m.best == A {
-			a = m
+			a, a2 = m, a
 		} else {
-			b = m
+			b, b2 = m, b
 		}
 		// Secant while it halves the bracket, a midpoint step otherwise.
 		secant = !secant || b.x.Sub(a.x).Mul(two).LessThanOrEqual(width)
@@ -1202,20 +1219,94 @@ func chordCrossing(a, b *sample, A, B int) (decimal.Decimal, bool) {
 // of it when it is no finite decimal). It returns nil when the
 // confirmation fails, so that narrowing goes on.
 func (s *search) crossing(a, b *sample, A, B int) (*Switch, error) {
-	f := y(a, b)
-	ya := new(big.Rat).Sub(f(a, A).Rat(), f(a, B).Rat()) // > 0 or = 0: A is best at a
-	yb := new(big.Rat).Sub(f(b, A).Rat(), f(b, B).Rat()) // < 0 or = 0: B is best at b
-	den := new(big.Rat).Sub(ya, yb)
+	x := lineZero(a, b, A, B)
+	if x == nil || x.Cmp(a.x.Rat()) < 0 || x.Cmp(b.x.Rat()) > 0 {
+		return nil, nil
+	}
+	return s.confirm(x, A, B)
+}
+
+// lineZero is where the lines of options A and B through samples p and q
+// cross (x = p + (q − p) · dp / (dp − dq), d the difference A − B), or nil
+// when they are parallel.
+func lineZero(p, q *sample, A, B int) *big.Rat {
+	f := y(p, q)
+	dp := new(big.Rat).Sub(f(p, A).Rat(), f(p, B).Rat())
+	dq := new(big.Rat).Sub(f(q, A).Rat(), f(q, B).Rat())
+	den := new(big.Rat).Sub(dp, dq)
 	if den.Sign() == 0 {
-		return nil, nil
+		return nil
 	}
-	ax, bx := a.x.Rat(), b.x.Rat()
-	// x = a + (b − a) · ya / (ya − yb)
-	x := new(big.Rat).Mul(new(big.Rat).Sub(bx, ax), new(big.Rat).Quo(ya, den))
-	x.Add(x, ax)
-	if x.Cmp(ax) < 0 || x.Cmp(bx) > 0 {
-		return nil, nil
+	px := p.x.Rat()
+	x := new(big.Rat).Mul(new(big.Rat).Sub(q.x.Rat(), px), new(big.Rat).Quo(dp, den))
+	return x.Add(x, px)
+}
+
+// kinkPoint is where a switch sits if it is at a bend of an option (an
+// inner decision changing exactly there), where no bracket around it is
+// straight: the options' lines through the two samples on A's side and
+// through the two on B's side cross at one and the same point, strictly
+// between a and b. It is nil otherwise.
+func kinkPoint(a2, a, b, b2 *sample, A, B int) *big.Rat {
+	if !yExact(a2, a) || !yExact(b, b2) {
+		return nil
 	}
+	xl := lineZero(a2, a, A, B)
+	if xl == nil || xl.Cmp(a.x.Rat()) <= 0 || xl.Cmp(b.x.Rat()) >= 0 {
+		return nil
+	}
+	if xr := lineZero(b, b2, A, B); xr == nil || xr.Cmp(xl) != 0 {
+		return nil
+	}
+	return xl
+}
+
+// kink confirms a switch at x (kinkPoint): a sample between a and x must
+// lie on A's side's lines and one between x and b on B's side's, so that
+// both options are straight from each side up to x, and then the switch
+// is confirmed at x as crossing does. It returns nil when the
+// confirmation fails, or a sample where a third option is best.
+func (s *search) kink(x *big.Rat, a2, a, b, b2 *sample, A, B int) (*Switch, *sample, error) {
+	at := decimal.NewFromBigRat(x, compiled.DivisionScale)
+	sides := []struct {
+		p, q     *sample // the two samples of the side, in order along x
+		from     decimal.Decimal
+		best     int
+		nearEnds bool // q is the sample next to x
+	}{{a2, a, a.x, A, true}, {b, b2, b.x, B, false}}
+	for _, sd := range sides {
+		mid := sd.from.Add(at).Mul(half).Round(compiled.DivisionScale)
+		if !mid.GreaterThan(decimal.Min(sd.from, at)) || !mid.LessThan(decimal.Max(sd.from, at)) {
+			return nil, nil, nil
+		}
+		m, err := s.sample(mid)
+		if err != nil {
+			return nil, nil, err
+		}
+		if m.best != A && m.best != B {
+			return nil, m, nil
+		}
+		if m.best != sd.best {
+			return nil, nil, nil
+		}
+		ok := false
+		if sd.nearEnds {
+			ok = straight(sd.p, sd.q, m, A, B) && yExact(sd.p, sd.q, m)
+		} else {
+			ok = straight(m, sd.p, sd.q, A, B) && yExact(m, sd.p, sd.q)
+		}
+		if !ok {
+			return nil, nil, nil
+		}
+	}
+	sw, err := s.confirm(x, A, B)
+	return sw, nil, err
+}
+
+// confirm checks a switch between A and B at x, computed exactly from
+// straight lines: by solving the tree there (or either side of it when it
+// is no finite decimal). It returns nil when the check fails.
+func (s *search) confirm(x *big.Rat, A, B int) (*Switch, error) {
 	at := decimal.NewFromBigRat(x, compiled.DivisionScale)
 	if at.Rat().Cmp(x) == 0 {
 		// A finite decimal: solve the tree there.
