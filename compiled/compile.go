@@ -11,8 +11,10 @@ import (
 // Compile checks m and compiles it. It returns every problem found, errors
 // and warnings, sorted by position; the Model is nil when there are errors.
 // m is read, never changed.
-func Compile(m *tree.Model) (*Model, tree.Diagnostics) {
-	k := &compiler{m: m, pool: &exact.Pool{}, used: map[string]bool{}}
+func Compile(m *tree.Model) (*Model, tree.Diagnostics) { return compile(m, Options{}) }
+
+func compile(m *tree.Model, opts Options) (*Model, tree.Diagnostics) {
+	k := &compiler{m: m, pool: &exact.Pool{}, used: map[string]bool{}, opts: opts}
 	c := &Model{src: m, pool: k.pool, sh: &shape{end: &tree.Node{Kind: tree.KindEnd}}}
 	k.c = c
 	k.params()
@@ -23,12 +25,17 @@ func Compile(m *tree.Model) (*Model, tree.Diagnostics) {
 	}
 	k.uncertainties()
 	k.tests()
-	if m.Root == nil {
+	switch {
+	case m.Root == nil && len(m.Registers) == 0:
 		k.ds.Add(tree.Pos{}, "add a `decision` or `chance` node", "the model has no tree")
-	} else {
+	case m.Root == nil:
+		// Registers alone: inputs and no tree (HasTree is false).
+	default:
 		k.tree()
 		k.env = nil
 	}
+	k.usedElsewhere()
+	k.c.sh.random = k.random
 	for _, p := range m.Params {
 		if !k.used[p.Name] && !k.dupParam[p] {
 			k.ds.Warn(p.Pos, "remove it, or use it in a branch", "%q is defined but never used", p.Name)
@@ -58,6 +65,7 @@ type compiler struct {
 	work     group       // reused while checking sibling probabilities
 	random   []bool      // per input slot: a distribution feeds it
 	current  *tree.Param // the input being compiled, if any
+	opts     Options
 	// calls gives each distribution written in a `let` its slot, so that
 	// a let compiled again below a split (split.go, while relet is set)
 	// reads the same random input. Elsewhere every distribution in the
@@ -108,7 +116,7 @@ func (k *compiler) figure(e tree.Expr, kind figKind, i, j, kk int32) (exact.Num,
 	if num, ok := e.(*tree.Number); ok {
 		return numOf(k.pool, num), true // the common case: a number as written
 	}
-	p, err := compileExpr(k.pool, e, k.look, k.source)
+	p, err := k.program(e)
 	if err != nil {
 		// Every name in the expression counts as used, or the others
 		// would be reported as unused too.

@@ -334,6 +334,9 @@ func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, z
 // probability written under a named node that differs from the one the
 // declarations give).
 func (c *Model) derive(check bool) (*derived, tree.Diagnostics) {
+	if !c.HasTree() {
+		return &derived{exact: true}, nil // registers alone: no masses
+	}
 	var ds tree.Diagnostics
 	zeroWarned := map[int32]bool{}
 	var zero func(k int, t int32)

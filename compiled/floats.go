@@ -15,8 +15,11 @@ import (
 // …): a random input. Every exact analysis uses its mean; simulation draws
 // it.
 type Uncertain struct {
-	// Call is the distribution as written; Input the `let` whose whole
-	// expression it is ("" when it stands inside a larger expression).
+	// Expr is the input as written: the distribution's call (Call, then
+	// too), or an outside value such as a register's total (Call nil).
+	// Input is the `let` whose whole expression it is ("" when it stands
+	// inside a larger expression).
+	Expr  tree.Expr
 	Call  *tree.Call
 	Input string
 	// Dist is the distribution, its arguments evaluated at the model's
@@ -33,15 +36,32 @@ type Uncertain struct {
 func (c *Model) Uncertain() []Uncertain {
 	out := make([]Uncertain, len(c.sh.sources))
 	for i, s := range c.sh.sources {
-		args := s.prog.args(c.pool, c.in)
-		d, mean, ok, _ := meanOf(functions[s.call.Func], args)
-		u := Uncertain{Call: s.call, Dist: d, Mean: mean, Exact: ok}
+		var u Uncertain
+		if s.out != nil {
+			d, _, _ := s.out.dist(c.pool, c.in, c.inInexact, nil)
+			u = Uncertain{Expr: s.out.expr, Dist: d}
+			if d != nil {
+				u.Mean, u.Exact = meanOfDist(d)
+			}
+		} else {
+			args := s.prog.args(c.pool, c.in)
+			d, mean, ok, _ := meanOf(functions[s.call.Func], args)
+			u = Uncertain{Expr: s.call, Call: s.call, Dist: d, Mean: mean, Exact: ok}
+		}
 		if s.let >= 0 {
 			u.Input = c.sh.params[s.let].Name
 		}
 		out[i] = u
 	}
 	return out
+}
+
+// Written is the input as written: pert(10, 12, 20), register works total.
+func (u Uncertain) Written() string {
+	if u.Expr == nil {
+		return ""
+	}
+	return u.Expr.String()
 }
 
 // args evaluates the arguments of a distribution's program (everything

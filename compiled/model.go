@@ -82,6 +82,7 @@ type shape struct {
 	restReading [][]int32
 
 	sources []source // the distributions written in the model, each an input slot after the `let`s
+	random  []bool   // per input slot: a distribution feeds it
 	// corr is the target rank correlation of the correlated sources,
 	// corrCols their indices in sources (none when nothing is correlated).
 	corr     dist.Correlation
@@ -100,6 +101,7 @@ type rangeProg struct{ low, high *program }
 // whole expression of (-1 when none).
 type source struct {
 	call *tree.Call
+	out  *outside // an outside value instead of a call (outside.go)
 	slot int32
 	prog *program
 	let  int32
@@ -340,7 +342,9 @@ func (c *Model) input(slot int) Input {
 	in := Input{Name: p.Name, Param: p, Value: c.pool.Dec(c.in[slot]), Exact: c.inInexact == nil || !c.inInexact[slot],
 		Fixed: c.fixed != nil && c.fixed[slot]}
 	for _, src := range c.sh.sources {
-		if src.let == int32(slot) {
+		if src.let == int32(slot) && src.out != nil {
+			in.Dist, _, _ = src.out.dist(c.pool, c.in, c.inInexact, nil)
+		} else if src.let == int32(slot) {
 			args := src.prog.args(c.pool, c.in)
 			in.Dist, _, _, _ = meanOf(functions[src.call.Func], args)
 			if in.Dist != nil && c.sh.ranges[slot].low == nil {

@@ -46,6 +46,9 @@ const (
 	// opQuantile is a distribution of arg arguments and, above them on the
 	// stack, a level: its quantile there (split.go).
 	opQuantile
+	// opOutside is an outside value (outside.go), expr an *outsideExpr:
+	// its mean.
+	opOutside
 )
 
 type op struct {
@@ -219,6 +222,14 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 			}
 			isExact = isExact && ok
 			st = append(st, pool.Of(mean))
+			continue
+		case opOutside:
+			v, ok, err := evalOutside(o.expr, pool, in, inexact)
+			if err != nil {
+				return exact.Zero, false, err
+			}
+			isExact = isExact && ok
+			st = append(st, v)
 			continue
 		case opQuantile:
 			call := o.expr.(*tree.Call)

@@ -51,6 +51,11 @@ func (k *compiler) split(n *tree.Node, from int32) {
 			src = i
 		}
 	}
+	if src >= 0 && sh.sources[src].out != nil {
+		k.ds.Add(sp.InputPos, "split an input written as a distribution in the model",
+			"%q is %s, which has no three points of its own", sp.Input, sh.sources[src].out.expr)
+		return
+	}
 	if src < 0 {
 		k.ds.Add(sp.InputPos, "write it as a distribution, such as `let "+sp.Input+" = pert(LOW, LIKELY, HIGH)`",
 			"%q is not written as a distribution, so it has no three points", sp.Input)

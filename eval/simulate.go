@@ -199,7 +199,7 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 		s.Path = append(s.Path, b.Label)
 	}
 	for _, u := range c.Uncertain() {
-		s.Inputs = append(s.Inputs, SimInput{Name: u.Input, Written: u.Call.String(), Dist: u.Dist, Mean: u.Mean, MeanExact: u.Exact})
+		s.Inputs = append(s.Inputs, SimInput{Name: u.Input, Written: u.Written(), Dist: u.Dist, Mean: u.Mean, MeanExact: u.Exact})
 	}
 	if len(s.Inputs) == 0 {
 		if opts.InputsOnly {
@@ -211,6 +211,13 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 
 	streams := pdist.NewStreams(opts.Seed)
 	inputs := streams.Sub(streamInputs)
+	shared := streams.Sub(streamShared)
+	hasShared := false
+	for _, in := range s.Inputs {
+		if _, ok := in.Dist.(compiled.SharedDraws); ok {
+			hasShared = true
+		}
+	}
 	// Correlated inputs are drawn for every run first, then paired by
 	// rank (Iman–Conover needs whole columns); the others are drawn in
 	// each run as it goes. Either way input j of run r is the j-th draw of
@@ -252,8 +259,20 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 			spaces[w] = ws
 		}
 		inputs.Reset(ws.src, uint64(run))
+		var sharedBase uint64
+		if hasShared {
+			shared.Reset(ws.shared, uint64(run))
+			sharedBase = ws.shared.Uint64()
+		}
 		for j, in := range s.Inputs {
-			v := in.Dist.Rand(ws.rand)
+			var v float64
+			if sd, ok := in.Dist.(compiled.SharedDraws); ok {
+				// Values drawn from one source (a register's total
+				// and one of its risks) share the run's seed for it.
+				v = sd.DrawShared(sharedBase ^ keyHash(sd.DrawKey()))
+			} else {
+				v = in.Dist.Rand(ws.rand)
+			}
 			if pre[j] != nil {
 				v = pre[j][run]
 			}
@@ -344,6 +363,7 @@ const (
 	streamInputs   = 1
 	streamOutcomes = 2
 	streamPairing  = 3
+	streamShared   = 4 // one seed a run for the values that share draws (compiled.SharedDraws)
 )
 
 // progressEvery is how many runs a worker does between calls of
@@ -402,16 +422,28 @@ func correlatedDraws(ctx context.Context, c *compiled.Model, ins []SimInput, inp
 
 // worker is one goroutine's work space.
 type worker struct {
-	f     *compiled.Floats
-	src   *rand.PCG // the inputs' stream, reset for each run
-	rand  *rand.Rand
-	x     []float64 // the run's input draws
-	since int       // runs since the last progress report
+	f      *compiled.Floats
+	src    *rand.PCG // the inputs' stream, reset for each run
+	shared *rand.PCG // the shared draws' stream, reset for each run
+	rand   *rand.Rand
+	x      []float64 // the run's input draws
+	since  int       // runs since the last progress report
 }
 
 func newWorker(c *compiled.Model, inputs int) *worker {
 	src := rand.NewPCG(0, 0)
-	return &worker{f: c.NewFloats(), src: src, rand: rand.New(src), x: make([]float64, inputs)}
+	return &worker{f: c.NewFloats(), src: src, shared: rand.NewPCG(0, 0), rand: rand.New(src), x: make([]float64, inputs)}
+}
+
+// keyHash is FNV-1a of a shared draw's key: values of different keys
+// draw from different seeds in the same run.
+func keyHash(key string) uint64 {
+	h := uint64(14695981039346656037)
+	for i := 0; i < len(key); i++ {
+		h ^= uint64(key[i])
+		h *= 1099511628211
+	}
+	return h
 }
 
 // simRun is what every run of one simulation shares (read only).

@@ -42,12 +42,20 @@ type Solved struct {
 // ErrNoModel is returned by Solve for a nil model.
 var ErrNoModel = errors.New("eval: no model to solve (compile one with compiled.Compile or lang.Load)")
 
+// ErrNoTree is returned by Solve for a model that holds risk registers
+// and no tree: there is nothing to roll back (package register analyses
+// the registers).
+var ErrNoTree = errors.New("the model has no tree, only a risk register: analyse it with `forkcast register`, or add a decision that uses the register's figures")
+
 // Solve rolls c back: every decision takes its best branch (max net value:
 // the highest value under objective max, the lowest cost under min); ties
 // go to the first in model order. The arithmetic is exact.
 func Solve(c *compiled.Model) (*Solution, error) {
 	if c == nil {
 		return nil, ErrNoModel
+	}
+	if !c.HasTree() {
+		return nil, ErrNoTree
 	}
 	return newSolution(c, c.Rollback()), nil
 }
@@ -57,6 +65,9 @@ func Solve(c *compiled.Model) (*Solution, error) {
 func Follow(c *compiled.Model, policy []int32) (*Solution, error) {
 	if c == nil {
 		return nil, ErrNoModel
+	}
+	if !c.HasTree() {
+		return nil, ErrNoTree
 	}
 	return newSolution(c, c.Follow(policy)), nil
 }

@@ -49,6 +49,7 @@ type frame struct {
 	// kids are the branches of a node's frame while it is open: they go
 	// to the node in one piece when it closes (closeFrame).
 	kids []*tree.Branch
+	reg  *regFrame // a register's line (register.go)
 }
 
 func (b *builder) brokenFrame(owner *subtreeDef) *frame {
@@ -136,6 +137,7 @@ type builder struct {
 	cash          []pendingCash
 	rootLine      int
 	sawNodeTop    bool
+	registers     *registerState // nil until a register is met (register.go)
 	firstLine     int
 }
 
@@ -279,6 +281,9 @@ func spaces(n int) string {
 
 // place reads a line in its context and returns its frame.
 func (b *builder) place(l *srcLine, parent *frame) *frame {
+	if f, ok := b.registerPlace(l, parent); ok {
+		return f
+	}
 	silent := parent != nil && parent.silent
 	var owner *subtreeDef
 	if parent != nil {
@@ -1012,7 +1017,7 @@ func (b *builder) finish() {
 	case b.firstLine == 0 && len(b.ds) == 0:
 		b.errAt(tree.Pos{Line: 1, Col: 1}, 1, "a model needs at least a tree: a `decision` line with its options indented beneath it",
 			"the model is empty: it has no lines other than comments and blank lines")
-	case b.m.Root == nil && !b.sawNodeTop && b.firstLine > 0 && !b.ds.HasErrors():
+	case b.m.Root == nil && !b.sawNodeTop && b.firstLine > 0 && !b.ds.HasErrors() && len(b.m.Registers) == 0:
 		b.errAt(tree.At(b.firstLine, 1), 1, "add the tree at the left edge: a `decision` line, with its options indented beneath it",
 			"the model has no tree: no decision, chance or test line at the top level")
 	}
@@ -1030,6 +1035,7 @@ func (b *builder) finish() {
 	}
 	b.checkNames()
 	b.checkRefs()
+	b.finishRegisters()
 	for _, pl := range b.percentLets {
 		if pl.money {
 			b.warnPercentAdded(pl.p, "let "+pl.name+" = ")

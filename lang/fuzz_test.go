@@ -2,6 +2,8 @@ package lang
 
 import (
 	"fmt"
+	"math"
+	"math/rand/v2"
 	"reflect"
 	"strings"
 	"testing"
@@ -10,6 +12,7 @@ import (
 	"github.com/alecthomas/participle/v2/lexer"
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/internal/fuzzkit"
+	"github.com/forkcast/forkcast/register"
 	"github.com/forkcast/forkcast/tree"
 )
 
@@ -78,6 +81,8 @@ func FuzzLoad(f *testing.F) {
 		"# mac\rdecision \"D\"\r  \"a\" gain 1\r\n  \"b\"\r",
 		"decision \"D\x1b\"\n  \"a\x07\"\n  \"b\" gain 1 \x00\n",
 		"let p = 30% in 5 .. 40%\ndecision \"D\"\n  \"a\" cost 100 + 20%\n    chance \"C\"\n      \"x\" p\n      \"y\" rets\n",
+		registerSrc, "register r\n  threat \"1\" \"x\"\n    probability 1/3\n    impact uniform(-5, 5)\n    response \"y\" cost 0\n      residual impact 2\n",
+		"let t = register r risk A with responses\nregister r\n  opportunity A \"a\"\n    probability 0\n    impact 1e9\n    delay -1 days\n",
 		"let a = pert(1, 2, 4)\nlet b = a * 2\ncorrelate a c -0.5\ndecision \"D\"\n  \"x\"\n    chance a \"A\" by pearson\n      use s\n  \"y\" gain b\nsubtree s\n  chance a by swanson\n    decision \"E\"\n      \"e\" gain b\n",
 	} {
 		f.Add([]byte(s))
@@ -138,18 +143,23 @@ func checkLoad(src []byte, ps *parsers) string {
 	if m == nil {
 		return "nil model"
 	}
-	if !ds.HasErrors() && m.Root == nil {
-		return "no errors but no tree"
+	if !ds.HasErrors() && m.Root == nil && len(m.Registers) == 0 {
+		return "no errors but no tree and no register"
 	}
 	if !ds.HasErrors() {
 		// What reads without errors compiles, or says why not, and
-		// what compiles solves.
-		c, cs := compiled.Compile(m)
+		// what compiles solves (its registers too).
+		c, cs := compile(m)
 		if (c == nil) != cs.HasErrors() {
 			return fmt.Sprintf("compiled %v with errors %v", c != nil, cs)
 		}
-		if c != nil {
+		if c != nil && c.HasTree() {
 			c.Rollback()
+		}
+		if c != nil {
+			if msg := checkRegisters(c); msg != "" {
+				return msg
+			}
 		}
 		ds = append(ds, cs...)
 	}
@@ -296,4 +306,29 @@ func hasToken(toks []lexer.Token, v string) bool {
 		}
 	}
 	return false
+}
+
+// checkRegisters analyses the exact parts of every register of c and
+// draws each of its totals a few times: nothing may panic, and a total's
+// mean must be finite.
+func checkRegisters(c *compiled.Model) string {
+	for _, r := range c.Source().Registers {
+		reg, err := register.FromModel(c, r.Name)
+		if err != nil {
+			return fmt.Sprintf("register %s compiled but does not convert: %v", r.Name, err)
+		}
+		for _, responses := range []bool{false, true} {
+			tot, err := register.NewTotal(reg, register.TotalOptions{Risk: -1, Responses: responses})
+			if err != nil {
+				continue // a figure Check refuses (too large to simulate)
+			}
+			src := rand.NewPCG(1, 2)
+			for range 3 {
+				if x := tot.Rand(src); math.IsNaN(x) {
+					return fmt.Sprintf("register %s drew NaN", r.Name)
+				}
+			}
+		}
+	}
+	return ""
 }

@@ -69,7 +69,7 @@ func Load(src []byte, opts Options) (*compiled.Model, tree.Diagnostics) {
 	if ds.HasErrors() {
 		return nil, ds
 	}
-	c, cs := compiled.Compile(m)
+	c, cs := compile(m)
 	fillLen(src, cs)
 	return c, append(ds, cs...).Sort()
 }

@@ -28,6 +28,7 @@ const (
 	kChance               // chance [name] ["Label"]
 	kUse                  // use name
 	kCorrelate            // correlate name name rho
+	kRegister             // register name ["Title"] (register.go)
 	kItem                 // "Label" ...: a branch, a state or a reading
 	kUnknown              // starts with a word that is no keyword
 	kStray                // starts with something that cannot start a line
@@ -39,11 +40,12 @@ var lineKinds = map[string]lineKind{
 	"title": kTitle, "currency": kCurrency, "objective": kObjective, "risk": kRisk,
 	"let": kLet, "uncertainty": kUncertainty, "test": kTest, "subtree": kSubtree,
 	"decision": kDecision, "chance": kChance, "use": kUse, "correlate": kCorrelate,
+	"register": kRegister,
 }
 
 // topKeywords and nodeKeywords are listed in hints, in this order.
 var (
-	topKeywords  = []string{"title", "currency", "objective", "let", "uncertainty", "test", "subtree", "decision", "chance", "use", "correlate"}
+	topKeywords  = []string{"title", "currency", "objective", "let", "uncertainty", "test", "subtree", "decision", "chance", "use", "correlate", "register"}
 	nodeKeywords = []string{"decision", "chance", "test", "use"}
 )
 

@@ -28,7 +28,7 @@ func meansOf(c *compiled.Model) []meanJSON {
 		return out
 	}
 	for _, u := range c.Uncertain() {
-		out = append(out, meanJSON{Input: u.Input, Written: u.Call.String(), Mean: u.Mean.String(), Exact: u.Exact})
+		out = append(out, meanJSON{Input: u.Input, Written: u.Written(), Mean: u.Mean.String(), Exact: u.Exact})
 	}
 	return out
 }
@@ -58,9 +58,9 @@ func writeMeans(w textOut, c *compiled.Model) {
 			mean = "≈" + render.Grouped(u.Mean.Round(6).String())
 		}
 		if u.Input == "" {
-			w.f("  %s (in a calculation): mean %s\n", u.Call, mean)
+			w.f("  %s (in a calculation): mean %s\n", u.Written(), mean)
 		} else {
-			w.f("  %s = %s: mean %s\n", u.Input, u.Call, mean)
+			w.f("  %s = %s: mean %s\n", u.Input, u.Written(), mean)
 		}
 	}
 }

@@ -125,6 +125,9 @@ type Model struct {
 	// Correlations are rank correlations between inputs written as
 	// distributions, imposed on their draws in simulation.
 	Correlations []*Correlation
+	// Registers are the model's risk registers (package register
+	// quantifies them). A model may hold registers and no tree.
+	Registers []*Register
 }
 
 // Correlation is `correlate A B RHO`: the rank correlation between two

@@ -39,6 +39,11 @@ func checkCommand() *cli.Command {
 			if err != nil {
 				return err
 			}
+			if !l.Compiled.HasTree() {
+				printLimited(c, l.Diags, l.Name, l.Src, c.Int("warnings"), "run with --warnings -1 to see them all")
+				fmt.Fprintf(c.App.Writer, "%s: ok: no tree, %s, %d warning%s\n", l.Name, registersSummary(l.Model), len(l.Diags), plural(len(l.Diags)))
+				return nil
+			}
 			sol, err := eval.Solve(l.Compiled)
 			if err != nil {
 				return modelErr("%v", err)

@@ -127,6 +127,10 @@ func loadModel(c *cli.Context) (*loaded, error) {
 	if err != nil {
 		return nil, err
 	}
+	if !cm.HasTree() && c.Command.Name != "check" && c.Command.Name != "register" {
+		return nil, modelErr("%s has no tree, only %s: analyse it with `forkcast register %s`, or add a decision that uses its figures (let NAME = register REGISTER total)",
+			shown, registersSummary(cm.Source()), name)
+	}
 	return &loaded{Model: cm.Source(), Compiled: cm, Name: shown, Src: src, Diags: ds}, nil
 }
 

@@ -13,6 +13,7 @@ import (
 	"github.com/forkcast/forkcast/render"
 	"github.com/forkcast/forkcast/render/chart"
 	"github.com/forkcast/forkcast/report"
+	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 	"github.com/urfave/cli/v2"
 )
@@ -286,8 +287,49 @@ func stoppedErr(c *cli.Context, a *register.Analysis) error {
 }
 
 // loadRegister reads a .fork file and returns the register it holds (the
-// one --name names, when it holds several).
+// one --name names, when it holds several), its figures at the inputs
+// --set gives.
 func loadRegister(c *cli.Context) (*register.Register, error) {
-	name, _ := fileArg(c)
-	return nil, modelErr("%s: forkcast register reads a register saved from a spreadsheet as .csv", shown(name))
+	l, err := loadModel(c)
+	if err != nil {
+		return nil, err
+	}
+	l.printWarnings(c)
+	name := c.String("name")
+	reg, err := register.FromModel(l.Compiled, name)
+	var ds tree.Diagnostics
+	switch {
+	case errors.As(err, &ds):
+		ds.Print(c.App.ErrWriter, l.Name, l.Src)
+		n := len(ds.Errors())
+		return nil, modelErr("%s: %d error%s; nothing was analysed", l.Name, n, plural(n))
+	case err != nil && len(l.Model.Registers) > 1 && name == "":
+		return nil, usageErr("%s holds %s: say which with --name NAME", l.Name, registersSummary(l.Model))
+	case err != nil && name != "" && len(l.Model.Registers) > 0:
+		return nil, usageErr("--name %s: %s has no register of that name; its registers: %s", shown(name), l.Name, registerNames(l.Model))
+	case err != nil:
+		return nil, modelErr("%s: %v", l.Name, err)
+	}
+	return reg, nil
+}
+
+// registersSummary says what registers a model holds: "register works (8
+// risks)", "2 registers (works, fitout)".
+func registersSummary(m *tree.Model) string {
+	switch len(m.Registers) {
+	case 0:
+		return "no register"
+	case 1:
+		n := len(m.Registers[0].Risks)
+		return fmt.Sprintf("register %s (%d risk%s)", m.Registers[0].Name, n, plural(n))
+	}
+	return fmt.Sprintf("%d registers (%s)", len(m.Registers), registerNames(m))
+}
+
+func registerNames(m *tree.Model) string {
+	names := make([]string, len(m.Registers))
+	for i, r := range m.Registers {
+		names[i] = r.Name
+	}
+	return strings.Join(names, ", ")
 }
