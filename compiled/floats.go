@@ -65,42 +65,17 @@ func (u Uncertain) Written() string {
 }
 
 // args evaluates the arguments of a distribution's program (everything
-// before its final opCall).
+// before its final opCall, which leaves them on the stack); nil when they
+// cannot be evaluated.
 func (p *program) args(pool *exact.Pool, in []exact.Num) []decimal.Decimal {
 	body := &program{ops: p.ops[:len(p.ops)-1], consts: p.consts}
 	n := int(p.ops[len(p.ops)-1].arg)
-	out := make([]decimal.Decimal, n)
-	// Each argument is evaluated by running the body and reading the
-	// stack: the body leaves the n arguments on it.
 	var buf [16]exact.Num
-	st := buf[:0]
-	for _, o := range body.ops {
-		switch o.code {
-		case opConst:
-			st = append(st, body.consts[o.arg])
-		case opSlot:
-			st = append(st, in[o.arg])
-		case opNeg:
-			st[len(st)-1] = pool.Neg(st[len(st)-1])
-		default:
-			x, y := st[len(st)-2], st[len(st)-1]
-			st = st[:len(st)-1]
-			var r exact.Num
-			switch o.code {
-			case opAdd:
-				r = pool.Add(x, y)
-			case opSub:
-				r = pool.Sub(x, y)
-			case opMul:
-				r = pool.Mul(x, y)
-			case opDiv:
-				if !y.IsZero() {
-					r, _ = pool.Div(x, y, DivisionScale)
-				}
-			}
-			st[len(st)-1] = r
-		}
+	st, _, err := body.run(pool, in, nil, buf[:0])
+	if err != nil || len(st) < n {
+		return nil
 	}
+	out := make([]decimal.Decimal, n)
 	for i := range out {
 		out[i] = pool.Dec(st[len(st)-n+i])
 	}

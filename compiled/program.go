@@ -185,7 +185,16 @@ func (p *program) isConst() bool { return len(p.slots) == 0 }
 // the inexact slots, nil when none are).
 func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exact.Num, isExact bool, err *EvalError) {
 	var buf [16]exact.Num
-	st := buf[:0]
+	st, isExact, err := p.run(pool, in, inexact, buf[:0])
+	if err != nil {
+		return exact.Zero, false, err
+	}
+	return st[0], isExact, nil
+}
+
+// run runs the program's operations on the stack st and returns it: one
+// value for a whole program, a call's arguments for its body (args).
+func (p *program) run(pool *exact.Pool, in []exact.Num, inexact []bool, st []exact.Num) (_ []exact.Num, isExact bool, err *EvalError) {
 	isExact = true
 	for _, o := range p.ops {
 		switch o.code {
@@ -218,7 +227,7 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 						at = call.Args[ae.Arg].Pos()
 					}
 				}
-				return exact.Zero, false, &EvalError{Pos: at, Msg: msg, Hint: "write it as " + functions[call.Func].usage}
+				return nil, false, &EvalError{Pos: at, Msg: msg, Hint: "write it as " + functions[call.Func].usage}
 			}
 			isExact = isExact && ok
 			st = append(st, pool.Of(mean))
@@ -226,7 +235,7 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 		case opOutside:
 			v, ok, err := evalOutside(o.expr, pool, in, inexact)
 			if err != nil {
-				return exact.Zero, false, err
+				return nil, false, err
 			}
 			isExact = isExact && ok
 			st = append(st, v)
@@ -243,7 +252,7 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 			st = st[:len(st)-n]
 			q, err := quantileOf(call, args, level)
 			if err != nil {
-				return exact.Zero, false, &EvalError{Pos: call.At, Msg: err.Error(), Hint: "write it as " + functions[call.Func].usage}
+				return nil, false, &EvalError{Pos: call.At, Msg: err.Error(), Hint: "write it as " + functions[call.Func].usage}
 			}
 			st = append(st, pool.Of(q))
 			continue
@@ -266,19 +275,19 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 						hint = "the divisor " + b.Y.String() + " is 0"
 					}
 				}
-				return exact.Zero, false, &EvalError{Pos: o.at, Msg: "division by zero", Hint: hint}
+				return nil, false, &EvalError{Pos: o.at, Msg: "division by zero", Hint: hint}
 			}
 			var ok bool
 			r, ok = pool.Div(x, y, DivisionScale)
 			isExact = isExact && ok
 		}
 		if !pool.Bounded(r, MaxDigits) {
-			return exact.Zero, false, &EvalError{Pos: o.at, Msg: fmt.Sprintf("this figure has more than %d significant digits", MaxDigits),
+			return nil, false, &EvalError{Pos: o.at, Msg: fmt.Sprintf("this figure has more than %d significant digits", MaxDigits),
 				Hint: "a figure this long is almost always a mistake (a number multiplied by itself again and again); forkcast keeps figures to " + fmt.Sprint(MaxDigits) + " digits"}
 		}
 		st[len(st)-1] = r
 	}
-	return st[0], isExact, nil
+	return st, isExact, nil
 }
 
 // evalFloat runs the program in float64 on the input values in (for

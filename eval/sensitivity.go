@@ -260,7 +260,7 @@ func (a *analysis) oneInput(vr VaryRange, opts SensitivityOptions, vnode int, po
 		return nil, err
 	}
 	be := s.be
-	is := &InputSensitivity{Vary: vr.Vary, What: be.What, Probability: isProbability(a.c.Source(), vr.Vary), From: from,
+	is := &InputSensitivity{Vary: vr.Vary, What: be.What, Probability: vr.Vary.IsProbability(a.c.Source()), From: from,
 		Low: be.Low, Base: be.Current, High: be.High, Narrowed: be.Narrowed, Adjust: be.Adjust, BestLow: -1, BestHigh: -1, Exact: true}
 	end := func(x decimal.Decimal) (value, fixed decimal.Decimal, best int, err error) {
 		m, r, err := s.rolled(x)

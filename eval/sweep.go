@@ -179,7 +179,7 @@ func (a *analysis) axis(s *search, vr VaryRange, steps int) (SweepAxis, error) {
 		return SweepAxis{}, err
 	}
 	be := s.be
-	ax := SweepAxis{Vary: vr.Vary, What: be.What, Probability: isProbability(a.c.Source(), vr.Vary), From: from,
+	ax := SweepAxis{Vary: vr.Vary, What: be.What, Probability: vr.Vary.IsProbability(a.c.Source()), From: from,
 		Current: be.Current, Low: be.Low, High: be.High, Narrowed: be.Narrowed, Adjust: be.Adjust}
 	width := be.High.Sub(be.Low)
 	if width.IsZero() {

@@ -232,8 +232,10 @@ func usedAsProbability(m *tree.Model, name string) bool {
 	return used
 }
 
-// isProbability reports whether the input v stands for a probability.
-func isProbability(m *tree.Model, v Vary) bool {
+// IsProbability reports whether the input v of model m stands for a
+// probability: a state's or a branch's, or a parameter that some
+// probability of the model reads (so that its values read as percentages).
+func (v Vary) IsProbability(m *tree.Model) bool {
 	return v.Kind != VaryParam || usedAsProbability(m, v.Name)
 }
 

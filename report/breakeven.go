@@ -62,33 +62,7 @@ type beFormat struct {
 }
 
 func inputFormat(m *tree.Model, be *eval.Breakeven) beFormat {
-	if be.Vary.Kind != eval.VaryParam {
-		return beFormat{prob: true}
-	}
-	// A parameter written as a probability somewhere counts as one.
-	used := false
-	look := func(e tree.Expr) {
-		tree.Names(e, func(n *tree.Name) { used = used || n.Name == be.Vary.Name })
-	}
-	for _, u := range m.Uncertainties {
-		for _, s := range u.States {
-			look(s.Prob)
-		}
-	}
-	for _, t := range m.Tests {
-		for _, rd := range t.Readings {
-			for _, l := range rd.Given {
-				look(l.Prob)
-			}
-		}
-	}
-	tree.Walk(m.Root, func(n *tree.Node, _ int) bool {
-		for _, b := range n.Branches {
-			look(b.Prob)
-		}
-		return true
-	})
-	return beFormat{prob: used}
+	return beFormat{prob: be.Vary.IsProbability(m)}
 }
 
 func (f beFormat) show(x decimal.Decimal, exact bool) string {

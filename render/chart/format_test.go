@@ -64,7 +64,7 @@ func TestEmbedFonts(t *testing.T) {
 		o.EmbedFonts = true
 		return WriteSpider(w, demoSpider(), o)
 	}
-	a, b := render(t, draw, Options{}), render(t, draw, Options{})
+	a, b := drawn(t, draw, Options{}), drawn(t, draw, Options{})
 	if !bytes.Equal(a, b) {
 		t.Errorf("two runs differ")
 	}
@@ -75,7 +75,7 @@ func TestEmbedFonts(t *testing.T) {
 	if doc.count("Licence fee") != 1 {
 		t.Errorf("text lost: %q", doc.strings())
 	}
-	plain := render(t, func(w io.Writer, o Options) error { return WriteSpider(w, demoSpider(), o) }, Options{})
+	plain := drawn(t, func(w io.Writer, o Options) error { return WriteSpider(w, demoSpider(), o) }, Options{})
 	if bytes.Contains(plain, []byte("@font-face")) {
 		t.Errorf("fonts embedded without being asked for")
 	}

@@ -153,7 +153,7 @@ func TestSimulatedRefusesBadData(t *testing.T) {
 // One value repeated: the histogram still has a width to draw.
 func TestHistogramOfOneValue(t *testing.T) {
 	data := Simulated{Series: []SampleSet{{Label: "flat", Samples: []float64{5, 5, 5}}}}
-	doc := parseSVG(t, render(t, func(w io.Writer, o Options) error { return WriteHistogram(w, data, o) }, Options{}))
+	doc := parseSVG(t, drawn(t, func(w io.Writer, o Options) error { return WriteHistogram(w, data, o) }, Options{}))
 	if doc.count("flat") != 1 {
 		t.Errorf("heading missing: %q", doc.strings())
 	}

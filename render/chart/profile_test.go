@@ -120,7 +120,7 @@ func TestMassManyPayoffsUsePanels(t *testing.T) {
 		d.Outcomes = append(d.Outcomes, Outcome{Value: float64(k * 1000), Probability: 1.0 / float64(MaxGroups+1)})
 	}
 	d.Label = "Many"
-	doc := parseSVG(t, render(t, func(w io.Writer, o Options) error { return WriteMass(w, Profiles{Options: []Distribution{d}}, o) }, Options{}))
+	doc := parseSVG(t, drawn(t, func(w io.Writer, o Options) error { return WriteMass(w, Profiles{Options: []Distribution{d}}, o) }, Options{}))
 	if doc.count("Many") != 1 || outlinedBoxes(doc) != MaxGroups+1 {
 		t.Errorf("want one panel headed Many with %d bars; got %d headings, %d bars", MaxGroups+1, doc.count("Many"), outlinedBoxes(doc))
 	}

@@ -184,8 +184,8 @@ func colour(c interface{ RGBA() (r, g, b, a uint32) }) string {
 	return fmt.Sprintf("#%02X%02X%02X", r>>8, g>>8, b>>8)
 }
 
-// render draws a chart into memory.
-func render(t *testing.T, f func(io.Writer, Options) error, opt Options) []byte {
+// drawn draws a chart into memory.
+func drawn(t *testing.T, f func(io.Writer, Options) error, opt Options) []byte {
 	t.Helper()
 	var buf bytes.Buffer
 	if err := f(&buf, opt); err != nil {
@@ -198,13 +198,13 @@ func render(t *testing.T, f func(io.Writer, Options) error, opt Options) []byte 
 // across two runs, SVG that parses, and a PNG of the size asked for.
 func checkCommon(t *testing.T, f func(io.Writer, Options) error) svgDoc {
 	t.Helper()
-	a, b := render(t, f, Options{}), render(t, f, Options{})
+	a, b := drawn(t, f, Options{}), drawn(t, f, Options{})
 	if !bytes.Equal(a, b) {
 		t.Errorf("two SVG runs differ")
 	}
 	doc := parseSVG(t, a)
 	opt := Options{Format: PNG, Width: 400, Height: 300, DPI: 90}
-	p1, p2 := render(t, f, opt), render(t, f, opt)
+	p1, p2 := drawn(t, f, opt), drawn(t, f, opt)
 	if !bytes.Equal(p1, p2) {
 		t.Errorf("two PNG runs differ")
 	}

@@ -3,8 +3,8 @@ package chart
 import (
 	"math"
 	"strconv"
-	"strings"
 
+	"github.com/forkcast/forkcast/render"
 	"gonum.org/v1/plot"
 )
 
@@ -93,25 +93,7 @@ func decimalsFor(step float64) int {
 // formatNumber writes v with the given decimals and thousands separators:
 // 1234567.5 → "1,234,567.5". Zero is never written with a minus sign.
 func formatNumber(v float64, decimals int) string {
-	s := strconv.FormatFloat(v, 'f', decimals, 64)
-	neg := strings.HasPrefix(s, "-")
-	s = strings.TrimPrefix(s, "-")
-	intPart, frac := s, ""
-	if i := strings.IndexByte(s, '.'); i >= 0 {
-		intPart, frac = s[:i], s[i:]
-	}
-	var b strings.Builder
-	if neg && strings.Trim(intPart+frac, "0.") != "" {
-		b.WriteByte('-')
-	}
-	for i, c := range intPart {
-		if i > 0 && (len(intPart)-i)%3 == 0 {
-			b.WriteByte(',')
-		}
-		b.WriteRune(c)
-	}
-	b.WriteString(frac)
-	return b.String()
+	return render.Grouped(strconv.FormatFloat(v, 'f', decimals, 64))
 }
 
 // formatValue writes a value shown beside a mark or a bar: with up to

@@ -82,7 +82,7 @@ func TestTornadoDrawsOneBarPerItemWidestOnTop(t *testing.T) {
 func TestTornadoKeepOrder(t *testing.T) {
 	data := demoTornado()
 	data.KeepOrder = true
-	doc := parseSVG(t, render(t, func(w io.Writer, o Options) error { return WriteTornado(w, data, o) }, Options{}))
+	doc := parseSVG(t, drawn(t, func(w io.Writer, o Options) error { return WriteTornado(w, data, o) }, Options{}))
 	var labels []string
 	for _, b := range data.Bars {
 		labels = append(labels, b.Label)
@@ -104,7 +104,7 @@ func TestTornadoRanking(t *testing.T) {
 			{Label: "R3 Steel price", End: 8_500},
 		},
 	}
-	doc := parseSVG(t, render(t, func(w io.Writer, o Options) error { return WriteTornado(w, data, o) }, Options{}))
+	doc := parseSVG(t, drawn(t, func(w io.Writer, o Options) error { return WriteTornado(w, data, o) }, Options{}))
 	if got, want := sortedBy(t, doc, []string{"R1 Late permits", "R2 Crane failure", "R3 Steel price"}),
 		[]string{"R2 Crane failure", "R1 Late permits", "R3 Steel price"}; !slices.Equal(got, want) {
 		t.Errorf("order %q, want %q", got, want)
