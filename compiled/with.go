@@ -2,6 +2,7 @@ package compiled
 
 import (
 	"fmt"
+	"slices"
 	"sort"
 	"strings"
 
@@ -112,30 +113,37 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 		}
 	}
 	// The figures the changed inputs reach, directly or through other
-	// inputs, evaluated in their order (inputs first).
-	reached := map[int32]bool{}
+	// inputs, evaluated in their order (inputs first). Each slot's readers
+	// are listed in that order already, so one slot's need no sorting.
+	var order []int32
+	expanded := 0
+	var inputsReached map[int32]bool
 	for len(queue) > 0 {
 		s := queue[len(queue)-1]
 		queue = queue[:len(queue)-1]
+		expanded++
 		for _, fi := range c.sh.readers[s] {
-			if reached[fi] {
-				continue
-			}
 			f := c.sh.dyn[fi]
-			if f.kind == figInput && n.fixed != nil && n.fixed[f.i] {
-				continue // given its own value: no longer computed
-			}
-			reached[fi] = true
 			if f.kind == figInput {
+				if n.fixed != nil && n.fixed[f.i] {
+					continue // given its own value: no longer computed
+				}
+				if inputsReached[fi] {
+					continue
+				}
+				if inputsReached == nil {
+					inputsReached = map[int32]bool{}
+				}
+				inputsReached[fi] = true
 				queue = append(queue, f.i)
 			}
+			order = append(order, fi)
 		}
 	}
-	order := make([]int32, 0, len(reached))
-	for fi := range reached {
-		order = append(order, fi)
+	if expanded > 1 {
+		slices.Sort(order)
 	}
-	sort.Slice(order, func(a, b int) bool { return order[a] < order[b] })
+	order = slices.Compact(order) // a figure reading an input twice
 	var ds tree.Diagnostics
 	dynCopied := false
 	// An input given its own value is no longer computed: its expression's

@@ -321,6 +321,10 @@ type search struct {
 	// option that raises the budget ("" for BreakevenOptions.MaxSamples).
 	used         int
 	budgetOption string
+	// spare is the last sample's rollback, whose arrays the next sample
+	// reuses: a sweep of a large tree otherwise allocates them at every
+	// point.
+	spare *compiled.Rollback
 }
 
 // sample is the watched decision at one value of the input: every option's
@@ -709,7 +713,7 @@ func (s *search) sample(x decimal.Decimal) (*sample, error) {
 	if err != nil {
 		return nil, err
 	}
-	r := cs.Rollback()
+	r := cs.RollbackInto(s.spare)
 	from, to := cs.Kids(s.node)
 	sm := &sample{x: x, best: r.Best(s.node), mass: cs.Mass(s.node), exact: true,
 		t: make([]decimal.Decimal, to-from), values: make([]decimal.Decimal, to-from)}
@@ -719,6 +723,7 @@ func (s *search) sample(x decimal.Decimal) (*sample, error) {
 		sm.values[k-from] = v
 		sm.exact = sm.exact && ok
 	}
+	s.spare = r
 	return sm, nil
 }
 

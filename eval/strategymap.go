@@ -143,6 +143,7 @@ func MapStrategies(ctx context.Context, c *compiled.Model, opts MapOptions) (*St
 	}
 	a.spent(sy)
 	mp := &mapper{a: a, sx: sx, sy: sy, xs: xa.Values, ys: ya.Values}
+	mp.plan(opts.X.Vary, opts.Y.Vary)
 	out := &StrategyMap{Objective: a.obj, X: xa, Y: ya, Decision: a.decision, Path: a.path, Options: a.options, Exact: true}
 	if err := mp.grid(opts.Progress); err != nil {
 		return nil, err
@@ -189,6 +190,25 @@ type mapper struct {
 	// i to i+1; vpts[i][j] on the column i edge from j to j+1.
 	hpts, vpts [][][]edgePoint
 	bounds     []Boundary
+	// staged: a grid line starts from the model with the other input set
+	// (see line). byColumn: the grid is sampled column by column, the
+	// horizontal input fixed along each, because it is the dearer one to
+	// change.
+	staged, byColumn bool
+}
+
+// plan chooses how the grid is sampled. Setting an input that moves a
+// probability derives every mass below it again, while one that only moves
+// money weighs again just the branches that read it; so each grid line
+// starts from a model with the line's fixed input set once, and the lines
+// run along the cheaper input. Both inputs probabilities of states or
+// branches are set together at every point instead: one may make room for
+// the other among the siblings of a chance node, and set apart the later
+// setting would undo the earlier one's share.
+func (mp *mapper) plan(x, y Vary) {
+	mp.staged = x.Kind == VaryParam || y.Kind == VaryParam
+	src := mp.a.c.Source()
+	mp.byColumn = mp.staged && isProbability(src, x) && !isProbability(src, y)
 }
 
 // edgePoint is a switch on a grid line.
@@ -199,17 +219,29 @@ type edgePoint struct {
 
 // line is a search along a grid line: the horizontal input moving with
 // the vertical one at y (row), or the vertical moving with the horizontal
-// at x (column).
-func (mp *mapper) line(row bool, at decimal.Decimal) *search {
+// at x (column). A staged line (see plan) starts from the model with the
+// fixed input already set, so that each point changes only the moving one;
+// where that model is not valid the line sets both at every point, and
+// each point says why it is not valid.
+func (mp *mapper) line(row bool, at decimal.Decimal, stage bool) *search {
 	a := mp.a
-	var s *search
+	moving, fixed := mp.sx, mp.sy
+	if !row {
+		moving, fixed = mp.sy, mp.sx
+	}
+	s := a.search(moving.be.Vary)
+	if stage && mp.staged {
+		if base, err := a.c.With(fixed.settings(at)...); err == nil {
+			s.c = base
+			s.settings = moving.settings
+			return s
+		}
+	}
 	if row {
-		s = a.search(mp.sx.be.Vary)
 		s.settings = func(x decimal.Decimal) []compiled.Setting {
 			return append(mp.sx.settings(x), mp.sy.settings(at)...)
 		}
 	} else {
-		s = a.search(mp.sy.be.Vary)
 		s.settings = func(y decimal.Decimal) []compiled.Setting {
 			return append(mp.sx.settings(at), mp.sy.settings(y)...)
 		}
@@ -217,13 +249,36 @@ func (mp *mapper) line(row bool, at decimal.Decimal) *search {
 	return s
 }
 
-// grid samples every grid point, row by row.
+// grid samples every grid point, line by line: row by row, or column by
+// column when mp.byColumn.
 func (mp *mapper) grid(progress func(done, total int)) error {
-	for j, y := range mp.ys {
-		s := mp.line(true, y)
-		row := make([]*sample, len(mp.xs))
-		for i, x := range mp.xs {
-			sm, err := s.sample(x)
+	nx, ny := len(mp.xs), len(mp.ys)
+	mp.at = make([][]*sample, ny)
+	for j := range mp.at {
+		mp.at[j] = make([]*sample, nx)
+	}
+	lines, points := ny, nx
+	if mp.byColumn {
+		lines, points = nx, ny
+	}
+	for l := 0; l < lines; l++ {
+		var s *search
+		if mp.byColumn {
+			s = mp.line(false, mp.xs[l], true)
+		} else {
+			s = mp.line(true, mp.ys[l], true)
+		}
+		for k := 0; k < points; k++ {
+			i, j := k, l
+			if mp.byColumn {
+				i, j = l, k
+			}
+			x, y := mp.xs[i], mp.ys[j]
+			at := x
+			if mp.byColumn {
+				at = y
+			}
+			sm, err := s.sample(at)
 			var inv *invalidAt
 			switch {
 			case errors.As(err, &inv):
@@ -233,18 +288,20 @@ func (mp *mapper) grid(progress func(done, total int)) error {
 			case err != nil:
 				return err
 			}
-			row[i] = sm
+			if sm != nil && mp.byColumn {
+				sm = along(sm, x)
+			}
+			mp.at[j][i] = sm
 		}
 		mp.a.spent(s)
-		mp.at = append(mp.at, row)
 		if progress != nil {
-			progress(j+1, len(mp.ys))
+			progress(l+1, lines)
 		}
 	}
 	return nil
 }
 
-// along is sm moved onto a column: its coordinate is y.
+// along is sm moved onto another line: its coordinate is y.
 func along(sm *sample, y decimal.Decimal) *sample {
 	c := *sm
 	c.x = y
@@ -258,11 +315,14 @@ func (mp *mapper) edges() error {
 	mp.hpts = make([][][]edgePoint, ny)
 	for j := 0; j < ny; j++ {
 		mp.hpts[j] = make([][]edgePoint, nx)
-		s := mp.line(true, mp.ys[j])
+		var s *search // made when the row has a switch to find
 		for i := 0; i+1 < nx; i++ {
 			l, r := mp.at[j][i], mp.at[j][i+1]
 			if l == nil || r == nil || l.best == r.best {
 				continue
+			}
+			if s == nil {
+				s = mp.line(true, mp.ys[j], true)
 			}
 			sws, err := s.between(l, r)
 			if err != nil {
@@ -272,16 +332,21 @@ func (mp *mapper) edges() error {
 				mp.hpts[j][i] = append(mp.hpts[j][i], edgePoint{p: pointOn(sw, mp.ys[j], true), a: sw.Below, b: sw.Above})
 			}
 		}
-		mp.a.spent(s)
+		if s != nil {
+			mp.a.spent(s)
+		}
 	}
 	mp.vpts = make([][][]edgePoint, nx)
 	for i := 0; i < nx; i++ {
 		mp.vpts[i] = make([][]edgePoint, ny)
-		s := mp.line(false, mp.xs[i])
+		var s *search // made when the column has a switch to find
 		for j := 0; j+1 < ny; j++ {
 			d, u := mp.at[j][i], mp.at[j+1][i]
 			if d == nil || u == nil || d.best == u.best {
 				continue
+			}
+			if s == nil {
+				s = mp.line(false, mp.xs[i], true)
 			}
 			sws, err := s.between(along(d, mp.ys[j]), along(u, mp.ys[j+1]))
 			if err != nil {
@@ -291,7 +356,9 @@ func (mp *mapper) edges() error {
 				mp.vpts[i][j] = append(mp.vpts[i][j], edgePoint{p: pointOn(sw, mp.xs[i], false), a: sw.Below, b: sw.Above})
 			}
 		}
-		mp.a.spent(s)
+		if s != nil {
+			mp.a.spent(s)
+		}
 	}
 	return nil
 }
@@ -431,7 +498,7 @@ func (mp *mapper) tieAt(x, y *big.Rat, options ...int) (bool, error) {
 	if dx.Rat().Cmp(x) != 0 || dy.Rat().Cmp(y) != 0 {
 		return true, nil
 	}
-	s := mp.line(true, dy)
+	s := mp.line(true, dy, false)
 	defer mp.a.spent(s)
 	sm, err := s.sample(dx)
 	var inv *invalidAt

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math/big"
+	"math/rand"
 	"testing"
 
 	"github.com/forkcast/forkcast/tree"
@@ -247,5 +248,69 @@ func TestStrategyMapLines(t *testing.T) {
 	}
 	if fmt.Sprint(got) != fmt.Sprint(want) {
 		t.Errorf("lines\n%s\nwant\n%s", got, want)
+	}
+}
+
+// Random trees (randomInputModel): every cell of a map against a fresh
+// solve on math/big.Rat of the model with both inputs set, and every exact
+// boundary point a tie of its two options there. The pairs cover a money
+// input across a probability (the grid sampled column by column), the
+// reverse (row by row) and two money inputs.
+func TestStrategyMapRandomTrees(t *testing.T) {
+	rng := rand.New(rand.NewSource(12))
+	tiesChecked := 0
+	trees := 16
+	if testing.Short() {
+		trees = 5
+	}
+	for it := 0; it < trees; it++ {
+		m := randomInputModel(rng, 10+rng.Intn(80))
+		c := mustCompile(t, m)
+		env := map[string]*big.Rat{}
+		for _, p := range m.Params {
+			env[p.Name] = ratEnv(p.Expr, env)
+		}
+		// Ranges wide enough that the best option changes in most maps.
+		ranges := map[string][2]string{"q": {"0", "0.3"}, "x0": {"-3000", "3000"}, "x1": {"-2000", "4000"}, "x2": {"-4000", "2500"}, "x3": {"-1500", "3500"}}
+		for _, axes := range [][2]string{{"q", "x0"}, {"x1", "q"}, {"x2", "x3"}} {
+			rx, ry := ranges[axes[0]], ranges[axes[1]]
+			mp, err := MapStrategies(context.Background(), c, MapOptions{X: vr(t, axes[0], rx[0], rx[1]), Y: vr(t, axes[1], ry[0], ry[1]), Steps: 6})
+			if err != nil {
+				t.Fatalf("tree %d %v: %v", it, axes, err)
+			}
+			at := func(x, y *big.Rat) *ratTree {
+				e := map[string]*big.Rat{}
+				for k, v := range env {
+					e[k] = v
+				}
+				e[axes[0]], e[axes[1]] = x, y
+				return &ratTree{m: m, env: e, best: map[*tree.Node]int{}}
+			}
+			for j, yv := range mp.Y.Values {
+				for i, xv := range mp.X.Values {
+					fresh := at(xv.Rat(), yv.Rat())
+					fresh.value(m.Root)
+					if mp.Best[j][i] != fresh.best[m.Root] {
+						t.Errorf("tree %d %v cell (%s, %s): best %d, big.Rat %d", it, axes, xv, yv, mp.Best[j][i], fresh.best[m.Root])
+					}
+				}
+			}
+			for _, b := range mp.Boundaries {
+				for _, p := range []BoundaryPoint{b.From, b.To} {
+					if !p.Exact {
+						continue
+					}
+					tiesChecked++
+					opts := at(p.XFraction, p.YFraction).options()
+					if opts[b.A].Cmp(opts[b.B]) != 0 {
+						t.Errorf("tree %d %v: boundary %d|%d at (%s, %s), but the options are worth %s and %s", it, axes, b.A, b.B, p.XFraction, p.YFraction, opts[b.A].RatString(), opts[b.B].RatString())
+					}
+				}
+			}
+		}
+	}
+	t.Logf("%d exact boundary points checked", tiesChecked)
+	if tiesChecked == 0 {
+		t.Errorf("no exact boundary point in any map: the trees test nothing of the boundaries")
 	}
 }

@@ -12,6 +12,26 @@ type bigInt = big.Int
 
 var bigTen = big.NewInt(10)
 
+// bigPow10 holds 10^0 … 10^79, read only: scaling a figure to the tree's
+// scale is done for every node of every weighing, and computing the power
+// each time cost more than the multiplication.
+var bigPow10 = func() (t [80]*big.Int) {
+	t[0] = big.NewInt(1)
+	for i := 1; i < len(t); i++ {
+		t[i] = new(big.Int).Mul(t[i-1], bigTen)
+	}
+	return t
+}()
+
+// pow10Big is 10^k (k ≥ 0), from the table when it is there; the caller
+// must not change it.
+func pow10Big(k int64) *big.Int {
+	if k < int64(len(bigPow10)) {
+		return bigPow10[k]
+	}
+	return new(big.Int).Exp(bigTen, big.NewInt(k), nil)
+}
+
 // Wide is a signed 128-bit integer (two's complement): an amount at the
 // tree's scale, so that the kernel sums and compares integers only.
 type Wide struct {
@@ -66,13 +86,20 @@ func (p *Pool) WideOf(n Num, scale int32) (Wide, bool) {
 // BigOf returns n × 10^scale as a big integer; ok is false when that is
 // not an integer.
 func (p *Pool) BigOf(n Num, scale int32) (*big.Int, bool) {
-	d := p.Dec(n)
-	k := int64(scale) + int64(d.Exponent())
-	c := d.Coefficient()
-	if k >= 0 {
-		return c.Mul(c, new(big.Int).Exp(bigTen, big.NewInt(k), nil)), true
+	var c *big.Int
+	var k int64
+	if n.x > 0 {
+		d := p.bigs[n.x-1]
+		k = int64(scale) + int64(d.Exponent())
+		c = d.Coefficient() // a copy
+	} else {
+		k = int64(scale) + int64(n.e)
+		c = big.NewInt(n.c)
 	}
-	q, r := new(big.Int).QuoRem(c, new(big.Int).Exp(bigTen, big.NewInt(-k), nil), new(big.Int))
+	if k >= 0 {
+		return c.Mul(c, pow10Big(k)), true
+	}
+	q, r := new(big.Int).QuoRem(c, pow10Big(-k), new(big.Int))
 	return q, r.Sign() == 0
 }
 
