@@ -208,7 +208,7 @@ type mapper struct {
 func (mp *mapper) plan(x, y Vary) {
 	mp.staged = x.Kind == VaryParam || y.Kind == VaryParam
 	src := mp.a.c.Source()
-	mp.byColumn = mp.staged && isProbability(src, x) && !isProbability(src, y)
+	mp.byColumn = mp.staged && x.IsProbability(src) && !y.IsProbability(src)
 }
 
 // edgePoint is a switch on a grid line.
