@@ -3,6 +3,7 @@ package eval
 import (
 	"sort"
 
+	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
@@ -88,6 +89,7 @@ func dominated(sol *Solution, maxEnds int) tree.Diagnostics {
 	w := &lotteryWalk{c: c, max: maxEnds, option: "DefaultMaxOutcomes",
 		policy: func(i int) int { return sol.r.Best(i) }}
 	budgetLeft := true
+	drawn := drawnBelow(c)
 	for x := range sol.nodes {
 		s := &sol.nodes[x]
 		if s.Node.Kind != tree.KindDecision {
@@ -95,6 +97,11 @@ func dominated(sol *Solution, maxEnds int) tree.Diagnostics {
 		}
 		from, to := c.Kids(int(s.i))
 		k := to - from
+		if drawn[s.i] {
+			// A figure under it is random and stands at its mean here:
+			// its outcomes are not the ones the draws would give.
+			continue
+		}
 		certain := true
 		for j := from; j < to; j++ {
 			certain = certain && rs[j].Lo.Equal(rs[j].Hi)
@@ -169,4 +176,18 @@ func stochasticallyDominated(w *lotteryWalk, s *Solved, warned []bool, ds *tree.
 		}
 	}
 	return true
+}
+
+// drawnBelow returns, per node, whether a node under it has a figure
+// drawn from a random input (compiled.Model.DrawnNodes). Nodes are
+// numbered breadth-first, so a node comes after its parent.
+func drawnBelow(c *compiled.Model) []bool {
+	drawn := c.DrawnNodes()
+	below := make([]bool, len(drawn))
+	for i := len(drawn) - 1; i > 0; i-- {
+		if drawn[i] || below[i] {
+			below[c.Parent(i)] = true
+		}
+	}
+	return below
 }

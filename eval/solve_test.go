@@ -240,6 +240,33 @@ func TestDominated(t *testing.T) {
 	}
 }
 
+// TestDominatedDrawn: an option whose figure is drawn from a distribution
+// stands at its mean in the solved tree, so being worse there than
+// another option in every outcome says nothing about its draws: no
+// warning. The same option with the figure fixed at that mean is
+// dominated.
+func TestDominatedDrawn(t *testing.T) {
+	build := func(x tree.Expr) *tree.Model {
+		return &tree.Model{Params: []*tree.Param{tree.Input("x", x)}, Root: tree.Decision("Pick",
+			tree.Choice("Risky", tree.Gain(tree.Ref("x")), nil),
+			tree.Choice("Sure", tree.Gain(tree.Num(d("60"))), nil),
+			tree.Choice("Gamble", tree.NoCash, tree.Chance("c",
+				tree.Outcome("a", tree.Num(d("0.5")), tree.Gain(tree.Num(d("100"))), nil),
+				tree.Outcome("b", tree.Num(d("0.5")), tree.Gain(tree.Num(d("0"))), nil))),
+		)}
+	}
+	// pert(0, 50, 70) has mean (0 + 200 + 70)/6 = 45, below 60; it can
+	// draw up to 70.
+	drawn := &tree.Call{Func: "pert", Args: []tree.Expr{tree.Num(d("0")), tree.Num(d("50")), tree.Num(d("70"))}}
+	if ds := Dominated(mustSolve(t, build(drawn))); len(ds) != 0 {
+		t.Errorf("a drawn option is reported: %v", ds)
+	}
+	ds := Dominated(mustSolve(t, build(tree.Num(d("45")))))
+	if len(ds) != 1 || !strings.Contains(ds[0].Summary, `option "Risky" of "Pick" is dominated`) {
+		t.Errorf("the fixed option: %v, want it dominated", ds)
+	}
+}
+
 // ratRollback is an independent evaluator on math/big.Rat (exact rational
 // arithmetic from the standard library), written recursively and straight
 // from the textbook definition of rollback, on the figures as written (in

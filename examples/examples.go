@@ -17,12 +17,23 @@ type Example struct {
 	Source []byte
 }
 
-// Names lists the bundled examples in alphabetical order.
-func Names() []string {
+// Names lists the bundled examples that hold a decision tree, in
+// alphabetical order.
+func Names() []string { return list(false) }
+
+// Registers lists the bundled examples that hold a risk register and no
+// tree, in alphabetical order: `forkcast register example:NAME` analyses
+// them. Their names end in -register.
+func Registers() []string { return list(true) }
+
+func list(registers bool) []string {
 	entries, _ := files.ReadDir(".")
 	var out []string
 	for _, e := range entries {
-		out = append(out, strings.TrimSuffix(e.Name(), ".fork"))
+		name := strings.TrimSuffix(e.Name(), ".fork")
+		if strings.HasSuffix(name, "-register") == registers {
+			out = append(out, name)
+		}
 	}
 	sort.Strings(out)
 	return out

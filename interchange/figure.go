@@ -165,6 +165,14 @@ func (r *reader) number(t token, isJSON bool) (decimal.Decimal, bool) {
 // calculation reads a string token as a calculation in the text language's
 // syntax, with positions in the JSON text.
 func (r *reader) calculation(t token) tree.Expr {
+	if bytes.HasPrefix(t.text, []byte("register ")) {
+		text := string(t.text)
+		// What the solved output writes for an input taken from a
+		// register: the registers themselves are only in the text.
+		r.errLen(t.pos, len([]rune(text))+2, "registers are read from .fork text only: solve the .fork file, or give the input a number here",
+			"%s: the interchange JSON holds no risk registers", shorten(text))
+		return nil
+	}
 	x, ds := lang.ParseExpr(string(t.text), tree.Pos{Line: 1, Col: 1})
 	place := func(p tree.Pos) tree.Pos {
 		if !p.IsValid() {

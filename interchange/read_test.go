@@ -240,6 +240,7 @@ func TestReadErrors(t *testing.T) {
 		{"branch without label", `{"root": {"type": "decision", "branches": [{"gain": 1}]}}`, `1:44: a branch has no "label"`},
 		{"payoff on a decision", `{"root": {"type": "decision", "payoff": 3, "branches": [{"label": "a"}]}}`, `1:41: decision node has a "payoff"; only an end node has one`},
 		{"unknown name", `{"inputs": [{"name": "fee", "value": 1}], "root": {"type": "decision", "branches": [{"label": "a", "cost": "2 * fees"}]}}`, `1:113: unknown name "fees"`},
+		{"register input", `{"inputs": [{"name": "r", "value": "register works total"}], "root": {"type": "end"}}`, `1:36: register works total: the interchange JSON holds no risk registers`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

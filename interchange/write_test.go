@@ -182,6 +182,9 @@ func TestWriteExamples(t *testing.T) {
 		if ds.HasErrors() {
 			t.Fatal(ds)
 		}
+		if len(c.Source().Registers) > 0 {
+			continue // registers stay in the text (the JSON holds none)
+		}
 		sol, err := eval.Solve(c)
 		if err != nil {
 			t.Fatal(err)

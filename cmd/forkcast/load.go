@@ -60,7 +60,7 @@ func readSource(c *cli.Context, name string) ([]byte, bool, error) {
 	case strings.HasPrefix(name, "example:"):
 		ex, ok := examples.Get(strings.TrimPrefix(name, "example:"))
 		if !ok {
-			return nil, false, modelErr("no example %q; the examples are: %s", strings.TrimPrefix(name, "example:"), strings.Join(examples.Names(), ", "))
+			return nil, false, modelErr("no example %q; the examples are: %s", strings.TrimPrefix(name, "example:"), strings.Join(append(examples.Names(), examples.Registers()...), ", "))
 		}
 		return ex.Source, false, nil
 	}
