@@ -74,7 +74,8 @@ type compiler struct {
 	calls map[*tree.Call]int32
 	relet bool
 	// env maps input slots to the slots that stand for them below the
-	// branch of a split being compiled (split.go); envOf is each node's.
+	// branch of a split being compiled (split.go); envOf is each node's,
+	// nil until the first split (nodes above and beside it have none).
 	env   map[int32]int32
 	envOf []map[int32]int32
 }
@@ -608,10 +609,8 @@ func (k *compiler) tree() {
 		k.c.cash = append(k.c.cash, exact.Zero)
 		k.c.prob = append(k.c.prob, exact.Zero)
 		k.c.payoff = append(k.c.payoff, exact.Zero)
-		if parent >= 0 {
+		if k.envOf != nil { // nil until a split is met (split.go)
 			k.envOf = append(k.envOf, k.envOf[parent])
-		} else {
-			k.envOf = append(k.envOf, nil)
 		}
 		if named {
 			sh.unc = append(sh.unc, -1)
@@ -632,7 +631,10 @@ func (k *compiler) tree() {
 		for _, b := range n.Branches {
 			push(b.Node, ii)
 		}
-		k.env = k.envOf[i]
+		k.env = nil
+		if k.envOf != nil {
+			k.env = k.envOf[i]
+		}
 		if n.Split != nil {
 			k.split(n, from)
 		}

@@ -86,95 +86,111 @@ type sourceOf func(c *tree.Call) (int32, *EvalError)
 // compileExpr compiles e. A distribution in e becomes the input slot
 // source gives it; with a nil source, the distribution itself is compiled
 // (opCall: its mean).
-func compileExpr(pool *exact.Pool, e tree.Expr, look scope, source sourceOf) (p *program, err *EvalError) {
-	p = &program{}
-	seen := map[int32]bool{}
-	var walk func(e tree.Expr) *EvalError
-	walk = func(e tree.Expr) *EvalError {
-		switch e := e.(type) {
-		case nil:
-			p.ops = append(p.ops, op{code: opConst, arg: int32(len(p.consts))})
-			p.consts = append(p.consts, exact.Zero)
-		case *tree.Number:
-			p.ops = append(p.ops, op{code: opConst, arg: int32(len(p.consts)), at: e.At})
-			p.consts = append(p.consts, numOf(pool, e))
-		case *tree.Name:
-			slot, err := look(e)
-			if err != nil {
-				return err
-			}
-			p.ops = append(p.ops, op{code: opSlot, arg: slot, at: e.At})
-			if !seen[slot] {
-				seen[slot] = true
-				p.slots = append(p.slots, slot)
-			}
-		case *tree.Unary:
-			if err := walk(e.X); err != nil {
-				return err
-			}
-			p.ops = append(p.ops, op{code: opNeg, at: e.At})
-		case *tree.Binary:
-			if err := walk(e.X); err != nil {
-				return err
-			}
-			if err := walk(e.Y); err != nil {
-				return err
-			}
-			o := op{at: e.At, expr: e}
-			switch e.Op {
-			case '+':
-				o.code = opAdd
-			case '-':
-				o.code = opSub
-			case '*':
-				o.code = opMul
-			case '/':
-				o.code = opDiv
-				o.at = e.Y.Pos()
-			default:
-				return &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown operator %q", e.Op)}
-			}
-			p.ops = append(p.ops, o)
-		case *tree.Call:
-			fn, ok := functions[e.Func]
-			if !ok {
-				return &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown function %q", e.Func),
-					Hint: "the functions are the distributions " + functionNames()}
-			}
-			if n := len(e.Args); n < fn.min || (fn.max >= 0 && n > fn.max) {
-				return &EvalError{Pos: e.At, Msg: argError(e.Func, fn, n)}
-			}
-			if source != nil {
-				slot, err := source(e)
-				if err != nil {
-					return err
-				}
-				p.ops = append(p.ops, op{code: opSlot, arg: slot, at: e.At})
-				if !seen[slot] {
-					seen[slot] = true
-					p.slots = append(p.slots, slot)
-				}
-				return nil
-			}
-			for _, a := range e.Args {
-				if err := walk(a); err != nil {
-					return err
-				}
-			}
-			p.ops = append(p.ops, op{code: opCall, arg: int32(len(e.Args)), at: e.At, expr: e})
-		default:
-			return &EvalError{Pos: e.Pos(), Msg: fmt.Sprintf("unknown expression %T", e)}
-		}
-		return nil
-	}
-	if err := walk(e); err != nil {
+func compileExpr(pool *exact.Pool, e tree.Expr, look scope, source sourceOf) (*program, *EvalError) {
+	pc := progCompiler{pool: pool, look: look, source: source, p: &program{}}
+	if err := pc.walk(e); err != nil {
 		return nil, err
 	}
+	p := pc.p
 	p.fconsts = make([]float64, len(p.consts))
 	for i, c := range p.consts {
 		p.fconsts[i] = pool.Float64(c)
 	}
 	return p, nil
+}
+
+// progCompiler compiles one expression into p. It is a plain struct with a
+// recursive method, not a closure, and keeps no set of the slots seen: a
+// program reads a handful of slots at most, so a scan is cheaper than a map
+// for the hundreds of thousands of figures of a large model.
+type progCompiler struct {
+	pool   *exact.Pool
+	look   scope
+	source sourceOf
+	p      *program
+}
+
+// slot records that the program reads input slot s.
+func (pc *progCompiler) slot(s int32, at tree.Pos) {
+	p := pc.p
+	p.ops = append(p.ops, op{code: opSlot, arg: s, at: at})
+	for _, r := range p.slots {
+		if r == s {
+			return
+		}
+	}
+	p.slots = append(p.slots, s)
+}
+
+func (pc *progCompiler) walk(e tree.Expr) *EvalError {
+	p := pc.p
+	switch e := e.(type) {
+	case nil:
+		p.ops = append(p.ops, op{code: opConst, arg: int32(len(p.consts))})
+		p.consts = append(p.consts, exact.Zero)
+	case *tree.Number:
+		p.ops = append(p.ops, op{code: opConst, arg: int32(len(p.consts)), at: e.At})
+		p.consts = append(p.consts, numOf(pc.pool, e))
+	case *tree.Name:
+		slot, err := pc.look(e)
+		if err != nil {
+			return err
+		}
+		pc.slot(slot, e.At)
+	case *tree.Unary:
+		if err := pc.walk(e.X); err != nil {
+			return err
+		}
+		p.ops = append(p.ops, op{code: opNeg, at: e.At})
+	case *tree.Binary:
+		if err := pc.walk(e.X); err != nil {
+			return err
+		}
+		if err := pc.walk(e.Y); err != nil {
+			return err
+		}
+		o := op{at: e.At, expr: e}
+		switch e.Op {
+		case '+':
+			o.code = opAdd
+		case '-':
+			o.code = opSub
+		case '*':
+			o.code = opMul
+		case '/':
+			o.code = opDiv
+			o.at = e.Y.Pos()
+		default:
+			return &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown operator %q", e.Op)}
+		}
+		p.ops = append(p.ops, o)
+	case *tree.Call:
+		fn, ok := functions[e.Func]
+		if !ok {
+			return &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown function %q", e.Func),
+				Hint: "the functions are the distributions " + functionNames()}
+		}
+		if n := len(e.Args); n < fn.min || (fn.max >= 0 && n > fn.max) {
+			return &EvalError{Pos: e.At, Msg: argError(e.Func, fn, n)}
+		}
+		if pc.source != nil {
+			slot, err := pc.source(e)
+			if err != nil {
+				return err
+			}
+			pc.slot(slot, e.At)
+			return nil
+		}
+		for _, a := range e.Args {
+			if err := pc.walk(a); err != nil {
+				return err
+			}
+		}
+		p.ops = append(p.ops, op{code: opCall, arg: int32(len(e.Args)), at: e.At, expr: e})
+	default:
+		return &EvalError{Pos: e.Pos(), Msg: fmt.Sprintf("unknown expression %T", e)}
+	}
+	return nil
 }
 
 // isConst reports whether the program reads no input.

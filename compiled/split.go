@@ -113,6 +113,9 @@ func (k *compiler) split(n *tree.Node, from int32) {
 			k.c.in[ns] = v
 			env[s] = ns
 		}
+		if k.envOf == nil {
+			k.envOf = make([]map[int32]int32, len(sh.nodes), cap(sh.nodes))
+		}
 		k.envOf[from+int32(j)] = env
 	}
 }

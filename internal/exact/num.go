@@ -297,8 +297,15 @@ func (p *Pool) Float64(n Num) float64 {
 	if n.e == 0 {
 		return float64(n.c)
 	}
-	if n.e < 0 && n.e >= -22 && n.c < 1<<53 && n.c > -(1<<53) {
-		return float64(n.c) / float64pow10[-n.e]
+	// A coefficient and a power of ten that float64 holds exactly give the
+	// correctly rounded result in one division or multiplication.
+	if n.c < 1<<53 && n.c > -(1<<53) {
+		switch {
+		case n.e < 0 && n.e >= -22:
+			return float64(n.c) / float64pow10[-n.e]
+		case n.e > 0 && n.e <= 22:
+			return float64(n.c) * float64pow10[n.e]
+		}
 	}
 	return decimal.New(n.c, n.e).InexactFloat64()
 }
