@@ -676,7 +676,7 @@ func (b *builder) placeNode(l *lineHead, parent *frame, n *tree.Node, noun, name
 	if n.Kind == tree.KindChance && n.Uncertainty == "" && n.Test == "" && n.Split == nil {
 		defer func() {
 			if !f.detached {
-				b.chances = append(b.chances, plainChance{n: n, line: l.num, width: l.endCol - int(l.at.Col)})
+				b.chances = append(b.chances, plainChance{n: n, line: int32(l.num), width: int32(l.endCol - int(l.at.Col))})
 			}
 		}()
 	}

@@ -205,8 +205,8 @@ func (b *builder) rangePercent(name string, value, lo, hi exprValue, lx lexed) {
 // for repeatedChance.
 type plainChance struct {
 	n     *tree.Node
-	line  int
-	width int
+	line  int32
+	width int32
 }
 
 // repeatedChance warns when plain chance nodes with the same label have
@@ -229,12 +229,33 @@ func (b *builder) repeatedChance() {
 		lines  []int
 		warned bool
 	}
+	// Only labels met more than once can repeat: find them by sorting
+	// the nodes by label (most labels of a large model are unique, and a
+	// map entry for each would cost more than the rest of the check).
+	order := make([]int32, 0, len(b.chances))
+	for i := range b.chances {
+		if c := &b.chances[i]; c.n.Label != "" && len(c.n.Branches) >= 2 {
+			order = append(order, int32(i))
+		}
+	}
+	slices.SortFunc(order, func(x, y int32) int {
+		if c := strings.Compare(b.chances[x].n.Label, b.chances[y].n.Label); c != 0 {
+			return c
+		}
+		return int(x - y)
+	})
+	repeated := make([]bool, len(b.chances))
+	for i := 1; i < len(order); i++ {
+		if b.chances[order[i]].n.Label == b.chances[order[i-1]].n.Label {
+			repeated[order[i]], repeated[order[i-1]] = true, true
+		}
+	}
 	labels := map[string]*label{}
 	for i := range b.chances {
-		c := &b.chances[i]
-		if c.n.Label == "" || len(c.n.Branches) < 2 {
+		if !repeated[i] {
 			continue
 		}
+		c := &b.chances[i]
 		l := labels[c.n.Label]
 		if l == nil {
 			l = &label{}
@@ -254,7 +275,7 @@ func (b *builder) repeatedChance() {
 		if k < 0 {
 			if len(l.kinds) < maxKinds {
 				l.kinds = append(l.kinds, o)
-				l.lines = append(l.lines, c.line)
+				l.lines = append(l.lines, int(c.line))
 			}
 			continue
 		}
@@ -262,7 +283,7 @@ func (b *builder) repeatedChance() {
 		name := uncertaintyName(c.n.Label)
 		hint := fmt.Sprintf("if they are one event, declare it once as a named uncertainty (`uncertainty %s %q` with the outcomes as its states) and write `chance %s` at each place: "+
 			"as plain chance nodes, value-of-information analysis treats them as independent events; if they are separate events, give them different labels", name, c.n.Label, name)
-		b.ds = append(b.ds, tree.Diagnostic{Severity: tree.Warning, Pos: c.n.Pos, Len: c.width, Hint: hint,
+		b.ds = append(b.ds, tree.Diagnostic{Severity: tree.Warning, Pos: c.n.Pos, Len: int(c.width), Hint: hint,
 			Summary: fmt.Sprintf("chance node %q repeats the one on line %d, with the same outcomes and probabilities", c.n.Label, l.lines[k])})
 	}
 }
