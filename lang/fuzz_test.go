@@ -1,12 +1,15 @@
 package lang
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"io"
 	"reflect"
 	"strings"
 	"testing"
+	"testing/iotest"
 	"time"
 
 	"github.com/alecthomas/participle/v2/lexer"
@@ -99,9 +102,9 @@ func FuzzLoad(f *testing.F) {
 	})
 }
 
-// fastAgrees reads src with the fast path and with participle alone and
-// says how the models or diagnostics differ ("" when they do not); it
-// also returns the lines the fast path read.
+// fastAgrees reads src with the fast path and with participle alone, and
+// as a stream, and says how the models or diagnostics differ ("" when they
+// do not); it also returns the lines the fast path read.
 func fastAgrees(src []byte) (string, []int) {
 	fb := newBuilder(Options{NodeLimit: fuzzNodeLimit})
 	fb.trace = true
@@ -116,6 +119,22 @@ func fastAgrees(src []byte) (string, []int) {
 	}
 	if !reflect.DeepEqual(fm, sm) {
 		return fmt.Sprintf("models differ: fast path\n%s\nparticiple\n%s", dumpModel(fm), dumpModel(sm)), nil
+	}
+	// Read as a stream, through a buffer that starts at a few bytes (so
+	// that lines and line ends straddle its refills and long lines grow
+	// it), a byte at a time: the same model and diagnostics.
+	for _, r := range []io.Reader{bytes.NewReader(src), iotest.OneByteReader(bytes.NewReader(src))} {
+		rb := newBuilder(Options{NodeLimit: fuzzNodeLimit})
+		if err := rb.readFrom(r, 3); err != nil {
+			return fmt.Sprintf("reading a stream: %v", err), nil
+		}
+		rm, rds := rb.done(src)
+		if !reflect.DeepEqual(rds, fds) {
+			return fmt.Sprintf("diagnostics: stream %v, whole text %v", rds, fds), nil
+		}
+		if !reflect.DeepEqual(rm, fm) {
+			return fmt.Sprintf("models differ: stream\n%s\nwhole text\n%s", dumpModel(rm), dumpModel(fm)), nil
+		}
 	}
 	return "", fb.fastRead
 }

@@ -1,6 +1,7 @@
 package lang
 
 import (
+	"os"
 	"sync"
 
 	"github.com/alecthomas/participle/v2/lexer"
@@ -73,6 +74,46 @@ func Load(src []byte, opts Options) (*compiled.Model, tree.Diagnostics) {
 	fillLen(src, cs)
 	return c, append(ds, cs...).Sort()
 }
+
+// LoadFile reads and compiles the model in the file at path, as [Load]
+// does a text held whole, with the same diagnostics, but reads the file
+// as a stream: only a few of its lines are held at a time, so reading a
+// large model costs memory for the model, not for its text as well. The
+// file is read a second time only when a diagnostic needs its text (to
+// mark the span of a figure that compiling found wrong). err is an error
+// reading the file; problems in the model are diagnostics.
+func LoadFile(path string, opts Options) (c *compiled.Model, ds tree.Diagnostics, err error) {
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer f.Close()
+	b := newBuilder(opts)
+	if err := b.readFrom(f, streamBuffer); err != nil {
+		return nil, nil, err
+	}
+	b.finish()
+	ds = b.ds
+	if !ds.HasErrors() {
+		var cs tree.Diagnostics
+		c, cs = compiled.Compile(b.m)
+		ds = append(ds, cs...)
+	}
+	for _, d := range ds {
+		if d.Len == 0 && d.Pos.IsValid() {
+			src, err := os.ReadFile(path)
+			if err != nil {
+				return nil, nil, err
+			}
+			fillLen(src, ds)
+			break
+		}
+	}
+	return c, ds.Sort(), nil
+}
+
+// streamBuffer is the size of the buffer LoadFile reads through.
+const streamBuffer = 256 << 10
 
 // parseLine sets the line's kind and parses it.
 func (ps *parsers) parseLine(l *srcLine) {

@@ -1,7 +1,11 @@
 package lang
 
 import (
+	"errors"
 	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
 	"reflect"
 	"strings"
 	"testing"
@@ -587,6 +591,12 @@ func TestFastPathAgrees(t *testing.T) {
 		"\"a\" 1 + 2\n\"a\" (1 + 2) gain -3 cost f(1, 2, x)\n\"a\" rest if \"x\", 5% if \"y\" gain 1\n\"a\" gain\n\"a\" 5 5\nchance x \"y\"\nchance \"y\"\nchance x\nuse s\ndecision \"d\"\n",
 		fastShapes}
 	srcs = append(srcs, badInputs(t)...)
+	// Every line end, a byte-order mark, no line end at the end, a line
+	// longer than the stream's buffer.
+	srcs = append(srcs, strings.ReplaceAll(fullExample, "\n", "\r\n"), strings.ReplaceAll(fullExample, "\n", "\r"),
+		"\ufeff"+fullExample, strings.TrimSuffix(fullExample, "\n"), "\ufeff", "\r", "\r\n\r\n", "\n\r",
+		"decision \"D\"\r\n  \"a\" gain 1\r  \"b\" cost 2\n\r  \"c\"",
+		"decision \""+strings.Repeat("long ", 200)+"\"\n  \"a\"\n  \"b\"\n")
 	ps := getParsers()
 	checked := 0
 	for _, src := range srcs {
@@ -654,3 +664,38 @@ subtree later
   decision "Later"
     "l" gain 1
 `
+
+// TestLoadFile checks that reading a file as a stream gives what reading
+// its text whole gives: the compiled model's value, and the diagnostics
+// with their spans (a figure that compiling finds wrong has its span
+// from the file, read again).
+func TestLoadFile(t *testing.T) {
+	dir := t.TempDir()
+	srcs := []string{fullExample, string(genModel(4, 3)),
+		"decision \"D\"\r\n  \"a\"  gain (1 + 2) / (3 - 3)\r\n  \"b\"\r\n",
+		"let x = 1\ndecision \"D\"\n  \"a\"  gain y\n  \"b\"\n",
+		"decision \"D\n"}
+	for i, src := range srcs {
+		path := filepath.Join(dir, fmt.Sprintf("m%d.fork", i))
+		if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		want, wantDs := Load([]byte(src), Options{})
+		got, gotDs, err := LoadFile(path, Options{})
+		if err != nil {
+			t.Fatalf("%d: %v", i, err)
+		}
+		if !reflect.DeepEqual(gotDs, wantDs) {
+			t.Errorf("%d: diagnostics %v, want %v", i, gotDs, wantDs)
+		}
+		if (got == nil) != (want == nil) {
+			t.Fatalf("%d: compiled %v, want %v", i, got != nil, want != nil)
+		}
+		if got != nil && !reflect.DeepEqual(got.Rollback(), want.Rollback()) {
+			t.Errorf("%d: rollback differs", i)
+		}
+	}
+	if _, _, err := LoadFile(filepath.Join(dir, "missing.fork"), Options{}); !errors.Is(err, fs.ErrNotExist) {
+		t.Errorf("missing file: %v", err)
+	}
+}

@@ -19,10 +19,10 @@ import (
 
 // loaded is a model read from the command line's FILE.
 type loaded struct {
-	Model    *tree.Model     // as written
-	Compiled *compiled.Model // checked and compiled
-	Name     string          // as the user gave it, for messages
-	Src      []byte
+	Model    *tree.Model      // as written
+	Compiled *compiled.Model  // checked and compiled
+	Name     string           // as the user gave it, for messages
+	Src      []byte           // the text, for showing diagnostics (nil for a model file read as a stream that has none)
 	Diags    tree.Diagnostics // warnings (errors stop loading)
 }
 
@@ -71,12 +71,61 @@ func readSource(c *cli.Context, name string) ([]byte, bool, error) {
 	}
 	src, err := os.ReadFile(name)
 	if err != nil {
-		if os.IsNotExist(err) {
-			return nil, false, modelErr("no such file: %s", shown(name))
-		}
-		return nil, false, modelErr("%s", shown(err.Error()))
+		return nil, false, readErr(name, err)
 	}
 	return src, isJSON, nil
+}
+
+// readErr is the error for a model file that cannot be read.
+func readErr(name string, err error) error {
+	if os.IsNotExist(err) {
+		return modelErr("no such file: %s", shown(name))
+	}
+	return modelErr("%s", shown(err.Error()))
+}
+
+// streamed reports whether FILE is a model text file that loadModel reads
+// as a stream: a path (not standard input or an example) to an existing
+// file that is not JSON.
+func streamed(name string) bool {
+	if name == "-" || strings.HasPrefix(name, "example:") || strings.EqualFold(filepath.Ext(name), ".json") {
+		return false
+	}
+	st, err := os.Stat(name)
+	return err == nil && st.Mode().IsRegular()
+}
+
+// loadSource reads and compiles FILE. src is its text when it is needed
+// afterwards: to show diagnostics, or --set's problems (needText).
+func loadSource(c *cli.Context, name string, limit int, needText bool) (cm *compiled.Model, ds tree.Diagnostics, src []byte, err error) {
+	if streamed(name) {
+		// A model file is read as a stream, so that a large one costs
+		// memory for the model and not for its text as well; the text is
+		// read again only when it is shown.
+		cm, ds, err = lang.LoadFile(name, lang.Options{NodeLimit: limit})
+		if err == nil && (len(ds) > 0 || needText) {
+			src, err = os.ReadFile(name)
+		}
+		if err != nil {
+			return nil, nil, nil, readErr(name, err)
+		}
+		return cm, ds, src, nil
+	}
+	src, isJSON, err := readSource(c, name)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	if !isJSON {
+		cm, ds = lang.Load(src, lang.Options{NodeLimit: limit})
+		return cm, ds, src, nil
+	}
+	m, ds := interchange.ReadBytes(src, interchange.Options{NodeLimit: limit})
+	if !ds.HasErrors() {
+		var cs tree.Diagnostics
+		cm, cs = compiled.Compile(m)
+		ds = append(ds, cs...)
+	}
+	return cm, ds.Sort(), src, nil
 }
 
 // loadModel reads, parses and compiles FILE, with the inputs given by
@@ -92,24 +141,9 @@ func loadModel(c *cli.Context) (*loaded, error) {
 	if err != nil {
 		return nil, err
 	}
-	src, isJSON, err := readSource(c, name)
+	cm, ds, src, err := loadSource(c, name, c.Int(maxNodesFlag.Name), len(sets) > 0)
 	if err != nil {
 		return nil, err
-	}
-	limit := c.Int(maxNodesFlag.Name)
-	var cm *compiled.Model
-	var ds tree.Diagnostics
-	if isJSON {
-		var m *tree.Model
-		m, ds = interchange.ReadBytes(src, interchange.Options{NodeLimit: limit})
-		if !ds.HasErrors() {
-			var cs tree.Diagnostics
-			cm, cs = compiled.Compile(m)
-			ds = append(ds, cs...)
-		}
-		ds = ds.Sort()
-	} else {
-		cm, ds = lang.Load(src, lang.Options{NodeLimit: limit})
 	}
 	shown := name
 	if name == "-" {
