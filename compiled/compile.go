@@ -78,6 +78,10 @@ type compiler struct {
 	// nil until the first split (nodes above and beside it have none).
 	env   map[int32]int32
 	envOf []map[int32]int32
+	progs progSlab // where the programs of figures that read inputs are kept
+	// scratchProg is where a figure is compiled, to be evaluated and,
+	// when it reads an input, packed into progs.
+	scratchProg program
 }
 
 // look resolves a name to its input slot.
@@ -140,7 +144,7 @@ func (k *compiler) figure(e tree.Expr, kind figKind, i, j, kk int32) (exact.Num,
 		k.random[i] = true
 	}
 	if !p.isConst() {
-		k.c.sh.dyn = append(k.c.sh.dyn, dynFig{kind: kind, i: i, j: j, k: kk, prog: p})
+		k.c.sh.dyn = append(k.c.sh.dyn, dynFig{kind: kind, i: i, j: j, k: kk, prog: k.progs.pack(p)})
 	}
 	if kind != figInput { // an input's rounding is tracked per input (inInexact)
 		k.c.noteRounded(!isExact, !p.isConst())

@@ -68,7 +68,7 @@ func (u Uncertain) Written() string {
 // before its final opCall, which leaves them on the stack); nil when they
 // cannot be evaluated.
 func (p *program) args(pool *exact.Pool, in []exact.Num) []decimal.Decimal {
-	body := &program{ops: p.ops[:len(p.ops)-1], consts: p.consts}
+	body := &program{ops: p.ops[:len(p.ops)-1], consts: p.consts, exprs: p.exprs}
 	n := int(p.ops[len(p.ops)-1].arg)
 	var buf [16]exact.Num
 	st, _, err := body.run(pool, in, nil, buf[:0])

@@ -211,7 +211,8 @@ func meanOfDist(d dist.Distribution) (decimal.Decimal, bool) {
 
 // program compiles a figure: an outside value written as a `let`'s whole
 // value becomes a random input of its own, which the figure reads;
-// anything else compiles as usual.
+// anything else compiles as usual, into the compiler's scratch program
+// (figure keeps a packed copy).
 func (k *compiler) program(e tree.Expr) (*program, *EvalError) {
 	if o, ok := e.(tree.Outside); ok && k.current != nil && k.current.Expr == e {
 		slot, err := k.outside(o)
@@ -220,7 +221,7 @@ func (k *compiler) program(e tree.Expr) (*program, *EvalError) {
 		}
 		return &program{ops: []op{{code: opSlot, arg: slot, at: o.Pos()}}, slots: []int32{slot}, fconsts: []float64{}}, nil
 	}
-	return compileExpr(k.pool, e, k.look, k.source)
+	return compileInto(&k.scratchProg, k.pool, e, k.look, k.source)
 }
 
 // outside compiles the outside value o (the whole value of the `let`
@@ -265,7 +266,7 @@ func (k *compiler) outside(o tree.Outside) (int32, *EvalError) {
 		k.c.rounded = true
 		k.inexactSlot(slot)
 	}
-	p := &program{ops: []op{{code: opOutside, at: o.Pos(), expr: &outsideExpr{Outside: o, o: out}}}, slots: s.reads(), fconsts: []float64{}}
+	p := &program{ops: []op{{code: opOutside, at: o.Pos()}}, exprs: []tree.Expr{&outsideExpr{Outside: o, o: out}}, slots: s.reads(), fconsts: []float64{}}
 	sh.sources = append(sh.sources, source{out: out, slot: slot, prog: p, let: visible})
 	if !p.isConst() {
 		sh.dyn = append(sh.dyn, dynFig{kind: figInput, i: slot, prog: p})

@@ -42,20 +42,21 @@ const (
 	opSub
 	opMul
 	opDiv
-	opCall // a distribution of arg arguments, written at expr (a *tree.Call): its mean
+	opCall // a distribution of arg arguments (its *tree.Call in exprs): its mean
 	// opQuantile is a distribution of arg arguments and, above them on the
 	// stack, a level: its quantile there (split.go).
 	opQuantile
-	// opOutside is an outside value (outside.go), expr an *outsideExpr:
-	// its mean.
+	// opOutside is an outside value (outside.go), its *outsideExpr in
+	// exprs: its mean.
 	opOutside
 )
 
+// op is one operation: 16 bytes, as a large model has hundreds of
+// thousands of programs.
 type op struct {
 	code opcode
 	arg  int32
 	at   tree.Pos // where the operation is written (the divisor for opDiv)
-	expr tree.Expr
 }
 
 type program struct {
@@ -63,6 +64,16 @@ type program struct {
 	consts  []exact.Num
 	fconsts []float64 // consts in float64, for simulation
 	slots   []int32   // the input slots the program reads, each once
+	// exprs are the expressions of the operations that need theirs (for
+	// a message or a distribution's arguments), in the order of the ops:
+	// opDiv's *tree.Binary, opCall's and opQuantile's *tree.Call,
+	// opOutside's *outsideExpr.
+	exprs []tree.Expr
+}
+
+// needsExpr reports whether an operation has its expression in exprs.
+func (c opcode) needsExpr() bool {
+	return c == opDiv || c == opCall || c == opQuantile || c == opOutside
 }
 
 // EvalError is an expression that cannot be evaluated: an unknown name, a
@@ -87,14 +98,18 @@ type sourceOf func(c *tree.Call) (int32, *EvalError)
 // source gives it; with a nil source, the distribution itself is compiled
 // (opCall: its mean).
 func compileExpr(pool *exact.Pool, e tree.Expr, look scope, source sourceOf) (*program, *EvalError) {
-	pc := progCompiler{pool: pool, look: look, source: source, p: &program{}}
+	return compileInto(&program{}, pool, e, look, source)
+}
+
+// compileInto compiles e into p, reusing the storage of p's slices.
+func compileInto(p *program, pool *exact.Pool, e tree.Expr, look scope, source sourceOf) (*program, *EvalError) {
+	*p = program{ops: p.ops[:0], consts: p.consts[:0], fconsts: p.fconsts[:0], slots: p.slots[:0], exprs: p.exprs[:0]}
+	pc := progCompiler{pool: pool, look: look, source: source, p: p}
 	if err := pc.walk(e); err != nil {
 		return nil, err
 	}
-	p := pc.p
-	p.fconsts = make([]float64, len(p.consts))
-	for i, c := range p.consts {
-		p.fconsts[i] = pool.Float64(c)
+	for _, c := range p.consts {
+		p.fconsts = append(p.fconsts, pool.Float64(c))
 	}
 	return p, nil
 }
@@ -149,7 +164,7 @@ func (pc *progCompiler) walk(e tree.Expr) *EvalError {
 		if err := pc.walk(e.Y); err != nil {
 			return err
 		}
-		o := op{at: e.At, expr: e}
+		o := op{at: e.At}
 		switch e.Op {
 		case '+':
 			o.code = opAdd
@@ -160,6 +175,7 @@ func (pc *progCompiler) walk(e tree.Expr) *EvalError {
 		case '/':
 			o.code = opDiv
 			o.at = e.Y.Pos()
+			p.exprs = append(p.exprs, e)
 		default:
 			return &EvalError{Pos: e.At, Msg: fmt.Sprintf("unknown operator %q", e.Op)}
 		}
@@ -186,7 +202,8 @@ func (pc *progCompiler) walk(e tree.Expr) *EvalError {
 				return err
 			}
 		}
-		p.ops = append(p.ops, op{code: opCall, arg: int32(len(e.Args)), at: e.At, expr: e})
+		p.ops = append(p.ops, op{code: opCall, arg: int32(len(e.Args)), at: e.At})
+		p.exprs = append(p.exprs, e)
 	default:
 		return &EvalError{Pos: e.Pos(), Msg: fmt.Sprintf("unknown expression %T", e)}
 	}
@@ -212,7 +229,13 @@ func (p *program) eval(pool *exact.Pool, in []exact.Num, inexact []bool) (v exac
 // value for a whole program, a call's arguments for its body (args).
 func (p *program) run(pool *exact.Pool, in []exact.Num, inexact []bool, st []exact.Num) (_ []exact.Num, isExact bool, err *EvalError) {
 	isExact = true
+	xi := 0 // the next expression in p.exprs
 	for _, o := range p.ops {
+		var expr tree.Expr
+		if o.code.needsExpr() {
+			expr = p.exprs[xi]
+			xi++
+		}
 		switch o.code {
 		case opConst:
 			st = append(st, p.consts[o.arg])
@@ -227,7 +250,7 @@ func (p *program) run(pool *exact.Pool, in []exact.Num, inexact []bool, st []exa
 			st[len(st)-1] = pool.Neg(st[len(st)-1])
 			continue
 		case opCall:
-			call := o.expr.(*tree.Call)
+			call := expr.(*tree.Call)
 			n := int(o.arg)
 			args := make([]decimal.Decimal, n)
 			for i := range args {
@@ -249,7 +272,7 @@ func (p *program) run(pool *exact.Pool, in []exact.Num, inexact []bool, st []exa
 			st = append(st, pool.Of(mean))
 			continue
 		case opOutside:
-			v, ok, err := evalOutside(o.expr, pool, in, inexact)
+			v, ok, err := evalOutside(expr, pool, in, inexact)
 			if err != nil {
 				return nil, false, err
 			}
@@ -257,7 +280,7 @@ func (p *program) run(pool *exact.Pool, in []exact.Num, inexact []bool, st []exa
 			st = append(st, v)
 			continue
 		case opQuantile:
-			call := o.expr.(*tree.Call)
+			call := expr.(*tree.Call)
 			n := int(o.arg)
 			level := pool.Float64(st[len(st)-1])
 			st = st[:len(st)-1]
@@ -286,7 +309,7 @@ func (p *program) run(pool *exact.Pool, in []exact.Num, inexact []bool, st []exa
 		case opDiv:
 			if y.IsZero() {
 				hint := "check the figures that make up the divisor"
-				if b, ok := o.expr.(*tree.Binary); ok {
+				if b, ok := expr.(*tree.Binary); ok {
 					if _, literal := b.Y.(*tree.Number); !literal {
 						hint = "the divisor " + b.Y.String() + " is 0"
 					}
@@ -313,7 +336,13 @@ func (p *program) evalFloat(in []float64) float64 {
 	consts := p.fconsts
 	var buf [16]float64
 	st := buf[:0]
+	xi := 0 // the next expression in p.exprs
 	for _, o := range p.ops {
+		var expr tree.Expr
+		if o.code.needsExpr() {
+			expr = p.exprs[xi]
+			xi++
+		}
 		switch o.code {
 		case opConst:
 			st = append(st, consts[o.arg])
@@ -332,7 +361,7 @@ func (p *program) evalFloat(in []float64) float64 {
 			for i := range args {
 				args[i] = decimal.NewFromFloat(st[len(st)-1-n+i])
 			}
-			q, _ := quantileOf(o.expr.(*tree.Call), args, st[len(st)-1])
+			q, _ := quantileOf(expr.(*tree.Call), args, st[len(st)-1])
 			st = append(st[:len(st)-1-n], q.InexactFloat64())
 			continue
 		}
@@ -350,4 +379,51 @@ func (p *program) evalFloat(in []float64) float64 {
 		}
 	}
 	return st[0]
+}
+
+// progSlab holds the programs of a model's figures and their parts in
+// slabs allocated whole: a large model has a program for most of its
+// branches, and one allocation for each part would cost more memory (in
+// rounding and spare capacity) than the parts themselves. Slabs live as
+// long as the compiled model.
+type progSlab struct {
+	progs  []program
+	ops    []op
+	consts []exact.Num
+	floats []float64
+	slots  []int32
+}
+
+// slabSize is the number of values of one kind allocated at once.
+const slabSize = 1024
+
+// cut returns n values from the front of *slab, refilling it when short.
+func cut[T any](slab *[]T, n int) []T {
+	if n == 0 {
+		return nil
+	}
+	if len(*slab) < n {
+		*slab = make([]T, max(n, slabSize))
+	}
+	out := (*slab)[:n:n]
+	*slab = (*slab)[n:]
+	return out
+}
+
+// pack returns a copy of p made of slab parts, each exactly its size (p
+// itself may be scratch space, used again).
+func (s *progSlab) pack(p *program) *program {
+	q := &cut(&s.progs, 1)[0]
+	q.ops = cut(&s.ops, len(p.ops))
+	copy(q.ops, p.ops)
+	q.consts = cut(&s.consts, len(p.consts))
+	copy(q.consts, p.consts)
+	q.fconsts = cut(&s.floats, len(p.fconsts))
+	copy(q.fconsts, p.fconsts)
+	q.slots = cut(&s.slots, len(p.slots))
+	copy(q.slots, p.slots)
+	if len(p.exprs) > 0 {
+		q.exprs = append([]tree.Expr(nil), p.exprs...)
+	}
+	return q
 }

@@ -135,8 +135,9 @@ func (k *compiler) newSlot(v exact.Num) int32 {
 // opCall) into the program of its quantile at level.
 func (p *program) atLevel(pool *exact.Pool, level decimal.Decimal) *program {
 	last := p.ops[len(p.ops)-1]
-	q := &program{ops: append([]op{}, p.ops[:len(p.ops)-1]...), consts: append([]exact.Num{}, p.consts...), slots: p.slots}
-	q.ops = append(q.ops, op{code: opConst, arg: int32(len(q.consts))}, op{code: opQuantile, arg: last.arg, at: last.at, expr: last.expr})
+	// The quantile takes the place of the call, and its expression.
+	q := &program{ops: append([]op{}, p.ops[:len(p.ops)-1]...), consts: append([]exact.Num{}, p.consts...), slots: p.slots, exprs: p.exprs}
+	q.ops = append(q.ops, op{code: opConst, arg: int32(len(q.consts))}, op{code: opQuantile, arg: last.arg, at: last.at})
 	q.consts = append(q.consts, pool.Of(level))
 	q.fconsts = make([]float64, len(q.consts))
 	for i, c := range q.consts {
