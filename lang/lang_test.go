@@ -428,7 +428,7 @@ func doubling(levels int) string {
 func TestNodeLimit(t *testing.T) {
 	// 40 levels of doubling would be 2^41 nodes: refused at once, at the use.
 	_, ds := Parse([]byte(doubling(40)), Options{})
-	if len(ds) != 1 || !strings.Contains(ds[0].Summary, `using subtree "l0" here takes the tree past the limit of 5,000,000 nodes`) {
+	if len(ds) != 1 || !strings.Contains(ds[0].Summary, `using subtree "l0" here takes the tree past the limit of 2,000,000 nodes`) {
 		t.Fatalf("got %v", ds)
 	}
 	if ds[0].Pos != (tree.Pos{Line: 40*6 + 4 + 3, Col: 9}) {

@@ -625,8 +625,12 @@ func (n *Node) String() string {
 
 // DefaultNodeLimit is the largest tree a reader builds unless told
 // otherwise: a model that expands past it is refused with a clear error
-// rather than exhausting memory.
-const DefaultNodeLimit = 5_000_000
+// rather than exhausting memory. It is set from what a node costs to read,
+// compile and solve (BENCHMARKS.md): about 0.4 KB in a tree made of
+// subtrees, 0.5 KB in a typical generated model, 1.2 KB when every branch
+// has a calculation that reads inputs. A model at the limit so needs about
+// 1 GB of memory, 2.5 GB at most, which an ordinary machine has.
+const DefaultNodeLimit = 2_000_000
 
 // QuoteList writes labels for a message: "a", "b", "c".
 func QuoteList(xs []string) string {

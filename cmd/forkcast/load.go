@@ -29,7 +29,7 @@ type loaded struct {
 // maxNodesFlag is shared by every command that reads a model.
 var maxNodesFlag = &cli.IntFlag{
 	Name:  "max-nodes",
-	Usage: "refuse models that expand to more than `N` nodes",
+	Usage: "refuse models that expand to more than `N` nodes, before building them (the default needs about 1 GB of memory for a typical model, 2.5 GB at most)",
 	Value: tree.DefaultNodeLimit,
 }
 
