@@ -3,9 +3,9 @@ package lang
 import (
 	"bytes"
 	"fmt"
+	"io"
 	"math"
 	"math/rand/v2"
-	"io"
 	"reflect"
 	"strings"
 	"testing"

@@ -96,7 +96,7 @@ func LoadFile(path string, opts Options) (c *compiled.Model, ds tree.Diagnostics
 	ds = b.ds
 	if !ds.HasErrors() {
 		var cs tree.Diagnostics
-		c, cs = compiled.Compile(b.m)
+		c, cs = compile(b.m)
 		ds = append(ds, cs...)
 	}
 	for _, d := range ds {

@@ -671,7 +671,7 @@ subtree later
 // from the file, read again).
 func TestLoadFile(t *testing.T) {
 	dir := t.TempDir()
-	srcs := []string{fullExample, string(genModel(4, 3)),
+	srcs := []string{fullExample, string(genModel(4, 3)), registerSrc,
 		"decision \"D\"\r\n  \"a\"  gain (1 + 2) / (3 - 3)\r\n  \"b\"\r\n",
 		"let x = 1\ndecision \"D\"\n  \"a\"  gain y\n  \"b\"\n",
 		"decision \"D\n"}
