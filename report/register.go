@@ -144,6 +144,8 @@ func (r *RegisterReport) WriteText(out io.Writer) error {
 		unit = " (" + cur + ")"
 	}
 	switch {
+	case reg.Title != "" && reg.Name != "":
+		w.f("Risk register %s: %s\n", reg.Name, tree.Printable(reg.Title))
 	case reg.Title != "":
 		w.ln(tree.Printable(reg.Title))
 	case reg.Name != "":

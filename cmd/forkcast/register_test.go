@@ -23,6 +23,11 @@ func TestRegisterGolden(t *testing.T) {
 		{"register_library.txt", []string{"register", exampleRegisterCSV, "--currency", "EUR", "--runs", "4000", "--budget", "150_000"}},
 		{"register_library_90.json", []string{"register", exampleRegisterCSV, "--runs", "2000", "--seed", "3", "--confidence", "90%", "--json"}},
 		{"register_import.fork", []string{"register", "import", exampleRegisterCSV, "--currency", "EUR"}},
+		// The same register as text, and a model whose tree takes two.
+		{"register_library_fork.txt", []string{"register", "example:library-register", "--runs", "4000", "--budget", "150_000"}},
+		{"register_library_wet.txt", []string{"register", "example:library-register", "--runs", "2000", "--set", "p_wet_winter=60%", "--confidence", "90%"}},
+		{"register_modular.json", []string{"register", "example:library", "--name", "modular", "--runs", "2000", "--json"}},
+		{"solve_library.txt", []string{"solve", "example:library"}},
 	} {
 		t.Run(c.name, func(t *testing.T) {
 			code, out, errs := forkcast(t, "", c.args...)
@@ -143,10 +148,80 @@ func TestRegisterUsage(t *testing.T) {
 		{[]string{"register"}, 2, "register needs a model FILE"},
 		{[]string{"register", "import"}, 2, "import needs a model FILE"},
 		{[]string{"register", "missing.csv"}, 1, "no such file: missing.csv"},
+		{[]string{"register", "example:library"}, 2, "example:library holds 2 registers (extend, modular): say which with --name NAME"},
+		{[]string{"register", "example:library", "--name", "works"}, 2, "--name works: example:library has no register of that name; its registers: extend, modular"},
+		{[]string{"register", "example:sourcing"}, 1, "example:sourcing: the model has no register"},
+		{[]string{"solve", "example:library-register"}, 1, "example:library-register has no tree, only register library (10 risks): analyse it with `forkcast register example:library-register`"},
+		{[]string{"register", "example:library-register", "--set", "p_wet_winter=130%"}, 1, "the probability 1.3 is outside 0 .. 1"},
 	} {
 		code, _, errs := forkcast(t, "", c.args...)
 		if code != c.code || !strings.Contains(errs, c.want) {
 			t.Errorf("%v: exit %d, %q; want %d and %q", c.args, code, errs, c.code, c.want)
 		}
+	}
+}
+
+// The round trip a spreadsheet user makes: import the sheet as text, then
+// quantify the text and write the sheet back with --csv. Every column of
+// the original comes back, each cell the same value (numbers as numbers:
+// "40,000" may come back as 40000), and the sheet written reads back as
+// the same register.
+func TestRegisterRoundTrip(t *testing.T) {
+	dir := t.TempDir()
+	fork := filepath.Join(dir, "risks.fork")
+	if code, _, errs := forkcast(t, "", "register", "import", exampleRegisterCSV, "-o", fork); code != 0 {
+		t.Fatalf("import: exit %d: %s", code, errs)
+	}
+	back := filepath.Join(dir, "back.csv")
+	if code, _, errs := forkcast(t, "", "register", fork, "--runs", "500", "--csv", back); code != 0 {
+		t.Fatalf("register: exit %d: %s", code, errs)
+	}
+	in, _ := os.ReadFile(exampleRegisterCSV)
+	out, _ := os.ReadFile(back)
+	inRows, _ := csv.NewReader(bytes.NewReader(in)).ReadAll()
+	outRows, err := csv.NewReader(bytes.NewReader(out)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(outRows) != len(inRows) {
+		t.Fatalf("%d rows back, %d in", len(outRows), len(inRows))
+	}
+	col := map[string]int{}
+	for j, h := range outRows[0] {
+		col[h] = j
+	}
+	number := func(s string) string { return strings.ReplaceAll(s, ",", "") }
+	for j, h := range inRows[0] {
+		k, ok := col[h]
+		if !ok {
+			t.Errorf("column %q is lost", h)
+			continue
+		}
+		for i := 1; i < len(inRows); i++ {
+			a, b := inRows[i][j], outRows[i][k]
+			if a == b || number(a) == b {
+				continue
+			}
+			// A residual figure left empty means "as before the
+			// response": the sheet written gives it in full.
+			if a == "" && strings.HasPrefix(h, "residual_") {
+				continue
+			}
+			// An empty distribution is PERT, the default, written out.
+			if a == "" && h == "distribution" && b == "pert" {
+				continue
+			}
+			t.Errorf("row %d, column %q: %q came back as %q", i+1, h, a, b)
+		}
+	}
+	code, again, errs := forkcast(t, "", "register", back, "--runs", "500")
+	_, first, _ := forkcast(t, "", "register", exampleRegisterCSV, "--runs", "500")
+	if code != 0 {
+		t.Fatalf("the sheet written does not read back: %s", errs)
+	}
+	// The heading names the register by its file; the figures agree.
+	trim := func(s string) string { return s[strings.Index(s, "\n"):] }
+	if trim(again) != trim(first) {
+		t.Errorf("the sheet written gives other figures:\n%s\nthe original:\n%s", again, first)
 	}
 }
