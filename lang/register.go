@@ -178,6 +178,12 @@ func (b *builder) registerChild(l *srcLine, parent *frame) *frame {
 		hint := riskForm2
 		msg := fmt.Sprintf("a register holds risks, not %s", the(describe(first)))
 		switch {
+		case word == "risk" || word == "Risk":
+			msg = "a register's risks are written `threat` (it would add cost) or `opportunity` (it would save money)"
+			hint = riskForm2
+			if len(l.lx.toks) > 2 {
+				hint = fmt.Sprintf("write `threat %s` or `opportunity %s`", shorten(l.lx.toks[1].Value), shorten(l.lx.toks[1].Value))
+			}
 		case word != "" && suggest(word, []string{"threat", "opportunity"}) != "":
 			msg = fmt.Sprintf("unknown word %q under %s (did you mean `%s`?)", shorten(word), parent.desc(), suggest(word, []string{"threat", "opportunity"}))
 		case containsWord(riskWords, word):
@@ -197,6 +203,9 @@ func (b *builder) registerChild(l *srcLine, parent *frame) *frame {
 	case fResponse:
 		if word != "residual" {
 			hint := "under a response go `residual probability P` and `residual impact AMOUNT`; the risk's other lines go under the risk, lined up with `response`"
+			if word == "cost" {
+				hint = "a response's cost goes on the response's own line: `response \"What is done\" cost 5_000`"
+			}
 			b.errAt(l.pos(), l.firstWidth(), hint, "%s cannot go under the response", the(describe(first)))
 			return broken
 		}
@@ -288,6 +297,9 @@ func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(str
 		case word == "threat" || word == "opportunity":
 			b.errAt(l.pos(), l.firstWidth(), fmt.Sprintf("line it up with %s on line %d: risks stand side by side under their register", parent.desc(), parent.line),
 				"a risk cannot go under another risk")
+		case word == "cost":
+			b.errAt(l.pos(), l.firstWidth(), "what the risk costs if it happens is its `impact`, such as `impact 25_000`; a response's cost goes on its line: `response \"What is done\" cost 5_000`",
+				"a risk has no `cost` line")
 		case word != "":
 			msg := fmt.Sprintf("unknown word %q under %s", shorten(word), parent.desc())
 			if s := suggest(strings.ToLower(word), riskWords); s != "" {
@@ -503,7 +515,9 @@ func (b *builder) regFigure(l *srcLine, i int, word, unit string) (tree.Expr, bo
 		if d.Summary == "unexpected "+describeErr(err) {
 			d.Summary = fmt.Sprintf("unexpected %s after the %s", describeErr(err), word)
 		}
-		d.Hint = form
+		if d.Hint == "" {
+			d.Hint = form
+		}
 		b.ds = append(b.ds, d)
 		return nil, false
 	}

@@ -204,11 +204,20 @@ func (r *RegisterReport) WriteText(out io.Writer) error {
 	}
 	rows = append(rows, []string{"reserve at " + lv + " confidence", simFigure(a.Reserve, cur), "P" + strconv.FormatFloat(100*a.Confidence, 'f', -1, 64)})
 	textTable(w, "  ", 3, []bool{false, true, false}, rows)
-	if a.Budget != nil {
-		w.f("  The total stays within the budget of %s in %s of runs.\n", render.Amount(*a.Budget, cur), share(a.WithinBudget))
-	}
 	for _, line := range wrap(r.WhyDiffer(), 76) {
 		w.f("  %s\n", line)
+	}
+	if a.Budget != nil {
+		// "every run" and "no run" only when exactly so: 100.0% may
+		// be a rounded 99.96%.
+		runs := share(a.WithinBudget) + " of runs"
+		switch a.WithinBudget {
+		case 1:
+			runs = "every run"
+		case 0:
+			runs = "no run"
+		}
+		w.f("  The total stays within the budget of %s in %s.\n", render.Amount(*a.Budget, cur), runs)
 	}
 
 	if a.Runs > 0 && !a.Stopped && len(a.Risks) > 0 {

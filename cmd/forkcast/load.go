@@ -155,6 +155,9 @@ func loadModel(c *cli.Context) (*loaded, error) {
 		if c.Command.Name == "check" {
 			return nil, modelErr("%s: %d error%s", shown, n, plural(n))
 		}
+		if c.Command.Name == "register" {
+			return nil, modelErr("%s: %d error%s; nothing was analysed", shown, n, plural(n))
+		}
 		return nil, modelErr("%s: %d error%s; nothing was solved", shown, n, plural(n))
 	}
 	cm, err = applySettings(c, cm, sets, shown, src)

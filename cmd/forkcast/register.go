@@ -26,22 +26,27 @@ func registerCommand() *cli.Command {
 		UsageText: "forkcast register [--confidence 80%] [--budget AMOUNT] [--runs N] [--seed S] [--workers N]\n" +
 			"       [--json] [--csv FILE] [--tornado FILE] [--name NAME] [--currency CODE] FILE\n" +
 			"   forkcast register import [--currency CODE] [-o FILE.fork] FILE.csv\n\n" +
+			"   forkcast register example:library-register             the register built in\n" +
 			"   forkcast register risks.csv --currency EUR --budget 120_000 --csv risks-quantified.csv\n" +
-			"   forkcast register risks.csv --confidence 90% --tornado ranking.svg",
-		Description: "FILE is a register saved from a spreadsheet as CSV (a header row with at least\n" +
-			"id, title, type, probability, low, likely, high). For each risk: its expected impact (EMV =\n" +
-			"probability × mean impact) before and after its response; threats,\n" +
-			"opportunities and the net; the total EMV, which is the contingency reserve by\n" +
-			"the expected-value method. Then, by Monte Carlo, the distribution of the total\n" +
-			"impact (mean, SD, P50, P80, P90, P95) and the reserve needed at --confidence\n" +
-			"beside the EMV reserve; with --budget, the chance that the total stays within\n" +
-			"it; the risks ranked by what each adds to the total's percentile at the\n" +
-			"confidence (--tornado draws it); and each response appraised: what it takes off\n" +
-			"the expected impact against its cost, and the best set of responses.\n\n" +
+			"   forkcast register model.fork --name works --confidence 90% --tornado ranking.svg",
+		Description: "FILE is a register: a .fork file with a `register` block (docs/language.md;\n" +
+			"--name picks one when it has several, --set changes the inputs its figures use),\n" +
+			"or a spreadsheet saved as CSV (a header row with at least id, title, type,\n" +
+			"probability, low, likely, high; `forkcast register import` makes a .fork of it).\n\n" +
+			"For each risk: its expected impact (EMV = probability × mean impact) before and\n" +
+			"after its response; threats, opportunities and the net; the total EMV, which is\n" +
+			"the contingency reserve by the expected-value method. Then, by Monte Carlo, the\n" +
+			"distribution of the total impact (mean, SD, P50, P80, P90, P95) and the reserve\n" +
+			"needed at --confidence beside the EMV reserve; with --budget, the chance that the\n" +
+			"total stays within it; the risks ranked by what each adds to the total's\n" +
+			"percentile at the confidence (--tornado draws it); and each response appraised:\n" +
+			"what it takes off the expected impact against its cost, and the best set of\n" +
+			"responses.\n\n" +
 			"--csv FILE writes the register back as a spreadsheet with the figures added\n" +
 			"(emv, emv_after, response_net, take_response, rank, share, contribution_pNN);\n" +
 			"from a CSV every column is written back as it was. Money is cost: an\n" +
 			"opportunity's EMV is negative (a saving).\n\n" +
+			"A tree can use a register's total as an input: let x = register NAME total.\n\n" +
 			"A run depends only on the seed and its number: the same --seed gives the same\n" +
 			"figures whatever --workers. Ctrl-C stops the runs and reports those done.",
 		Flags: []cli.Flag{
