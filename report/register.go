@@ -153,7 +153,8 @@ func (r *RegisterReport) WriteText(out io.Writer) error {
 	default:
 		w.ln("Risk register")
 	}
-	w.f("risks:      %d (%d threats, %d opportunities)\n", len(reg.Risks), count(reg, register.Threat), count(reg, register.Opportunity))
+	nt, no := count(reg, register.Threat), count(reg, register.Opportunity)
+	w.f("risks:      %d (%s, %s)\n", len(reg.Risks), counted(nt, "threat", "threats"), counted(no, "opportunity", "opportunities"))
 	w.f("simulated:  %s runs, seed %d", render.Grouped(strconv.Itoa(a.Runs)), a.Seed)
 	if a.Stopped && a.Runs < a.Asked {
 		w.f(" (stopped early: %s were asked for)", render.Grouped(strconv.Itoa(a.Asked)))
@@ -552,4 +553,12 @@ func (r *RegisterReport) Tornado() chart.Tornado {
 		t.Bars = append(t.Bars, chart.Bar{Label: shortTitle(x.Risk.ID+" "+x.Risk.Title, 40), Start: a.Reserve - x.Contribution, End: a.Reserve})
 	}
 	return t
+}
+
+// counted is "1 threat", "2 threats".
+func counted(n int, one, many string) string {
+	if n == 1 {
+		return "1 " + one
+	}
+	return strconv.Itoa(n) + " " + many
 }
