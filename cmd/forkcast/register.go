@@ -124,6 +124,10 @@ func registerImportAction(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	if strings.EqualFold(filepath.Ext(name), ".fork") || strings.HasPrefix(name, "example:") {
+		return usageErr("register import reads a spreadsheet saved as CSV; %s is already text: quantify it with `forkcast register %s`, or write it as a spreadsheet with `forkcast register %s --csv OUT.csv`",
+			shown(name), shown(name), shown(name))
+	}
 	t, err := readCSVArg(c, name)
 	if err != nil {
 		return err

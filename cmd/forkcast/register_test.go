@@ -148,6 +148,7 @@ func TestRegisterUsage(t *testing.T) {
 		{[]string{"register"}, 2, "register needs a model FILE"},
 		{[]string{"register", "import"}, 2, "import needs a model FILE"},
 		{[]string{"register", "missing.csv"}, 1, "no such file: missing.csv"},
+		{[]string{"register", "import", "example:library-register"}, 2, "register import reads a spreadsheet saved as CSV; example:library-register is already text"},
 		{[]string{"register", "example:library"}, 2, "example:library holds 2 registers (extend, modular): say which with --name NAME"},
 		{[]string{"register", "example:library", "--name", "works"}, 2, "--name works: example:library has no register of that name; its registers: extend, modular"},
 		{[]string{"register", "example:sourcing"}, 1, "example:sourcing: the model has no register"},
