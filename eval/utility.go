@@ -115,14 +115,34 @@ func (rs *RiskSolution) BranchValue(i, j int) decimal.Decimal {
 func (rs *RiskSolution) Premium(i, j int) decimal.Decimal {
 	k := rs.EMV.Compiled.Child(i, j)
 	emv, _ := rs.Averse.r.Total(k)
-	return roundSig(emv.InexactFloat64() - rs.ce[k])
+	return premium(emv, rs.ce[k])
 }
 
 // RootPremium is the risk premium of the whole tree under the risk-averse
 // policy.
 func (rs *RiskSolution) RootPremium() decimal.Decimal {
 	emv, _ := rs.Averse.r.Value(0)
-	return roundSig(emv.InexactFloat64() - (rs.ce[0] - rs.layout.cash[0]))
+	return premium(emv, rs.ce[0]-rs.layout.cash[0])
+}
+
+// premium is emv − ce, rounded. The certainty equivalent is known to
+// RiskDigits significant digits of the larger of the two figures, so the
+// difference is known to that same decimal place and no further: a
+// premium of a few thousand beside payoffs of 1e12 gets three decimals,
+// not fifteen digits of which half are noise.
+func premium(emv decimal.Decimal, ce float64) decimal.Decimal {
+	e := emv.InexactFloat64()
+	d := e - ce
+	p := roundSig(d)
+	scale := math.Max(math.Abs(e), math.Abs(ce))
+	if d == 0 || scale == 0 || math.IsInf(scale, 0) {
+		return p
+	}
+	place := int32(math.Floor(math.Log10(scale))) - (RiskDigits - 1)
+	if p.Exponent() < place {
+		p = decimal.NewFromFloat(d).Round(-place)
+	}
+	return p
 }
 
 // Chosen is the branch decision i takes under the risk-averse policy.

@@ -307,3 +307,29 @@ func TestToleranceBreakeven(t *testing.T) {
 		t.Errorf("certain options: err %v, want a RequestError", err)
 	}
 }
+
+// A risk premium is the difference of an exact expected value and a
+// rounded certainty equivalent; when both are far larger than the premium,
+// every digit it is shown with must still be right. 1e12 − 10,000 or 1e12
+// at even chances, R = 1000: EMV = 1e12 − 5000, CE = 1e12 − 10,000 +
+// 1000 (ln 2 − ln(1 + e^−10)) from the formula CE = −R ln Σ p·exp(−x/R)
+// (Howard 1988, recalled from memory), so the premium is
+// 5000 − 1000 (ln 2 − ln(1 + e^−10)) ≈ 4306.8982183, computed here with
+// small numbers only.
+func TestRiskPremiumDigitsAgainstLargePayoffs(t *testing.T) {
+	m := &tree.Model{Root: tree.Decision("Pick",
+		lotteryOption("A", tree.Gain, "999999990000:0.5", "1000000000000:0.5"), lotteryOption("B", tree.Gain, "0"))}
+	rs := riskAverse(t, m, "1000")
+	want := 5000 - 1000*(math.Ln2-math.Log1p(math.Exp(-10)))
+	for name, got := range map[string]decimal.Decimal{"Premium": rs.Premium(0, 0), "RootPremium": rs.RootPremium()} {
+		// Half a unit in the last place shown, and a little for want's own
+		// rounding.
+		tol := 0.5*math.Pow(10, float64(got.Exponent())) + 1e-9
+		if d := math.Abs(got.InexactFloat64() - want); d > tol {
+			t.Errorf("%s = %s, want %.10f: off by %.3g, more than its last digit allows", name, got, want, d)
+		}
+		if got.Exponent() > -2 {
+			t.Errorf("%s = %s: the CE is known to 1e-3 here (15 digits of 1e12), so the premium should keep at least two decimals", name, got)
+		}
+	}
+}
