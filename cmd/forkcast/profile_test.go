@@ -106,6 +106,10 @@ func TestProfileUsage(t *testing.T) {
 		{[]string{"profile", "example:sourcing", "--risk-tolerance", "0"}, exitUsage, "positive amount"},
 		{[]string{"profile", "example:sourcing", "--risk-tolerance", "-5"}, exitUsage, "positive amount"},
 		{[]string{"solve", "example:sourcing", "--risk-tolerance", "10%x"}, exitUsage, "--risk-tolerance"},
+		// A risk tolerance is money, as the model's `risk tolerance` line
+		// says: 10% is refused, not taken for 0.10.
+		{[]string{"solve", "example:sourcing", "--risk-tolerance", "10%"}, exitUsage, "not a percentage"},
+		{[]string{"breakeven", "example:tender", "--vary", "risk-tolerance", "--in", "10%..50%"}, exitUsage, "not a percentage"},
 		{[]string{"profile", chanceOnly}, exitOK, "risk profile of the whole tree"},
 		{[]string{"profile", chanceOnly, "--threshold", "100"}, exitOK, "100%"},
 		{[]string{"breakeven", chanceOnly, "--vary", "risk-tolerance"}, exitUsage, "no decision"},

@@ -24,6 +24,9 @@ func riskTolerance(c *cli.Context, l *loaded) (*decimal.Decimal, error) {
 		if err != nil {
 			return nil, usageErr("--risk-tolerance: %v", err)
 		}
+		if isPercentage(c.String("risk-tolerance")) {
+			return nil, usageErr("--risk-tolerance %s: %s", shown(c.String("risk-tolerance")), notPercentage)
+		}
 		if r.Sign() <= 0 {
 			return nil, usageErr("--risk-tolerance %s: a risk tolerance is a positive amount of money", shown(c.String("risk-tolerance")))
 		}
@@ -35,6 +38,14 @@ func riskTolerance(c *cli.Context, l *loaded) (*decimal.Decimal, error) {
 	}
 	return nil, nil
 }
+
+// notPercentage says why a risk tolerance written as a share is refused,
+// as the model's `risk tolerance` line refuses one.
+const notPercentage = "a risk tolerance is an amount of money, not a percentage: write e.g. 250_000"
+
+// isPercentage reports whether a number (or a range of them) was written
+// with %: ParseNumber reads 10% as 0.1, which is no amount of money.
+func isPercentage(s string) bool { return strings.Contains(s, "%") }
 
 // riskSolution solves sol on certainty equivalents when a risk tolerance
 // is given (nil otherwise).
@@ -72,6 +83,9 @@ func toleranceBreakeven(c *cli.Context, l *loaded) error {
 		lo, hi, err := parseRange(c.String("in"))
 		if err != nil {
 			return usageErr("--in: %v", err)
+		}
+		if isPercentage(c.String("in")) {
+			return usageErr("--in %s: %s", shown(c.String("in")), notPercentage)
 		}
 		opts.Low, opts.High = &lo, &hi
 	}
