@@ -179,7 +179,7 @@ func leastCount(name string) int {
 	switch name {
 	case "warnings", "outcomes":
 		return -1
-	case "max-nodes", "max-scenarios", "max-work", "max-samples", "wrap", "runs":
+	case "max-nodes", "max-paths", "max-scenarios", "max-work", "max-samples", "wrap", "runs":
 		return 1
 	}
 	return 0

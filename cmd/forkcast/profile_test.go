@@ -103,6 +103,8 @@ func TestProfileUsage(t *testing.T) {
 		{[]string{"profile", "example:sourcing", "--at", "Nowhere"}, exitUsage, "no decision labelled"},
 		{[]string{"profile", "example:sourcing", "--outcomes", "-2"}, exitUsage, "-1 for all"},
 		{[]string{"profile", "example:sourcing", "--max-paths", "2"}, exitModel, "--max-paths"},
+		// 0 is no limit the help can name: refused, not taken for the default.
+		{[]string{"profile", "example:sourcing", "--max-paths", "0"}, exitUsage, "--max-paths 0: give a number of at least 1"},
 		{[]string{"profile", "example:sourcing", "--risk-tolerance", "0"}, exitUsage, "positive amount"},
 		{[]string{"profile", "example:sourcing", "--risk-tolerance", "-5"}, exitUsage, "positive amount"},
 		{[]string{"solve", "example:sourcing", "--risk-tolerance", "10%x"}, exitUsage, "--risk-tolerance"},
