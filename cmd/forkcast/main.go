@@ -174,13 +174,17 @@ func checkCounts(c *cli.Context) error {
 }
 
 // leastCount is the smallest value an integer flag takes. A count is
-// never negative; a limit is at least 1; --warnings takes -1 for all.
+// never negative; a limit is at least 1; --warnings takes -1 for all; a
+// simulation makes at least 2 runs, since one run has no spread and its
+// standard deviation and standard error would read as 0.
 func leastCount(name string) int {
 	switch name {
 	case "warnings", "outcomes":
 		return -1
-	case "max-nodes", "max-paths", "max-scenarios", "max-work", "max-samples", "wrap", "runs":
+	case "max-nodes", "max-paths", "max-scenarios", "max-work", "max-samples", "wrap":
 		return 1
+	case "runs":
+		return 2
 	}
 	return 0
 }

@@ -120,6 +120,8 @@ func TestSimulateUsage(t *testing.T) {
 		want string
 	}{
 		{[]string{"simulate", "example:project-cost", "--runs", "0"}, exitUsage, "--runs 0"},
+		// One run has no spread: its SD and standard error would show as 0.
+		{[]string{"simulate", "example:project-cost", "--runs", "1"}, exitUsage, "--runs 1: give a number of at least 2"},
 		{[]string{"simulate", "example:project-cost", "--runs", "20000000"}, exitUsage, "at most 10000000"},
 		{[]string{"simulate", "example:project-cost", "--seed", "-1"}, exitUsage, "seed"},
 		{[]string{"simulate", "example:project-cost", "--workers", "-2"}, exitUsage, "--workers -2"},
