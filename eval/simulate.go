@@ -37,7 +37,10 @@ import (
 //
 // Runs are reproducible: run r's draws depend only on the seed and r
 // (pdist.Streams), so the results for a seed are identical whatever the
-// number of workers.
+// number of workers, and a longer simulation starts with the runs of a
+// shorter one. Correlated inputs are the exception to the second: they
+// are paired by rank over all the runs asked for (Iman–Conover), so
+// another number of runs pairs them differently (Simulation.Correlated).
 
 // DefaultRuns is the number of runs Simulate makes unless told otherwise.
 const DefaultRuns = 10_000
@@ -135,6 +138,12 @@ type Simulation struct {
 	Runs, Asked int
 	Stopped     bool
 	Seed        uint64
+	// Correlated is set when the model correlates inputs: their draws
+	// were paired by rank over all Asked runs, so a simulation of the
+	// same seed with another number of runs gives other figures from its
+	// first run on (without correlations the runs of a seed are a prefix
+	// of every longer simulation's).
+	Correlated bool
 	InputsOnly  bool
 	Objective   tree.Objective
 	// Model is the model as written.
@@ -226,6 +235,8 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 	if err != nil {
 		return nil, err
 	}
+	_, corrCols := c.Correlation()
+	s.Correlated = len(corrCols) > 0
 	var keep [][]float64
 	if opts.KeepDraws {
 		keep = make([][]float64, len(s.Inputs))
@@ -305,7 +316,11 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 	s.Runs = done
 	s.Stopped = done < runs
 	if s.Stopped {
-		s.Notes = append(s.Notes, fmt.Sprintf("stopped after %d of %d runs; the figures are from those runs", done, runs))
+		note := fmt.Sprintf("stopped after %d of %d runs; the figures are from those runs", done, runs)
+		if s.Correlated {
+			note += fmt.Sprintf(" (the correlated inputs were paired over all %d runs asked for, so no simulation of %d runs repeats them)", runs, done)
+		}
+		s.Notes = append(s.Notes, note)
 	}
 	obj := c.Objective()
 	counts := make([]int, nopt)

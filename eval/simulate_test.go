@@ -398,3 +398,63 @@ decision "Bid"
 		}
 	}
 }
+
+// TestSimulateRunsPrefix: without correlations a longer simulation of a
+// seed starts with the runs of a shorter one; correlated inputs are paired
+// by rank over all the runs asked for, so there the first runs differ,
+// the result says so, and a simulation stopped early does not offer a
+// shorter one as its repeat.
+func TestSimulateRunsPrefix(t *testing.T) {
+	plain := loadText(t, randomModel(rand.New(rand.NewSource(9))))
+	short, err := Simulate(context.Background(), plain, SimulateOptions{Runs: 700, Seed: 3, KeepDraws: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	long, err := Simulate(context.Background(), plain, SimulateOptions{Runs: 1500, Seed: 3, KeepDraws: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if short.Correlated || long.Correlated {
+		t.Error("a model without correlate lines is marked correlated")
+	}
+	for j := range short.Values {
+		if !reflect.DeepEqual(short.Values[j], long.Values[j][:700]) {
+			t.Errorf("option %d: the first 700 of 1500 runs differ from a 700-run simulation", j)
+		}
+	}
+
+	corr := loadText(t, `let a = uniform(0, 100)
+let b = triangular(0, 20, 100)
+correlate a b 0.7
+decision "D"
+  "x"  cost a + b
+  "y"  cost 90
+`)
+	short, err = Simulate(context.Background(), corr, SimulateOptions{Runs: 700, Seed: 3, KeepDraws: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	long, err = Simulate(context.Background(), corr, SimulateOptions{Runs: 1500, Seed: 3, KeepDraws: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !short.Correlated || !long.Correlated {
+		t.Error("a model with a correlate line is not marked correlated")
+	}
+	if reflect.DeepEqual(short.Draws[1], long.Draws[1][:700]) {
+		t.Error("the correlated input's first 700 draws are the same for 700 and 1500 runs: then Correlated need not be set")
+	}
+
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	stopped, err := Simulate(ctx, corr, SimulateOptions{Runs: 200_000, Seed: 3, Workers: 1, Progress: func(int) { cancel() }})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !stopped.Stopped || stopped.Runs >= 200_000 {
+		t.Fatalf("not stopped: %d runs", stopped.Runs)
+	}
+	if !strings.Contains(strings.Join(stopped.Notes, "\n"), "paired over all 200000 runs") {
+		t.Errorf("a stopped correlated simulation does not say its runs cannot be repeated by a shorter one: %q", stopped.Notes)
+	}
+}

@@ -37,7 +37,8 @@ func simulateCommand() *cli.Command {
 			"A run depends only on the seed and its number: the same --seed gives the same\n" +
 			"figures whatever --workers, and more --runs add runs after the same first ones.\n" +
 			"Correlations written in the model (`correlate A B 0.6`) are imposed on the\n" +
-			"draws by their ranks (Iman–Conover).\n\n" +
+			"draws by their ranks (Iman–Conover), over all the runs at once: with them,\n" +
+			"another --runs pairs the draws differently from the first run on.\n\n" +
 			"--at names the decision watched (default: the root, or the first decision on\n" +
 			"the best path). Ctrl-C stops the runs and reports those done (exit status 130).",
 		Flags: []cli.Flag{
@@ -88,7 +89,10 @@ func simulateAction(c *cli.Context) error {
 		return analysisErr(err)
 	}
 	rerun := fmt.Sprintf("--seed %d", s.Seed)
-	if s.Stopped {
+	switch {
+	case s.Stopped && s.Correlated:
+		rerun = "" // paired over the runs asked for: no shorter simulation repeats them (the notes say so)
+	case s.Stopped:
 		rerun += fmt.Sprintf(" --runs %d", s.Runs) // the runs of a seed are a prefix of every longer run
 	}
 	r := report.Simulate(s, report.SimulateOptions{Names: flagNames(), Rerun: rerun})
