@@ -144,8 +144,8 @@ type Simulation struct {
 	// first run on (without correlations the runs of a seed are a prefix
 	// of every longer simulation's).
 	Correlated bool
-	InputsOnly  bool
-	Objective   tree.Objective
+	InputsOnly bool
+	Objective  tree.Objective
 	// Model is the model as written.
 	Model *tree.Model
 	// Decision is the decision watched and Path the branch labels from
