@@ -73,6 +73,10 @@ type Profiles struct {
 	// dominates the other, with the lowest order that holds, ordered by
 	// the better option and then the worse.
 	Dominance []Dominance
+	// Drawn is set when a figure under the decision is drawn from a
+	// distribution (or a register's figure): the profiles take it at its
+	// mean, so no dominance is judged (Dominance is empty).
+	Drawn bool
 	// Exact is false when some probability is a division rounded at
 	// compiled.DivisionScale places (a decision below a test reading), or
 	// the model has rounded figures (compiled.Model.Exact); the figures are
@@ -212,6 +216,12 @@ func RiskProfiles(ctx context.Context, sol *Solution, opts ProfileOptions) (*Pro
 		p := ps.profile(c, b.Label, j, l, mass)
 		p.Taken = j == taken
 		ps.Options = append(ps.Options, p)
+	}
+	if drawnBelow(c)[dn] {
+		// The outcomes are those of the means: which option is better
+		// in every outcome is for the draws to show (simulate).
+		ps.Drawn = true
+		return ps, nil
 	}
 	for a := range ps.Options {
 		for b := range ps.Options {

@@ -533,3 +533,31 @@ func TestProfileDeepChain(t *testing.T) {
 		t.Errorf("CE of the chain %v, fixed point %v", got, x)
 	}
 }
+
+// TestProfileDrawn: a decision with a figure drawn from a distribution
+// beneath it gets no dominance from its profiles, which take the figure
+// at its mean (pert(0, 50, 70) has mean 45, below the sure 60, yet can
+// draw 70); with the figure fixed at 45 the sure option dominates.
+func TestProfileDrawn(t *testing.T) {
+	build := func(x tree.Expr) *tree.Model {
+		return &tree.Model{Params: []*tree.Param{tree.Input("x", x)}, Root: tree.Decision("Pick",
+			tree.Choice("Risky", tree.Gain(tree.Ref("x")), nil),
+			tree.Choice("Sure", tree.Gain(tree.Num(d("60"))), nil),
+		)}
+	}
+	drawn := &tree.Call{Func: "pert", Args: []tree.Expr{tree.Num(d("0")), tree.Num(d("50")), tree.Num(d("70"))}}
+	ps, err := RiskProfiles(context.Background(), mustSolve(t, build(drawn)), ProfileOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !ps.Drawn || len(ps.Dominance) != 0 {
+		t.Errorf("drawn %v, dominance %v", ps.Drawn, ps.Dominance)
+	}
+	ps, err = RiskProfiles(context.Background(), mustSolve(t, build(tree.Num(d("45")))), ProfileOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ps.Drawn || len(ps.Dominance) != 1 || ps.Dominance[0].Better != 1 {
+		t.Errorf("drawn %v, dominance %v", ps.Drawn, ps.Dominance)
+	}
+}

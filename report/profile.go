@@ -207,7 +207,11 @@ func (r *ProfileReport) WriteText(out io.Writer) error {
 	if ps.Decision != nil && len(ps.Options) > 1 {
 		w.ln()
 		w.ln("Dominance")
-		if len(ps.Dominance) == 0 {
+		switch {
+		case ps.Drawn:
+			w.ln("  Not judged: figures under the decision are drawn from distributions and stand")
+			w.ln("  at their means here; `forkcast simulate` shows how the options spread.")
+		case len(ps.Dominance) == 0:
 			w.ln("  No option dominates another: each is better for some decision maker.")
 		}
 		for _, d := range ps.Dominance {
@@ -314,6 +318,9 @@ func (r *ProfileReport) shape() profileJSON {
 	for _, d := range ps.Dominance {
 		out.Dominance = append(out.Dominance, dominanceJSON{Better: ps.Options[d.Better].Label, Worse: ps.Options[d.Worse].Label,
 			Order: d.Order, Sentence: ps.Sentence(d)})
+	}
+	if ps.Drawn {
+		out.Notes = append(out.Notes, "dominance not judged: figures under the decision are drawn from distributions and stand at their means here")
 	}
 	for _, n := range ps.Notes {
 		out.Notes = append(out.Notes, r.Options.Names.Apply(n))
