@@ -198,8 +198,14 @@ func FindToleranceBreakeven(ctx context.Context, sol *Solution, opts ToleranceOp
 	}
 	tb.Segments = append(tb.Segments, Segment{From: from, To: tb.High, Best: picks[grid]})
 	tb.Notes = append(tb.Notes, fmt.Sprintf("sampled at %d tolerances evenly spaced in ln R (a factor of %.3g apart); a switch and back again between two of them would be missed", grid+1, math.Exp((xhi-xlo)/float64(grid))))
-	if picks[grid] != tb.Neutral {
-		tb.Notes = append(tb.Notes, fmt.Sprintf("at the top of the range the choice is still %q; at some larger tolerance it becomes the expected-value choice, %q", tb.Options[picks[grid]], tb.Options[tb.Neutral]))
+	switch top := picks[grid]; {
+	case top == tb.Neutral:
+	case d.IsBest(top):
+		// Tied by expected value with the expected-value choice: the CEs
+		// of the two need never cross, so no switch is promised.
+		tb.Notes = append(tb.Notes, fmt.Sprintf("at the top of the range the choice is %q, which has the same expected value as the expected-value choice %q (ties go to the first option in the model)", tb.Options[top], tb.Options[tb.Neutral]))
+	default:
+		tb.Notes = append(tb.Notes, fmt.Sprintf("at the top of the range the choice is still %q; at some larger tolerance it becomes the expected-value choice, %q", tb.Options[top], tb.Options[tb.Neutral]))
 	}
 	return tb, nil
 }

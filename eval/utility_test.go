@@ -5,6 +5,7 @@ import (
 	"errors"
 	"math"
 	"math/rand"
+	"strings"
 	"testing"
 
 	"github.com/forkcast/forkcast/tree"
@@ -331,5 +332,32 @@ func TestRiskPremiumDigitsAgainstLargePayoffs(t *testing.T) {
 		if got.Exponent() > -2 {
 			t.Errorf("%s = %s: the CE is known to 1e-3 here (15 digits of 1e12), so the premium should keep at least two decimals", name, got)
 		}
+	}
+}
+
+// Two options with the same expected value: the wider one is first, so
+// it is the expected-value choice (ties go to the first), but at every
+// finite tolerance the narrower one has the larger certainty equivalent
+// (CE ≈ μ − σ²/2R for a small risk; Pratt 1964, recalled from memory).
+// The choice never becomes the expected-value one, and the notes must not
+// say it will.
+func TestToleranceBreakevenTiedExpectedValue(t *testing.T) {
+	m := &tree.Model{Root: tree.Decision("Pick",
+		lotteryOption("Wide", tree.Gain, "-100:0.5", "100:0.5"),
+		lotteryOption("Narrow", tree.Gain, "-10:0.5", "10:0.5"))}
+	sol := mustSolve(t, m)
+	tb, err := FindToleranceBreakeven(context.Background(), sol, ToleranceOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if tb.Neutral != 0 || len(tb.Switches) != 0 || tb.Segments[0].Best != 1 {
+		t.Fatalf("neutral %d, switches %+v, segments %+v", tb.Neutral, tb.Switches, tb.Segments)
+	}
+	notes := strings.Join(tb.Notes, "\n")
+	if strings.Contains(notes, "becomes the expected-value choice") {
+		t.Errorf("the notes promise a switch that never comes:\n%s", notes)
+	}
+	if !strings.Contains(notes, "same expected value") {
+		t.Errorf("the notes do not say the options tie by expected value:\n%s", notes)
 	}
 }
