@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"path/filepath"
 	"strings"
 	"time"
 
@@ -40,6 +41,24 @@ func chartTarget(c *cli.Context, flag string) (*chartFile, error) {
 		return nil, modelErr("--%s %s is a directory; give the name of the chart to write", flag, shown(p))
 	}
 	return &chartFile{flag: flag, path: p, format: f}, nil
+}
+
+// sameChartFile refuses two chart flags that name one file: the second
+// chart would silently replace the first.
+func sameChartFile(a, b *chartFile) error {
+	if a == nil || b == nil {
+		return nil
+	}
+	same := filepath.Clean(a.path) == filepath.Clean(b.path)
+	if !same {
+		sa, errA := os.Stat(a.path)
+		sb, errB := os.Stat(b.path)
+		same = errA == nil && errB == nil && os.SameFile(sa, sb)
+	}
+	if same {
+		return usageErr("--%s and --%s name the same file, %s; give each chart its own", a.flag, b.flag, shown(b.path))
+	}
+	return nil
 }
 
 // write draws the chart into its file (through a temporary file renamed

@@ -70,6 +70,9 @@ func simulateAction(c *cli.Context) error {
 	if err != nil {
 		return err
 	}
+	if err := sameChartFile(hist, cumul); err != nil {
+		return err
+	}
 	draws := c.String("save-draws")
 	if c.IsSet("save-draws") && (draws == "" || draws == "-") {
 		return usageErr("--save-draws needs a file name (the draws can be large; they go to a file)")

@@ -113,6 +113,7 @@ func TestSimulateFiles(t *testing.T) {
 }
 
 func TestSimulateUsage(t *testing.T) {
+	dir := t.TempDir()
 	badP := writeFile(t, "badp.fork", "let p = normal(50%, 40%)\ndecision \"D\"\n  \"a\"\n    chance \"M\"\n      \"u\"  p  gain 1\n      \"d\"  rest\n  \"b\"\n")
 	for _, c := range []struct {
 		args []string
@@ -128,6 +129,8 @@ func TestSimulateUsage(t *testing.T) {
 		{[]string{"simulate", "example:project-cost", "--at", "Nowhere"}, exitUsage, "no decision labelled"},
 		{[]string{"simulate", "example:project-cost", "--chart", "x.pdf"}, exitUsage, ".svg or .png"},
 		{[]string{"simulate", "example:project-cost", "--save-draws", "-"}, exitUsage, "needs a file name"},
+		// Two charts into one file: the second would replace the first.
+		{[]string{"simulate", "example:project-cost", "--chart", filepath.Join(dir, "s.svg"), "--cumulative", dir + "/./s.svg"}, exitUsage, "--chart and --cumulative name the same file"},
 		{[]string{"simulate", badP, "--runs", "1000"}, exitModel, `outside [0, 1]`},
 	} {
 		code, out, errs := forkcast(t, "", c.args...)
