@@ -138,6 +138,13 @@ func TestExitCodes(t *testing.T) {
 		{"negative depth", []string{"draw", "--depth", "-1", "example:release"}, 2, "--depth -1: give a number of at least 0"},
 		{"unknown command", []string{"sovle"}, 2, "unknown command \"sovle\" (did you mean \"solve\"?)"},
 		{"flag without its value", []string{"solve", bad, "--max-nodes"}, 2, "flag --max-nodes needs a value"},
+		// A flag value of the wrong kind is named as the user wrote it
+		// (--seed, not -seed), with what the flag takes.
+		{"negative seed", []string{"simulate", "example:project-cost", "--seed", "-1"}, 2, "--seed -1: give a whole number from 0 to 18446744073709551615"},
+		{"seed too large", []string{"simulate", "example:project-cost", "--seed", "18446744073709551616"}, 2, "--seed 18446744073709551616: give a whole number from 0 to 18446744073709551615"},
+		{"fractional runs", []string{"simulate", "example:project-cost", "--runs", "12.5"}, 2, "--runs 12.5: give a whole number"},
+		{"count out of range", []string{"solve", "example:sourcing", "--max-nodes", "99999999999999999999"}, 2, "--max-nodes 99999999999999999999: give a whole number"},
+		{"boolean", []string{"profile", "example:sourcing", "--json=maybe"}, 2, "--json=maybe: give true or false, or leave the value out"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -14,8 +14,11 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"os/signal"
+	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"unicode"
@@ -119,7 +122,7 @@ func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, std
 		HideHelpCommand: false,
 		Suggest:         true,
 		OnUsageError: func(c *cli.Context, err error, isSub bool) error {
-			return usageErr("%s", err.Error())
+			return usageErr("%s", flagValueMessage(err.Error(), commands()))
 		},
 		ExitErrHandler: func(*cli.Context, error) {}, // run decides the exit code
 		CommandNotFound: func(c *cli.Context, name string) {
@@ -152,6 +155,42 @@ func runContext(ctx context.Context, args []string, stdin io.Reader, stdout, std
 	}
 	fmt.Fprintln(stderr, "forkcast: "+err.Error())
 	return exitUsage
+}
+
+// badFlagValue and badBoolValue match the flag package's messages for a
+// value of the wrong kind, which name the flag with one dash and say only
+// "parse error".
+var (
+	badFlagValue = regexp.MustCompile(`^invalid value "(.*)" for flag -([a-z][a-z-]*): (parse error|value out of range)$`)
+	badBoolValue = regexp.MustCompile(`^invalid boolean value "(.*)" for -([a-z][a-z-]*): parse error$`)
+)
+
+// flagValueMessage rewrites the flag package's message for a value of the
+// wrong kind as the flag is written on the command line, with what it
+// takes; any other message is returned unchanged.
+func flagValueMessage(msg string, cmds []*cli.Command) string {
+	if m := badBoolValue.FindStringSubmatch(msg); m != nil {
+		return fmt.Sprintf("--%s=%s: give true or false, or leave the value out", m[2], shown(m[1]))
+	}
+	m := badFlagValue.FindStringSubmatch(msg)
+	if m == nil {
+		return msg
+	}
+	value, name := shown(m[1]), m[2]
+	for _, cmd := range cmds {
+		for _, f := range cmd.Flags {
+			if !slices.Contains(f.Names(), name) {
+				continue
+			}
+			switch f.(type) {
+			case *cli.Uint64Flag:
+				return fmt.Sprintf("--%s %s: give a whole number from 0 to %d", name, value, uint64(math.MaxUint64))
+			case *cli.IntFlag:
+				return fmt.Sprintf("--%s %s: give a whole number (digits, with _ between groups if you like)", name, value)
+			}
+		}
+	}
+	return fmt.Sprintf("--%s %s: %s", name, value, m[3])
 }
 
 // checkCounts refuses a count or limit flag given out of its range (a
