@@ -143,7 +143,7 @@ func TestExitCodes(t *testing.T) {
 		{"negative seed", []string{"simulate", "example:project-cost", "--seed", "-1"}, 2, "--seed -1: give a whole number from 0 to 18446744073709551615"},
 		{"seed too large", []string{"simulate", "example:project-cost", "--seed", "18446744073709551616"}, 2, "--seed 18446744073709551616: give a whole number from 0 to 18446744073709551615"},
 		{"fractional runs", []string{"simulate", "example:project-cost", "--runs", "12.5"}, 2, "--runs 12.5: give a whole number"},
-		{"count out of range", []string{"solve", "example:sourcing", "--max-nodes", "99999999999999999999"}, 2, "--max-nodes 99999999999999999999: give a whole number"},
+		{"count out of range", []string{"solve", "example:sourcing", "--max-nodes", "99999999999999999999"}, 2, "--max-nodes 99999999999999999999: too large; give a whole number of at most 9223372036854775807"},
 		{"boolean", []string{"profile", "example:sourcing", "--json=maybe"}, 2, "--json=maybe: give true or false, or leave the value out"},
 	}
 	for _, c := range cases {

@@ -186,6 +186,9 @@ func flagValueMessage(msg string, cmds []*cli.Command) string {
 			case *cli.Uint64Flag:
 				return fmt.Sprintf("--%s %s: give a whole number from 0 to %d", name, value, uint64(math.MaxUint64))
 			case *cli.IntFlag:
+				if m[3] == "value out of range" {
+					return fmt.Sprintf("--%s %s: too large; give a whole number of at most %d", name, value, math.MaxInt)
+				}
 				return fmt.Sprintf("--%s %s: give a whole number (digits, with _ between groups if you like)", name, value)
 			}
 		}
