@@ -596,7 +596,6 @@ func (k *compiler) tree() {
 	sh.first = make([]int32, 0, size+1)
 	k.c.cash = make([]exact.Num, 0, size)
 	k.c.prob = make([]exact.Num, 0, size)
-	k.c.payoff = make([]exact.Num, 0, size)
 	if named {
 		sh.unc = make([]int32, 0, size)
 		sh.test = make([]int32, 0, size)
@@ -612,7 +611,9 @@ func (k *compiler) tree() {
 		sh.parent = append(sh.parent, parent)
 		k.c.cash = append(k.c.cash, exact.Zero)
 		k.c.prob = append(k.c.prob, exact.Zero)
-		k.c.payoff = append(k.c.payoff, exact.Zero)
+		if k.c.payoff != nil {
+			k.c.payoff = append(k.c.payoff, exact.Zero)
+		}
 		if k.envOf != nil { // nil until a split is met (split.go)
 			k.envOf = append(k.envOf, k.envOf[parent])
 		}
@@ -645,6 +646,9 @@ func (k *compiler) tree() {
 		switch n.Kind {
 		case tree.KindEnd:
 			if n.Payoff != nil {
+				if k.c.payoff == nil { // most models have none: no array then
+					k.c.payoff = make([]exact.Num, len(sh.nodes), cap(sh.nodes))
+				}
 				k.c.payoff[i], _ = k.figure(n.Payoff, figPayoff, ii, 0, 0)
 			}
 			if len(n.Branches) > 0 {

@@ -434,6 +434,15 @@ func (c *Model) own(i int) exact.Num {
 	if c.sh.test != nil && c.sh.test[i] >= 0 {
 		return c.pool.Neg(c.tcost[c.sh.test[i]])
 	}
+	return c.payoffAt(i)
+}
+
+// payoffAt is end node i's own value: 0 when no end has one (payoff is
+// nil then).
+func (c *Model) payoffAt(i int) exact.Num {
+	if c.payoff == nil {
+		return exact.Zero
+	}
 	return c.payoff[i]
 }
 

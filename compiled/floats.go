@@ -126,7 +126,7 @@ func (c *Model) NewFloats() *Floats {
 		f.in[i] = fl(v)
 	}
 	for i := 0; i < n; i++ {
-		f.cash[i], f.prob[i], f.payoff[i] = fl(c.cash[i]), fl(c.prob[i]), fl(c.payoff[i])
+		f.cash[i], f.prob[i], f.payoff[i] = fl(c.cash[i]), fl(c.prob[i]), fl(c.payoffAt(i))
 	}
 	for t, v := range c.tcost {
 		f.tcost[t] = fl(v)

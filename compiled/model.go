@@ -37,7 +37,7 @@ type Model struct {
 	pinned    map[[2]int32]bool // probabilities given a value by With: {-1, node} or {uncertainty, state}
 	cash      []exact.Num       // per node: net value of the branch into it
 	prob      []exact.Num       // per node: probability of the branch into it, under a plain chance node
-	payoff    []exact.Num       // per node: an end node's own value (net)
+	payoff    []exact.Num       // per node: an end node's own value (net); nil when no end has one
 	prior     [][]exact.Num
 	lik       [][][]exact.Num // per test: [reading][state]
 	tcost     []exact.Num     // per test
@@ -182,7 +182,7 @@ func (c *Model) Branch(i int) *tree.Branch {
 func (c *Model) Cash(i int) decimal.Decimal { return c.pool.Dec(c.cash[i]) }
 
 // Payoff is end node i's own value (net), 0 for other nodes.
-func (c *Model) Payoff(i int) decimal.Decimal { return c.pool.Dec(c.payoff[i]) }
+func (c *Model) Payoff(i int) decimal.Decimal { return c.pool.Dec(c.payoffAt(i)) }
 
 // TestCostAt is the cost of the test node i runs (0 when it runs none), as
 // a positive amount.
