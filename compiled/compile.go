@@ -2,6 +2,7 @@ package compiled
 
 import (
 	"fmt"
+	"slices"
 	"strconv"
 
 	"github.com/forkcast/forkcast/internal/exact"
@@ -580,16 +581,33 @@ func describe(n *tree.Node) string {
 	return strconv.Quote(n.Display())
 }
 
+// calculation is 1 when e is a calculation (not a number as written, nor
+// nothing), 0 otherwise.
+func calculation(e tree.Expr) int {
+	if _, ok := e.(*tree.Number); ok || e == nil {
+		return 0
+	}
+	return 1
+}
+
 // tree lays the nodes out breadth-first and checks them.
 func (k *compiler) tree() {
 	sh := k.c.sh
 	named := len(k.m.Uncertainties) > 0 || len(k.m.Tests) > 0
-	// Count first, so every array is made once at its size.
-	size := 1
+	// Count first, so every array is made once at its size; the figures
+	// that are calculations may read inputs, and the list of those that
+	// do gets room for them all at once.
+	size, calcs := 1, 0
 	tree.Walk(k.m.Root, func(n *tree.Node, _ int) bool {
 		size += len(n.Branches)
+		calcs += calculation(n.Payoff)
+		for _, b := range n.Branches {
+			calcs += calculation(b.Prob)
+			calcs += min(calculation(b.Gain)+calculation(b.Cost), 1) // one net figure
+		}
 		return true
 	})
+	sh.dyn = slices.Grow(sh.dyn, calcs)
 	sh.nodes = make([]*tree.Node, 0, size)
 	sh.kind = make([]tree.Kind, 0, size)
 	sh.parent = make([]int32, 0, size)
