@@ -8,6 +8,7 @@
 // labels of a few words. The figures are invented and depend only on N.
 //
 //	go run ./lang/internal/gen -n 864000 > big.fork
+//	go run ./lang/internal/gen -doubling 19 > bomb.fork
 package main
 
 import (
@@ -28,14 +29,32 @@ type node struct {
 
 func main() {
 	n := flag.Int("n", 1000, "number of nodes, ends included (at least 3)")
+	doubling := flag.Int("doubling", 0, "instead, write a doubling model of `L` levels of subtrees, each used twice by the one above: 2^(L+2)+1 nodes in a few hundred bytes")
 	flag.Parse()
-	if *n < 3 {
-		fmt.Fprintln(os.Stderr, "gen: -n must be at least 3")
-		os.Exit(2)
-	}
 	w := bufio.NewWriterSize(os.Stdout, 1<<16)
 	defer w.Flush()
-	write(w, build(*n))
+	switch {
+	case *doubling > 0:
+		writeDoubling(w, *doubling)
+	case *n < 3:
+		fmt.Fprintln(os.Stderr, "gen: -n must be at least 3")
+		w.Flush()
+		os.Exit(2)
+	default:
+		write(w, build(*n))
+	}
+}
+
+// writeDoubling writes a model whose subtrees double the tree at each of
+// levels levels: subtree i is a decision whose two options both use
+// subtree i+1; the last has two ends, and the root adds itself and one
+// end.
+func writeDoubling(w *bufio.Writer, levels int) {
+	for i := 0; i < levels; i++ {
+		fmt.Fprintf(w, "subtree l%d\n  decision \"L%d\"\n    \"a\"\n      use l%d\n    \"b\"\n      use l%d\n", i, i, i+1, i+1)
+	}
+	fmt.Fprintf(w, "subtree l%d\n  decision \"End\"\n    \"a\"\n    \"b\"\n", levels)
+	w.WriteString("decision \"Top\"\n  \"go\"\n    use l0\n  \"stop\"\n")
 }
 
 // rng is a small linear congruential generator: the output depends on N
