@@ -51,15 +51,16 @@ type regFrame struct {
 	reg  *tree.Register
 	risk *tree.Risk
 	// seen is the line each attribute of the risk (or of its response)
-	// was first given on, to report one given twice.
-	seen map[string]int
+	// was first given on (attrIndex), to report one given twice.
+	seen [attrCount]int32
 }
 
 // registerState is what the builder keeps about registers while reading.
 type registerState struct {
 	byName map[string]int // register name → its line
 	refs   []registerRef
-	broken map[*tree.Risk]bool // risks with a line that could not be read
+	broken map[*tree.Risk]bool                    // risks with a line that could not be read
+	ids    map[*tree.Register]map[string]tree.Pos // each register's risk ids, where first written
 }
 
 // registerRef is a let's `register NAME ...`, checked once every register
@@ -108,7 +109,7 @@ func (b *builder) registerPlace(l *srcLine, parent *frame) (f *frame, ok bool) {
 
 func (b *builder) regs() *registerState {
 	if b.registers == nil {
-		b.registers = &registerState{byName: map[string]int{}, broken: map[*tree.Risk]bool{}}
+		b.registers = &registerState{byName: map[string]int{}, broken: map[*tree.Risk]bool{}, ids: map[*tree.Register]map[string]tree.Pos{}}
 	}
 	return b.registers
 }
@@ -160,15 +161,17 @@ func (b *builder) registerLine(l *srcLine, parent *frame) *frame {
 
 // registerChild reads a line under a register, a risk or a response.
 func (b *builder) registerChild(l *srcLine, parent *frame) *frame {
-	broken := &frame{kind: fBroken, silent: true, what: "this line", reg: parent.reg}
-	leaf := func(what string) *frame { return &frame{kind: fRegLeaf, what: what, reg: parent.reg} }
+	broken := func() *frame {
+		return b.newFrame(frame{kind: fBroken, silent: true, what: "this line", reg: parent.reg})
+	}
+	leaf := func(what string) *frame { return b.newFrame(frame{kind: fRegLeaf, what: what, reg: parent.reg}) }
 	first := l.first()
 	word := ""
 	if first.Type == tokIdent || first.Type == tokKeyword {
 		word = first.Value
 	}
 	if l.lx.lexErr {
-		return broken
+		return broken()
 	}
 	switch parent.kind {
 	case fRegister:
@@ -191,7 +194,7 @@ func (b *builder) registerChild(l *srcLine, parent *frame) *frame {
 			msg = fmt.Sprintf("`%s` goes under a risk, not directly under %s", word, parent.desc())
 		}
 		b.errAt(l.pos(), l.firstWidth(), hint, "%s", msg)
-		return broken
+		return broken()
 	case fRisk:
 		f := b.riskAttr(l, parent, word, leaf, broken)
 		if f.kind == fBroken {
@@ -207,14 +210,14 @@ func (b *builder) registerChild(l *srcLine, parent *frame) *frame {
 				hint = "a response's cost goes on the response's own line: `response \"What is done\" cost 5_000`"
 			}
 			b.errAt(l.pos(), l.firstWidth(), hint, "%s cannot go under the response", the(describe(first)))
-			return broken
+			return broken()
 		}
 		return b.residual(l, parent, leaf, broken)
 	}
 	// Under an attribute line.
 	b.errAt(l.pos(), l.firstWidth(), fmt.Sprintf("line it up with %s on line %d", parent.desc(), parent.line),
 		"%s takes no lines under it", parent.desc())
-	return broken
+	return broken()
 }
 
 func containsWord(list []string, w string) bool {
@@ -271,19 +274,24 @@ func (b *builder) riskLine2(l *srcLine, parent *frame) *frame {
 			"unexpected %s after the %s's title", describe(toks[3]), kind)
 	}
 	reg := parent.reg.reg
-	for _, other := range reg.Risks {
-		if other.ID == k.ID {
-			b.errAt(k.IDPos, tokWidth(l.lx, id), fmt.Sprintf("it was first used on line %d; give each risk of a register its own id", other.IDPos.Line),
-				"the id %s is used twice in register %s", shorten(k.ID), reg.Name)
-			return &frame{kind: fRisk, what: kind + " " + shorten(k.ID), reg: &regFrame{reg: reg, risk: k, seen: map[string]int{}}}
-		}
+	rs := b.regs()
+	ids := rs.ids[reg]
+	if ids == nil {
+		ids = map[string]tree.Pos{}
+		rs.ids[reg] = ids
 	}
+	if first, dup := ids[k.ID]; dup {
+		b.errAt(k.IDPos, tokWidth(l.lx, id), fmt.Sprintf("it was first used on line %d; give each risk of a register its own id", first.Line),
+			"the id %s is used twice in register %s", shorten(k.ID), reg.Name)
+		return &frame{kind: fRisk, what: kind + " " + shorten(k.ID), reg: &regFrame{reg: reg, risk: k}}
+	}
+	ids[k.ID] = k.IDPos
 	reg.Risks = append(reg.Risks, k)
-	return &frame{kind: fRisk, what: kind + " " + shorten(k.ID), reg: &regFrame{reg: reg, risk: k, seen: map[string]int{}}}
+	return &frame{kind: fRisk, what: kind + " " + shorten(k.ID), reg: &regFrame{reg: reg, risk: k}}
 }
 
 // riskAttr reads a line under a risk.
-func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(string) *frame, broken *frame) *frame {
+func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(string) *frame, broken func() *frame) *frame {
 	toks := l.lx.toks
 	rf := parent.reg
 	k := rf.risk
@@ -309,20 +317,20 @@ func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(str
 		default:
 			b.errAt(l.pos(), l.firstWidth(), hint, "a line under a risk cannot start with %s", the(describe(first)))
 		}
-		return broken
+		return broken()
 	}
-	if prev, dup := rf.seen[word]; dup && word != "column" {
+	if prev := rf.seen[attrIndex(word)]; prev != 0 && word != "column" {
 		b.errAt(l.pos(), l.firstWidth(), fmt.Sprintf("it was first given on line %d; keep one", prev),
 			"the %s of %s is given twice", attrNoun(word), parent.desc())
-		return broken
+		return broken()
 	}
-	rf.seen[word] = l.num
-	what := word + " of " + parent.desc()
+	rf.seen[attrIndex(word)] = int32(l.num)
+	what := attrLine(word)
 	switch word {
 	case "probability", "impact":
 		e, ok := b.regFigure(l, 1, word, "")
 		if !ok {
-			return broken
+			return broken()
 		}
 		if word == "probability" {
 			k.Prob, k.ProbPos = e, l.pos()
@@ -333,14 +341,14 @@ func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(str
 	case "delay":
 		e, ok := b.regFigure(l, 1, word, "days")
 		if !ok {
-			return broken
+			return broken()
 		}
 		k.Delay = e
 		return leaf(what)
 	case "owner", "category":
 		s, ok := b.regText(l, 1, word, fmt.Sprintf("%s %q", word, map[string]string{"owner": "Site manager", "category": "Ground works"}[word]))
 		if !ok {
-			return broken
+			return broken()
 		}
 		if word == "owner" {
 			k.Owner = s
@@ -362,7 +370,7 @@ func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(str
 			}
 			b.errAt(at, n, "a column reads `column \"Heading\" \"value\"`, both in double quotes: a column of the spreadsheet kept with the risk",
 				"a column needs a heading and a value, each in double quotes")
-			return broken
+			return broken()
 		}
 		if len(toks) > 3 {
 			b.errAt(tokPos(toks[3]), tokWidth(l.lx, toks[3]), "a column reads `column \"Heading\" \"value\"`",
@@ -378,7 +386,7 @@ func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(str
 			}
 		}
 		k.Columns = append(k.Columns, tree.RiskColumn{Name: name, Value: unquote(toks[2].Value)})
-		return leaf("column " + shorten(toks[1].Value))
+		return leaf(attrLine("column"))
 	}
 	// response "What is done" [cost EXPR]
 	resp := &tree.RiskResponse{Pos: l.pos()}
@@ -390,23 +398,23 @@ func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(str
 			msg = fmt.Sprintf("expected what the response does in double quotes, found %s", the(describe(toks[1])))
 		}
 		b.errAt(at, n, responseForm, "%s", msg)
-		return broken
+		return broken()
 	}
 	resp.Action = b.labelTok(l, toks[1])
 	if len(toks) > 2 {
 		t := toks[2]
 		if t.Type != tokKeyword || t.Value != "cost" {
 			b.errAt(tokPos(t), tokWidth(l.lx, t), responseForm, "expected `cost` after the response, found %s", the(describe(t)))
-			return broken
+			return broken()
 		}
 		e, ok := b.regFigure(l, 3, "cost", "")
 		if !ok {
-			return broken
+			return broken()
 		}
 		resp.Cost = e
 	}
 	k.Response = resp
-	return &frame{kind: fResponse, what: "the response of " + parent.desc(), reg: &regFrame{reg: rf.reg, risk: k, seen: map[string]int{}}}
+	return &frame{kind: fResponse, what: "the response of " + parent.desc(), reg: &regFrame{reg: rf.reg, risk: k}}
 }
 
 // attrNoun names an attribute in messages.
@@ -421,7 +429,7 @@ func attrNoun(word string) string {
 }
 
 // residual reads `residual probability EXPR` or `residual impact EXPR`.
-func (b *builder) residual(l *srcLine, parent *frame, leaf func(string) *frame, broken *frame) *frame {
+func (b *builder) residual(l *srcLine, parent *frame, leaf func(string) *frame, broken func() *frame) *frame {
 	toks := l.lx.toks
 	rf := parent.reg
 	hint := "under a response go `residual probability P` (the chance that remains once it is done) and `residual impact AMOUNT` (the impact that remains)"
@@ -438,25 +446,25 @@ func (b *builder) residual(l *srcLine, parent *frame, leaf func(string) *frame, 
 			}
 		}
 		b.errAt(at, n, hint, "%s", msg)
-		return broken
+		return broken()
 	}
 	word := "residual " + toks[1].Value
-	if prev, dup := rf.seen[word]; dup {
+	if prev := rf.seen[attrIndex(word)]; prev != 0 {
 		b.errAt(l.pos(), l.firstWidth(), fmt.Sprintf("it was first given on line %d; keep one", prev),
 			"the %s of %s is given twice", word, strings.TrimPrefix(parent.desc(), "the response of "))
-		return broken
+		return broken()
 	}
-	rf.seen[word] = l.num
+	rf.seen[attrIndex(word)] = int32(l.num)
 	e, ok := b.regFigure(l, 2, word, "")
 	if !ok {
-		return broken
+		return broken()
 	}
 	if toks[1].Value == "probability" {
 		rf.risk.Response.Prob = e
 	} else {
 		rf.risk.Response.Impact = e
 	}
-	return leaf(word)
+	return leaf(attrLine(word))
 }
 
 // regText reads a label at token i that ends the line.
@@ -758,4 +766,60 @@ func compile(m *tree.Model) (*compiled.Model, tree.Diagnostics) {
 		return nil, cs
 	}
 	return c, cs
+}
+
+// Attributes of a risk, by their place in regFrame.seen.
+const (
+	attrOther = iota
+	attrProbability
+	attrImpact
+	attrDelay
+	attrOwner
+	attrCategory
+	attrResponse
+	attrResidualProbability
+	attrResidualImpact
+	attrCount
+)
+
+// attrIndex is word's place in regFrame.seen.
+func attrIndex(word string) int {
+	switch word {
+	case "probability":
+		return attrProbability
+	case "impact":
+		return attrImpact
+	case "delay":
+		return attrDelay
+	case "owner":
+		return attrOwner
+	case "category":
+		return attrCategory
+	case "response":
+		return attrResponse
+	case "residual probability":
+		return attrResidualProbability
+	case "residual impact":
+		return attrResidualImpact
+	}
+	return attrOther
+}
+
+// attrLine is how messages name an attribute's line.
+func attrLine(word string) string {
+	switch word {
+	case "probability":
+		return "the probability line"
+	case "impact":
+		return "the impact line"
+	case "delay":
+		return "the delay line"
+	case "owner":
+		return "the owner line"
+	case "category":
+		return "the category line"
+	case "column":
+		return "the column line"
+	}
+	return "the " + word + " line"
 }
