@@ -138,3 +138,35 @@ func solveText(t *testing.T, src string) *eval.Solution {
 	}
 	return sol
 }
+
+// Under objective min the figures are costs and a certainty equivalent is
+// a certain cost, the smaller the better: the tolerance search must not
+// speak of payoffs or of the largest certainty equivalent.
+func TestToleranceTextUnderMin(t *testing.T) {
+	sol := solveText(t, `objective min
+decision "Approach"
+  "Patch"  cost 5_000
+    chance "Leak returns"
+      "No"   60%
+      "Yes"  rest  cost 40_000
+  "Replace"  cost 19_000`)
+	tb, err := eval.FindToleranceBreakeven(context.Background(), sol, eval.ToleranceOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var out bytes.Buffer
+	if err := report.Tolerance(sol.Compiled, tb, report.BreakevenOptions{}).WriteText(&out); err != nil {
+		t.Fatal(err)
+	}
+	text := out.String()
+	for _, bad := range []string{"payoffs", "largest certainty equivalent"} {
+		if strings.Contains(text, bad) {
+			t.Errorf("%q under objective min:\n%s", bad, text)
+		}
+	}
+	for _, want := range []string{"the costs after the decision span 40,000.00", `No switch: "Replace" has the best certainty equivalent`} {
+		if !strings.Contains(text, want) {
+			t.Errorf("no %q in\n%s", want, text)
+		}
+	}
+}

@@ -7,6 +7,7 @@ import (
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render"
+	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )
 
@@ -55,8 +56,12 @@ func (r *ToleranceReport) WriteText(out io.Writer) error {
 	}
 	w.ln()
 	if tb.Default {
-		w.f("the payoffs after the decision span %s; the range runs from a thousandth of that\n"+
-			"to a thousand times it (--in LOW..HIGH for another)\n", money(tb.Spread))
+		what := "payoffs"
+		if m.Objective == tree.Min {
+			what = "costs"
+		}
+		w.f("the %s after the decision span %s; the range runs from a thousandth of that\n"+
+			"to a thousand times it (--in LOW..HIGH for another)\n", what, money(tb.Spread))
 	}
 	w.f("each option judged by its certainty equivalent (exponential utility), the\n"+
 		"risk-averse choices made after it; by expected value it is %s\n", quoted(tb.Options[tb.Neutral]))
@@ -65,7 +70,7 @@ func (r *ToleranceReport) WriteText(out io.Writer) error {
 	}
 	w.ln()
 	if len(tb.Switches) == 0 {
-		w.f("No switch: %s has the largest certainty equivalent over the whole range.\n", quoted(tb.Options[tb.Segments[0].Best]))
+		w.f("No switch: %s has the best certainty equivalent over the whole range.\n", quoted(tb.Options[tb.Segments[0].Best]))
 	}
 	for _, sw := range tb.Switches {
 		w.f("Switch at a risk tolerance of ≈%s (approximate): %s below, %s above\n", tol(sw.At), quoted(tb.Options[sw.Below]), quoted(tb.Options[sw.Above]))
