@@ -137,8 +137,14 @@ type builder struct {
 	cash          []pendingCash
 	rootLine      int
 	sawNodeTop    bool
-	registers     *registerState // nil until a register is met (register.go)
-	firstLine     int
+	// written counts the nodes of the main tree as written, the root and
+	// one for each branch (each leads to a node or an end): never more
+	// than the tree has once expanded. Past the node limit, reading stops
+	// (stopped) with an error at the line.
+	written   int
+	stopped   bool
+	registers *registerState // nil until a register is met (register.go)
+	firstLine int
 }
 
 func (b *builder) errAt(p tree.Pos, n int, hint, format string, args ...any) {
@@ -745,6 +751,7 @@ func (b *builder) placeItem(l *srcLine, g *gItem, parent *frame, role itemRole, 
 	case fNode:
 		br := b.branch(l, g, label)
 		parent.kids = append(parent.kids, br)
+		b.countBranch(parent, lp, lw)
 		return b.newFrame(frame{kind: fBranch, noun: "branch", label: label, hasLabel: true, branch: br, owner: owner})
 	case fUnc:
 		b.state(l, g, label, parent)
@@ -1013,6 +1020,14 @@ func (b *builder) finish() {
 		b.closeFrame(b.stack[i])
 	}
 	b.stack = nil
+	if b.stopped {
+		// Only part of the file was read: what the rest would settle
+		// (names defined below, subtrees) is not checked.
+		if b.m.Root != nil {
+			b.dropUses()
+		}
+		return
+	}
 	switch {
 	case b.firstLine == 0 && len(b.ds) == 0:
 		b.errAt(tree.Pos{Line: 1, Col: 1}, 1, "a model needs at least a tree: a `decision` line with its options indented beneath it",
@@ -1051,4 +1066,23 @@ func (b *builder) finish() {
 	}
 	b.expand()
 	b.splitOut()
+}
+
+// countBranch counts a branch placed under the node of frame parent (at
+// at, width wide) and stops reading once the main tree as written is past
+// the node limit: a file of millions of plain lines is refused as it is
+// read, before it is all built.
+func (b *builder) countBranch(parent *frame, at tree.Pos, width int) {
+	if parent.owner != nil || parent.detached || b.stopped {
+		return // in a subtree's definition (weighed at its uses), or not placed
+	}
+	if b.written == 0 {
+		b.written = 1 // the root
+	}
+	b.written++
+	if b.written > b.limit {
+		b.errAt(at, width, "if the model really is this big, raise the node limit (--max-nodes on the command line; Options.NodeLimit in Go)",
+			"the tree has more than %s nodes; reading stopped here", grouped(b.limit))
+		b.stopped = true
+	}
 }

@@ -429,6 +429,7 @@ func (b *builder) commitItem(fl *fastLine) {
 	}
 	b.noteCash(br)
 	parent.kids = append(parent.kids, br)
+	b.countBranch(parent, at, int(fl.toks[0].width))
 	b.push(&fl.lineHead, parent, b.newFrame(frame{kind: fBranch, noun: "branch", label: label, hasLabel: true, branch: br, owner: parent.owner}))
 }
 

@@ -452,6 +452,70 @@ func TestNodeLimit(t *testing.T) {
 	}
 }
 
+// TestNodeLimitWhileReading checks that a tree written out line by line is
+// refused as soon as it passes the node limit, at the line that passes it,
+// without reading (or building) the rest of the file, read whole or as a
+// stream; and that a subtree's definition counts only where it is used.
+func TestNodeLimitWhileReading(t *testing.T) {
+	// genModel(3, 4): 1 + 3 + 9 + 27 + 81 = 121 nodes as written, then a
+	// line with a mistake that is only reported when it is read.
+	src := string(genModel(3, 4)) + "decision \"oops\n"
+	for _, limit := range []int{50, 120} {
+		m, ds := Parse([]byte(src), Options{NodeLimit: limit})
+		b := newBuilder(Options{NodeLimit: limit})
+		if err := b.readFrom(strings.NewReader(src), 64); err != nil {
+			t.Fatal(err)
+		}
+		sm, sds := b.done([]byte(src))
+		if len(ds) != 1 || !strings.Contains(ds[0].Summary, fmt.Sprintf("the tree has more than %d nodes; reading stopped here", limit)) {
+			t.Fatalf("limit %d: %v", limit, ds)
+		}
+		// The first branch line that makes limit+1 nodes (the root and
+		// one a branch) is where reading stops.
+		lines := strings.Split(src, "\n")
+		branches, at := 0, 0
+		for i, l := range lines {
+			if strings.HasPrefix(strings.TrimLeft(l, " "), "\"") {
+				if branches++; 1+branches > limit {
+					at = i + 1
+					break
+				}
+			}
+		}
+		if int(ds[0].Pos.Line) != at {
+			t.Errorf("limit %d: at %v, want line %d", limit, ds[0].Pos, at)
+		}
+		if !reflect.DeepEqual(ds, sds) || !reflect.DeepEqual(m, sm) {
+			t.Errorf("limit %d: the stream gives %v, the text whole %v", limit, sds, ds)
+		}
+	}
+	// At the limit the whole file is read: the last line's mistake is
+	// reported, and nothing about the limit.
+	_, ds := Parse([]byte(src), Options{NodeLimit: 121})
+	last := false
+	for _, d := range ds.Errors() {
+		last = last || d.Pos.Line == int32(strings.Count(src, "\n"))
+		if strings.Contains(d.Summary, "more than") {
+			t.Errorf("at the limit: %v", d)
+		}
+	}
+	if !last {
+		t.Errorf("at the limit, the last line is not read: %v", ds)
+	}
+	// A subtree of 10 ends used once: 1 + (1 + 10) = 12 nodes expanded,
+	// though 1 + 1 + 10 branches are written.
+	sub := "decision \"D\"\n  \"go\"\n    use s\nsubtree s\n  decision \"S\"\n"
+	for i := range 10 {
+		sub += fmt.Sprintf("    \"x%d\"\n", i)
+	}
+	if _, ds := Parse([]byte(sub), Options{NodeLimit: 12}); len(ds) != 0 {
+		t.Errorf("at the limit through a subtree: %v", ds)
+	}
+	if _, ds := Parse([]byte(sub), Options{NodeLimit: 11}); !ds.HasErrors() {
+		t.Error("one past the limit through a subtree: no error")
+	}
+}
+
 // TestDeepChain reads a tree 100 000 levels deep: a chain of subtrees each
 // using the next (by indentation alone such a file would be quadratic in
 // size), and a 2 000-level chain written out with indentation.

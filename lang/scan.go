@@ -155,6 +155,10 @@ func (b *builder) readFrom(r io.Reader, size int) error {
 				}
 				lr.line(buf[start:k])
 				start, crDone = next, next
+				if b.stopped {
+					lr.end()
+					return nil // the rest of the file is not read
+				}
 				continue
 			}
 		}
@@ -187,6 +191,9 @@ func (b *builder) readFrom(r io.Reader, size int) error {
 // line places one line of the file (without its line end).
 func (lr *lineReader) line(raw []byte) {
 	b := lr.b
+	if b.stopped {
+		return
+	}
 	lr.num++
 	num := lr.num
 	n := 0
