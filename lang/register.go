@@ -21,7 +21,7 @@ import (
 //	    delay EXPR days
 //	    owner "text"
 //	    category "text"
-//	    response "text" [cost EXPR]
+//	    response ["text"] [cost EXPR]
 //	      residual probability EXPR
 //	      residual impact EXPR
 //	    column "Heading" "value"
@@ -376,38 +376,30 @@ func (b *builder) riskAttr(l *srcLine, parent *frame, word string, leaf func(str
 			b.errAt(tokPos(toks[3]), tokWidth(l.lx, toks[3]), "a column reads `column \"Heading\" \"value\"`",
 				"unexpected %s after the column's value", describe(toks[3]))
 		}
+		// Any heading, as the sheet had it: empty, or twice.
 		name := unquote(toks[1].Value)
-		if strings.TrimSpace(name) == "" {
-			b.errAt(tokPos(toks[1]), tokWidth(l.lx, toks[1]), "write the column's heading between the quotes", "the column's heading is empty")
-		}
-		for _, c := range k.Columns {
-			if c.Name == name {
-				b.errAt(tokPos(toks[1]), tokWidth(l.lx, toks[1]), "give each column of a risk once", "the column %q is given twice for %s", shorten(name), parent.desc())
-			}
-		}
 		k.Columns = append(k.Columns, tree.RiskColumn{Name: name, Value: unquote(toks[2].Value)})
 		return leaf(attrLine("column"))
 	}
-	// response "What is done" [cost EXPR]
+	// response ["What is done"] [cost EXPR]: a sheet may give a
+	// response's figures without saying what it is.
 	resp := &tree.RiskResponse{Pos: l.pos()}
-	if len(toks) < 2 || toks[1].Type != tokString {
-		at, n := l.pos(), l.firstWidth()
-		msg := "the response has no description"
-		if len(toks) > 1 {
-			at, n = tokPos(toks[1]), tokWidth(l.lx, toks[1])
-			msg = fmt.Sprintf("expected what the response does in double quotes, found %s", the(describe(toks[1])))
-		}
-		b.errAt(at, n, responseForm, "%s", msg)
-		return broken()
+	next := 1
+	if len(toks) > 1 && toks[1].Type == tokString {
+		resp.Action = b.labelTok(l, toks[1])
+		next = 2
 	}
-	resp.Action = b.labelTok(l, toks[1])
-	if len(toks) > 2 {
-		t := toks[2]
+	if len(toks) > next {
+		t := toks[next]
 		if t.Type != tokKeyword || t.Value != "cost" {
-			b.errAt(tokPos(t), tokWidth(l.lx, t), responseForm, "expected `cost` after the response, found %s", the(describe(t)))
+			msg := fmt.Sprintf("expected `cost` after the response, found %s", the(describe(t)))
+			if next == 1 {
+				msg = fmt.Sprintf("expected what the response does in double quotes, found %s", the(describe(t)))
+			}
+			b.errAt(tokPos(t), tokWidth(l.lx, t), responseForm, "%s", msg)
 			return broken()
 		}
-		e, ok := b.regFigure(l, 3, "cost", "")
+		e, ok := b.regFigure(l, next+1, "cost", "")
 		if !ok {
 			return broken()
 		}

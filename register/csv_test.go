@@ -6,6 +6,8 @@ import (
 	"errors"
 	"strings"
 	"testing"
+
+	"github.com/shopspring/decimal"
 )
 
 const goodCSV = `id,title,type,probability,low,likely,high,owner,category,response,response_cost,residual_probability,residual_low,residual_likely,residual_high,schedule_low,schedule_likely,schedule_high,Date raised,Status
@@ -263,4 +265,25 @@ func FuzzReadCSV(f *testing.F) {
 			}
 		}
 	})
+}
+
+// WriteFork says what it had to change to write a sheet as text: a line
+// break in a label, bytes that are not UTF-8.
+func TestWriteForkWarnings(t *testing.T) {
+	reg := &Register{Name: "r", Risks: []Risk{
+		{ID: "A", Title: "two\nlines", P: decimal.RequireFromString("0.1"), Impact: FixedAmount(decimal.NewFromInt(5))},
+		{ID: "B", Title: "caf\xe9", P: decimal.RequireFromString("0.1"), Impact: FixedAmount(decimal.NewFromInt(5))},
+	}}
+	var b strings.Builder
+	warns, err := WriteFork(&b, reg, ForkOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(warns) != 2 || warns[0].Risk != 0 || !strings.Contains(warns[0].Msg, "line break") ||
+		warns[1].Risk != 1 || !strings.Contains(warns[1].Msg, "not UTF-8") {
+		t.Errorf("warnings %+v", warns)
+	}
+	if !strings.Contains(b.String(), `"two lines"`) || !strings.Contains(b.String(), "\"caf\uFFFD\"") {
+		t.Errorf("text:\n%s", b.String())
+	}
 }

@@ -37,7 +37,7 @@ type Warning struct {
 //	    delay pert(5, 10, 30) days
 //	    owner "…"
 //	    category "…"
-//	    response "…" cost 8_000
+//	    response "…" cost 8_000      (the description may be left out)
 //	      residual probability 10%
 //	      residual impact pert(30_000, 50_000, 90_000)
 //	    column "Heading" "value"
@@ -51,6 +51,10 @@ func WriteFork(w io.Writer, reg *Register, opts ForkOptions) ([]Warning, error) 
 	bw := bufio.NewWriter(w)
 	var warns []Warning
 	label := func(i int, field, s string) string {
+		if !utf8.ValidString(s) {
+			warns = append(warns, Warning{Risk: i, Field: field, Msg: "bytes that are not UTF-8 text became \uFFFD (save the sheet as UTF-8 to keep them)"})
+			s = strings.ToValidUTF8(s, "\uFFFD")
+		}
 		if strings.ContainsAny(s, "\r\n\t") || strings.ContainsFunc(s, unicode.IsControl) {
 			warns = append(warns, Warning{Risk: i, Field: field, Msg: "a line break or control character became a space (a label is one line of plain text)"})
 			s = strings.Map(func(r rune) rune {
@@ -108,7 +112,10 @@ func WriteFork(w io.Writer, reg *Register, opts ForkOptions) ([]Warning, error) 
 			fmt.Fprintf(bw, "    category %s\n", label(i, "category", k.Category))
 		}
 		if rs := k.Response; rs != nil {
-			fmt.Fprintf(bw, "    response %s", label(i, "response", rs.Action))
+			bw.WriteString("    response")
+			if rs.Action != "" {
+				fmt.Fprintf(bw, " %s", label(i, "response", rs.Action))
+			}
 			if !rs.Cost.IsZero() {
 				fmt.Fprintf(bw, " cost %s", number(rs.Cost))
 			}
