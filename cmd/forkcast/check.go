@@ -50,7 +50,11 @@ func checkCommand() *cli.Command {
 			}
 			ds := append(l.Diags, eval.Dominated(sol)...).Sort()
 			printLimited(c, ds, l.Name, l.Src, c.Int("warnings"), "run with --warnings -1 to see them all")
-			fmt.Fprintf(c.App.Writer, "%s: ok: %d nodes, %d warning%s\n", l.Name, len(sol.Nodes()), len(ds), plural(len(ds)))
+			regs := ""
+			if len(l.Model.Registers) > 0 {
+				regs = ", " + registersSummary(l.Model)
+			}
+			fmt.Fprintf(c.App.Writer, "%s: ok: %d nodes%s, %d warning%s\n", l.Name, len(sol.Nodes()), regs, len(ds), plural(len(ds)))
 			return nil
 		},
 	}

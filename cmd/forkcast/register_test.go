@@ -226,3 +226,16 @@ func TestRegisterRoundTrip(t *testing.T) {
 		t.Errorf("the sheet written gives other figures:\n%s\nthe original:\n%s", again, first)
 	}
 }
+
+// check says what registers a model holds, with or without a tree.
+func TestCheckRegisters(t *testing.T) {
+	for _, c := range []struct{ file, want string }{
+		{"example:library", "example:library: ok: 6 nodes, 2 registers (extend, modular), 0 warnings\n"},
+		{"example:library-register", "example:library-register: ok: no tree, register library (10 risks), 0 warnings\n"},
+	} {
+		code, out, errs := forkcast(t, "", "check", c.file)
+		if code != 0 || out != c.want || errs != "" {
+			t.Errorf("check %s: exit %d, %q %q; want %q", c.file, code, out, errs, c.want)
+		}
+	}
+}
