@@ -51,6 +51,7 @@ func simulateCommand() *cli.Command {
 			&cli.StringFlag{Name: "chart", Usage: "write the histogram of each option's payoff to `FILE` (.svg or .png)"},
 			&cli.StringFlag{Name: "cumulative", Usage: "write the cumulative chart of each option's payoff to `FILE` (.svg or .png)"},
 			&cli.StringFlag{Name: "save-draws", Usage: "write every run's draws and payoffs to `FILE` as CSV"},
+			setFlag(),
 			maxNodesFlag,
 		},
 		Action: simulateAction,
@@ -79,6 +80,9 @@ func simulateAction(c *cli.Context) error {
 	}
 	l, err := loadModel(c)
 	if err != nil {
+		return err
+	}
+	if err := setDrawnInput(c, l); err != nil {
 		return err
 	}
 	l.printWarnings(c)
@@ -170,4 +174,26 @@ func (b *runBar) finish() {
 	if b.bar != nil {
 		_ = b.bar.Clear()
 	}
+}
+
+// setDrawnInput refuses a --set of an input written as a distribution: a
+// simulation draws it, and a fixed value would leave its draws listed in
+// the report and the CSV while the runs use another figure.
+func setDrawnInput(c *cli.Context, l *loaded) error {
+	sets, err := parseSettings(c)
+	if err != nil || len(sets) == 0 {
+		return err
+	}
+	drawn := map[string]string{}
+	for _, u := range l.Compiled.Uncertain() {
+		if u.Input != "" {
+			drawn[u.Input] = u.Written()
+		}
+	}
+	for _, s := range sets {
+		if w, ok := drawn[s.name]; ok {
+			return usageErr("--set %s: %s is written as a distribution, %s, which simulate draws; --set fixes inputs that are not drawn (to fix this one, write the figure in its let line)", shown(s.word), shown(s.name), w)
+		}
+	}
+	return nil
 }

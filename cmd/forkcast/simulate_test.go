@@ -112,6 +112,40 @@ func TestSimulateFiles(t *testing.T) {
 	}
 }
 
+// --set works in simulate as in every command that reads a model: the
+// contract's fixed price moved to 600,000 is its figure at the means.
+func TestSimulateSet(t *testing.T) {
+	code, out, errs := forkcast(t, "", "simulate", "example:project-cost", "--runs", "200", "--set", "contract=600_000", "--json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var r struct {
+		Options []struct {
+			Label   string `json:"label"`
+			AtMeans string `json:"at_means"`
+		} `json:"options"`
+	}
+	if err := json.Unmarshal([]byte(out), &r); err != nil {
+		t.Fatal(err)
+	}
+	// 600,000 + 35% of the minor scope change's PERT mean (10,000 + 4 ·
+	// 20,000 + 45,000)/6 = 22,500 and 10% of the major one's (60,000 + 4 ·
+	// 90,000 + 160,000)/6 = 96,666.67: the PERT mean (Malcolm et al. 1959).
+	if len(r.Options) != 2 || !strings.HasPrefix(r.Options[1].AtMeans, "617541.66666") {
+		t.Errorf("options %+v, want the contract at 617,541.67", r.Options)
+	}
+	// An input written as a distribution is drawn: fixing it with --set
+	// would leave its draws in the report and the CSV, unused.
+	code, _, errs = forkcast(t, "", "simulate", "example:project-cost", "--set", "building=400_000")
+	if code != exitUsage || !strings.Contains(errs, "--set building=400_000: building is written as a distribution") {
+		t.Errorf("--set of a drawn input: exit %d, %s", code, errs)
+	}
+	code, _, errs = forkcast(t, "", "simulate", "example:project-cost", "--set", "contrct=600_000")
+	if code != exitUsage || !strings.Contains(errs, `did you mean "contract"?`) {
+		t.Errorf("an unknown --set name: exit %d, %s", code, errs)
+	}
+}
+
 func TestSimulateUsage(t *testing.T) {
 	dir := t.TempDir()
 	badP := writeFile(t, "badp.fork", "let p = normal(50%, 40%)\ndecision \"D\"\n  \"a\"\n    chance \"M\"\n      \"u\"  p  gain 1\n      \"d\"  rest\n  \"b\"\n")
