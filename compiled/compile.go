@@ -46,6 +46,7 @@ func compile(m *tree.Model, opts Options) (*Model, tree.Diagnostics) {
 		return nil, k.ds.Sort()
 	}
 	k.feeds()
+	k.linearFigures()
 	d, ds := c.derive(true)
 	k.ds = append(k.ds, ds...)
 	if k.ds.HasErrors() {

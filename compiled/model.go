@@ -92,6 +92,7 @@ type shape struct {
 	isSource []bool
 	dyn      []dynFig  // figures that read inputs, inputs first in slot order
 	readers  [][]int32 // per slot: the dyn figures that read it directly
+	lin      []linFig  // per dyn figure: as a·x + b of its input, when it is that (linear.go)
 }
 
 type rangeProg struct{ low, high *program }

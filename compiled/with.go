@@ -164,7 +164,11 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 		if (f.kind == figProb && w.setDirectly(f.i)) || (f.kind == figPrior && w.stateSetDirectly(f.i, f.j)) {
 			continue // a setting gave it its value
 		}
-		v, isExact, err := f.prog.eval(n.pool, n.in, n.inInexact)
+		v, isExact, linear := c.evalLinear(fi, n.pool, n.in, n.inInexact)
+		var err *EvalError
+		if !linear {
+			v, isExact, err = f.prog.eval(n.pool, n.in, n.inInexact)
+		}
 		if err != nil {
 			ds = append(ds, tree.Diagnostic{Severity: tree.Error, Pos: err.Pos, Summary: err.Msg, Hint: err.Hint})
 			continue

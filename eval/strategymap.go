@@ -5,7 +5,10 @@ import (
 	"errors"
 	"fmt"
 	"math/big"
+	"runtime"
 	"slices"
+	"sync"
+	"sync/atomic"
 
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/tree"
@@ -60,8 +63,12 @@ type MapOptions struct {
 	At string
 	// MaxSamples caps the rollbacks (DefaultSweepMaxSamples when 0).
 	MaxSamples int
-	// Progress, when not nil, is called after each row of the grid with
-	// the rows done and the rows in all.
+	// Workers is the number of goroutines that sample the grid (0: one
+	// per available CPU). The result is the same with any number.
+	Workers int
+	// Progress, when not nil, is called as lines of the grid (rows or
+	// columns) are done, with the lines done and the lines in all; never
+	// from two goroutines at once.
 	Progress func(done, total int)
 }
 
@@ -145,7 +152,7 @@ func MapStrategies(ctx context.Context, c *compiled.Model, opts MapOptions) (*St
 	mp := &mapper{a: a, sx: sx, sy: sy, xs: xa.Values, ys: ya.Values}
 	mp.plan(opts.X.Vary, opts.Y.Vary)
 	out := &StrategyMap{Objective: a.obj, X: xa, Y: ya, Decision: a.decision, Path: a.path, Options: a.options, Exact: true}
-	if err := mp.grid(opts.Progress); err != nil {
+	if err := mp.grid(opts.Workers, opts.Progress); err != nil {
 		return nil, err
 	}
 	if err := mp.edges(); err != nil {
@@ -250,8 +257,12 @@ func (mp *mapper) line(row bool, at decimal.Decimal, stage bool) *search {
 }
 
 // grid samples every grid point, line by line: row by row, or column by
-// column when mp.byColumn.
-func (mp *mapper) grid(progress func(done, total int)) error {
+// column when mp.byColumn. The lines are independent (each starts from
+// the model as compiled), so workers goroutines sample them at once; every
+// cell has its own place, and what is reported (the first invalid cell,
+// the first error) is taken in line order afterwards, so the result does
+// not depend on which worker finished first.
+func (mp *mapper) grid(workers int, progress func(done, total int)) error {
 	nx, ny := len(mp.xs), len(mp.ys)
 	mp.at = make([][]*sample, ny)
 	for j := range mp.at {
@@ -261,42 +272,103 @@ func (mp *mapper) grid(progress func(done, total int)) error {
 	if mp.byColumn {
 		lines, points = nx, ny
 	}
-	for l := 0; l < lines; l++ {
-		var s *search
-		if mp.byColumn {
-			s = mp.line(false, mp.xs[l], true)
-		} else {
-			s = mp.line(true, mp.ys[l], true)
-		}
-		for k := 0; k < points; k++ {
-			i, j := k, l
-			if mp.byColumn {
-				i, j = l, k
+	a := mp.a
+	if a.used+lines*points > a.max {
+		return &BudgetError{What: fmt.Sprintf("more than %d rollbacks (the grid alone needs %d)", a.max, lines*points), Option: a.option}
+	}
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	workers = max(1, min(workers, lines))
+	type lineResult struct {
+		samples int
+		invalid *invalidAt // the first invalid point along the line
+		invalAt [2]decimal.Decimal
+		err     error
+	}
+	results := make([]lineResult, lines)
+	var (
+		next   atomic.Int64
+		failed atomic.Bool
+		mu     sync.Mutex // serialises progress
+		done   int
+		wg     sync.WaitGroup
+	)
+	work := func() {
+		defer wg.Done()
+		for {
+			l := int(next.Add(1) - 1)
+			if l >= lines || failed.Load() {
+				return
 			}
-			x, y := mp.xs[i], mp.ys[j]
-			at := x
+			res := &results[l]
+			var s *search
 			if mp.byColumn {
-				at = y
+				s = mp.line(false, mp.xs[l], true)
+			} else {
+				s = mp.line(true, mp.ys[l], true)
 			}
-			sm, err := s.sample(at)
-			var inv *invalidAt
-			switch {
-			case errors.As(err, &inv):
-				if mp.invalid == "" {
-					mp.invalid = inv.diag.Summary + fmt.Sprintf(" (first at %s = %s, %s = %s)", mp.sx.be.Vary, x, mp.sy.be.Vary, y)
+			for k := 0; k < points && res.err == nil; k++ {
+				i, j := k, l
+				if mp.byColumn {
+					i, j = l, k
 				}
-			case err != nil:
-				return err
+				x, y := mp.xs[i], mp.ys[j]
+				at := x
+				if mp.byColumn {
+					at = y
+				}
+				sm, err := s.sample(at)
+				var inv *invalidAt
+				switch {
+				case errors.As(err, &inv):
+					if res.invalid == nil {
+						res.invalid, res.invalAt = inv, [2]decimal.Decimal{x, y}
+					}
+				case err != nil:
+					res.err = err
+					failed.Store(true)
+				}
+				if sm != nil && mp.byColumn {
+					sm = along(sm, x)
+				}
+				mp.at[j][i] = sm
 			}
-			if sm != nil && mp.byColumn {
-				sm = along(sm, x)
+			res.samples = s.be.Samples
+			if progress != nil && res.err == nil {
+				mu.Lock()
+				done++
+				progress(done, lines)
+				mu.Unlock()
 			}
-			mp.at[j][i] = sm
 		}
-		mp.a.spent(s)
-		if progress != nil {
-			progress(l+1, lines)
+	}
+	wg.Add(workers)
+	for w := 0; w < workers; w++ {
+		go work()
+	}
+	wg.Wait()
+	for l := range results {
+		res := &results[l]
+		if res.err != nil {
+			return res.err
 		}
+		a.used += res.samples
+	}
+	// The first invalid cell, row by row from the bottom and left to right
+	// along each row: the first of some line's first.
+	var first *lineResult
+	for l := range results {
+		r := &results[l]
+		if r.invalid == nil {
+			continue
+		}
+		if first == nil || r.invalAt[1].LessThan(first.invalAt[1]) || (r.invalAt[1].Equal(first.invalAt[1]) && r.invalAt[0].LessThan(first.invalAt[0])) {
+			first = r
+		}
+	}
+	if first != nil {
+		mp.invalid = first.invalid.diag.Summary + fmt.Sprintf(" (first at %s = %s, %s = %s)", mp.sx.be.Vary, first.invalAt[0], mp.sy.be.Vary, first.invalAt[1])
 	}
 	return nil
 }

@@ -188,7 +188,10 @@ func (a *analysis) axis(s *search, vr VaryRange, steps int) (SweepAxis, error) {
 	for k := 0; k <= steps; k++ {
 		ax.Values = append(ax.Values, gridPoint(be.Low, be.High, k, steps))
 	}
-	a.notes = append(a.notes, be.Notes...)
+	// A map has two axes: each note says which input it is about.
+	for _, n := range be.Notes {
+		a.notes = append(a.notes, fmt.Sprintf("%s: %s", vr.Vary, n))
+	}
 	be.Notes = nil
 	return ax, nil
 }

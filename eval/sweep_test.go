@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math/big"
 	"math/rand"
+	"strings"
 	"testing"
 
 	"github.com/forkcast/forkcast/tree"
@@ -312,5 +313,72 @@ func TestStrategyMapRandomTrees(t *testing.T) {
 	t.Logf("%d exact boundary points checked", tiesChecked)
 	if tiesChecked == 0 {
 		t.Errorf("no exact boundary point in any map: the trees test nothing of the boundaries")
+	}
+}
+
+// The grid is sampled by several goroutines; the map is the same with any
+// number of them, blank cells and the note on the first of them included.
+// Two probabilities of one chance node over 0 .. 0.8 each: the model is
+// invalid where they add up to more than 1 (the rest would be negative),
+// the upper right corner of the grid.
+func TestStrategyMapWorkers(t *testing.T) {
+	n := func(s string) tree.Expr { return tree.Num(d(s)) }
+	m := &tree.Model{
+		Params: []*tree.Param{tree.Input("a", n("0.3")).Within(n("0"), n("0.8")), tree.Input("b", n("0.3")).Within(n("0"), n("0.8"))},
+		Root: tree.Decision("Go?",
+			tree.Choice("Go", tree.NoCash, tree.Chance("Market",
+				tree.Outcome("Boom", tree.Ref("a"), tree.Gain(n("300")), nil),
+				tree.Outcome("Bust", tree.Ref("b"), tree.Cost(n("200")), nil),
+				tree.RestOutcome("Flat", tree.NoCash, nil))),
+			tree.Choice("Stay", tree.Gain(n("20")), nil)),
+	}
+	c := mustCompile(t, m)
+	var maps []*StrategyMap
+	for _, w := range []int{1, 2, 5} {
+		mp, err := MapStrategies(context.Background(), c, MapOptions{X: vr(t, "a", "", ""), Y: vr(t, "b", "", ""), Steps: 8, Workers: w})
+		if err != nil {
+			t.Fatal(err)
+		}
+		maps = append(maps, mp)
+	}
+	for k, mp := range maps {
+		blank := 0
+		for j, yv := range mp.Y.Values {
+			for i, xv := range mp.X.Values {
+				invalid := xv.Add(yv).GreaterThan(d("1"))
+				if (mp.Best[j][i] < 0) != invalid {
+					t.Errorf("map %d cell (%s, %s): best %d", k, xv, yv, mp.Best[j][i])
+				}
+				if invalid {
+					blank++
+				}
+			}
+		}
+		// Go is worth 300a − 200b against 20 for staying: by hand.
+		for j, yv := range mp.Y.Values {
+			for i, xv := range mp.X.Values {
+				if mp.Best[j][i] < 0 {
+					continue
+				}
+				want := 1
+				if d("300").Mul(xv).Sub(d("200").Mul(yv)).GreaterThanOrEqual(d("20")) {
+					want = 0
+				}
+				if mp.Best[j][i] != want {
+					t.Errorf("map %d cell (%s, %s): best %d, want %d", k, xv, yv, mp.Best[j][i], want)
+				}
+			}
+		}
+		// Both ranges are cut to 0 .. 0.7 (with the other input at its
+		// base 0.3, a or b above 0.7 leaves a negative rest), so the grid
+		// steps by 0.0875; the first blank cell from the bottom row up,
+		// left to right, is b = 0.35, a = 0.7.
+		note := strings.Join(mp.Notes, "\n")
+		if blank == 0 || !strings.Contains(note, "first at a = 0.7, b = 0.35") || !strings.Contains(note, "a: the top of the range is cut from 0.8 to 0.7") || !strings.Contains(note, "b: the top of the range is cut from 0.8 to 0.7") {
+			t.Errorf("map %d: %d blank cells, notes %q", k, blank, mp.Notes)
+		}
+		if k > 0 && (fmt.Sprint(mp.Best, mp.Boundaries, mp.Notes, mp.Samples) != fmt.Sprint(maps[0].Best, maps[0].Boundaries, maps[0].Notes, maps[0].Samples)) {
+			t.Errorf("map with %d workers differs from the one with 1", []int{1, 2, 5}[k])
+		}
 	}
 }

@@ -117,7 +117,7 @@ func sweepAction(c *cli.Context) error {
 	if c.Int("steps") > eval.MaxMapSteps {
 		return usageErr("--steps %d: a strategy map takes at most %d", c.Int("steps"), eval.MaxMapSteps)
 	}
-	prog, stop := progress(c, "strategy map: rows done")
+	prog, stop := progress(c, "strategy map: grid lines done")
 	mp, err := eval.MapStrategies(c.Context, l.Compiled, eval.MapOptions{X: vrs[0], Y: vrs[1], Steps: c.Int("steps"), At: c.String("at"), MaxSamples: c.Int("max-samples"), Progress: prog})
 	stop()
 	if err != nil {

@@ -139,6 +139,10 @@ func (p *Pool) Dec(n Num) decimal.Decimal {
 // IsBig reports whether n lives in the pool.
 func (n Num) IsBig() bool { return n.x > 0 }
 
+// Within reports whether n is held in machine words with its power of ten
+// in [−limit, limit].
+func (n Num) Within(limit int32) bool { return n.x == 0 && n.e >= -limit && n.e <= limit }
+
 // IsZero reports whether n is 0.
 func (n Num) IsZero() bool { return n.x == 0 && n.c == 0 }
 
