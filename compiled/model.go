@@ -50,6 +50,9 @@ type Model struct {
 	constRounded bool
 	dynInexact   []bool
 	d            *derived
+	// reuse is set on a model made by With from another whose arrays a
+	// later WithInto may take over (reuse.go); nil otherwise.
+	reuse *reuse
 }
 
 // shape is what every variant of a model shares: its layout and the

@@ -75,8 +75,22 @@ func (e *InvalidError) Error() string { return e.Diagnostics.Error() }
 // the new value; a probability set directly replaces its own. Figures that
 // do not depend on a setting are shared with c, which does not change. An
 // error says why the settings leave the model invalid.
-func (c *Model) With(settings ...Setting) (*Model, error) {
+func (c *Model) With(settings ...Setting) (*Model, error) { return c.with(nil, settings) }
+
+// WithInto is With reusing the arrays of dst, a model that c.With or
+// c.WithInto returned and that the caller no longer needs (nor anything
+// made from it, such as its rollbacks' values read later): the loop of a
+// sweep, which otherwise copies the tree's money and weights for every
+// point. It reuses them when both dst and this change set inputs that
+// move money only; otherwise it is With. dst may be nil. The result is the
+// same model With gives.
+func (c *Model) WithInto(dst *Model, settings ...Setting) (*Model, error) {
+	return c.with(dst, settings)
+}
+
+func (c *Model) with(dst *Model, settings []Setting) (*Model, error) {
 	n := *c
+	n.reuse = nil
 	n.pool = c.pool.Fork()
 	n.sh = c.sh
 	n.in = append([]exact.Num(nil), c.in...)
@@ -159,6 +173,7 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 			}
 		}
 	}
+	reusing := c.adopt(dst, w, settings, order)
 	for _, fi := range order {
 		f := c.sh.dyn[fi]
 		if (f.kind == figProb && w.setDirectly(f.i)) || (f.kind == figPrior && w.stateSetDirectly(f.i, f.j)) {
@@ -214,8 +229,13 @@ func (c *Model) With(settings ...Setting) (*Model, error) {
 		d, _ := n.derive(false)
 		n.d = d
 	} else if w.moneyChanged {
-		n.d = n.reweigh(c.d, w.moneyNodes)
+		var into []exact.Wide
+		if reusing {
+			into = dst.d.e
+		}
+		n.d = n.reweigh(c.d, w.moneyNodes, into)
 	}
+	n.reuse = reusable(c, w, n.d)
 	return &n, nil
 }
 
@@ -438,14 +458,20 @@ func sortedPairs(m map[[2]int32]bool) [][2]int32 {
 
 // reweigh derives E again after money changed and no probability did: the
 // masses are shared with the model before the change.
-func (c *Model) reweigh(old *derived, nodes []int32) *derived {
+// into, when not nil, is a copy of old.e to write E into, made for a
+// model before (see WithInto).
+func (c *Model) reweigh(old *derived, nodes []int32, into []exact.Wide) *derived {
 	d := &derived{mass: old.mass, restart: old.restart, rho: old.rho, exact: old.exact}
 	if nodes == nil || old.e == nil {
 		c.weigh(d)
 		return d
 	}
 	d.scale = old.scale
-	d.e = append([]exact.Wide(nil), old.e...)
+	if into != nil {
+		d.e = into
+	} else {
+		d.e = append([]exact.Wide(nil), old.e...)
+	}
 	for _, i := range nodes {
 		v := c.pool.Add(c.cash[i], c.own(int(i)))
 		e := c.pool.Mul(d.mass[i], v)

@@ -325,6 +325,9 @@ type search struct {
 	// reuses: a sweep of a large tree otherwise allocates them at every
 	// point.
 	spare *compiled.Rollback
+	// prev is the last sample's model, done with, whose arrays the next
+	// one may take over (compiled.Model.WithInto).
+	prev *compiled.Model
 }
 
 // sample is the watched decision at one value of the input: every option's
@@ -683,7 +686,9 @@ func (s *search) with(x decimal.Decimal) (*compiled.Model, error) {
 		return nil, err
 	}
 	s.be.Samples++
-	cs, err := s.c.With(s.settings(x)...)
+	prev := s.prev
+	s.prev = nil
+	cs, err := s.c.WithInto(prev, s.settings(x)...)
 	if err != nil {
 		var inv *compiled.InvalidError
 		if errors.As(err, &inv) {
@@ -723,7 +728,7 @@ func (s *search) sample(x decimal.Decimal) (*sample, error) {
 		sm.values[k-from] = v
 		sm.exact = sm.exact && ok
 	}
-	s.spare = r
+	s.spare, s.prev = r, cs
 	return sm, nil
 }
 
