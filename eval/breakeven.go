@@ -798,7 +798,9 @@ func (s *search) feasible() error {
 		if end == &be.Low {
 			side = "bottom"
 		}
-		be.Notes = append(be.Notes, fmt.Sprintf("the %s of the range is cut from %s to %s, where the model stops being valid (as when a probability would leave [0, 1])", side, *end, bound))
+		src := s.c.Source()
+		be.Notes = append(be.Notes, fmt.Sprintf("the %s of the range is cut from %s to %s, where the model stops being valid (as when a probability would leave [0, 1])",
+			side, showInputValue(src, be.Vary, *end), showInputValue(src, be.Vary, bound)))
 		*end, be.Narrowed = bound, true
 	}
 	return nil

@@ -368,7 +368,9 @@ func (mp *mapper) grid(workers int, progress func(done, total int)) error {
 		}
 	}
 	if first != nil {
-		mp.invalid = first.invalid.diag.Summary + fmt.Sprintf(" (first at %s = %s, %s = %s)", mp.sx.be.Vary, first.invalAt[0], mp.sy.be.Vary, first.invalAt[1])
+		src := a.c.Source()
+		mp.invalid = first.invalid.diag.Summary + fmt.Sprintf(" (first at %s = %s, %s = %s)", mp.sx.be.Vary, showInputValue(src, mp.sx.be.Vary, first.invalAt[0]),
+			mp.sy.be.Vary, showInputValue(src, mp.sy.be.Vary, first.invalAt[1]))
 	}
 	return nil
 }

@@ -68,6 +68,14 @@ func TestSweepRequests(t *testing.T) {
 			_, err := SweepInput(context.Background(), chanceOnly, SweepOptions{Vary: vr(t, "x", "", "")})
 			return err
 		}},
+		{"an empty range", func() error {
+			_, err := SweepInput(context.Background(), c, SweepOptions{Vary: vr(t, "sale", "100", "100")})
+			return err
+		}},
+		{"an empty range in a sensitivity analysis", func() error {
+			_, err := AnalyseSensitivity(context.Background(), c, SensitivityOptions{Vary: []VaryRange{vr(t, "sale", "100", "100")}})
+			return err
+		}},
 		{"too many steps", func() error {
 			_, err := SweepInput(context.Background(), c, SweepOptions{Vary: vr(t, "sale", "", ""), Steps: MaxSweepSteps + 1})
 			return err
@@ -372,9 +380,10 @@ func TestStrategyMapWorkers(t *testing.T) {
 		// Both ranges are cut to 0 .. 0.7 (with the other input at its
 		// base 0.3, a or b above 0.7 leaves a negative rest), so the grid
 		// steps by 0.0875; the first blank cell from the bottom row up,
-		// left to right, is b = 0.35, a = 0.7.
+		// left to right, is b = 0.35, a = 0.7 (both probabilities: in
+		// percent).
 		note := strings.Join(mp.Notes, "\n")
-		if blank == 0 || !strings.Contains(note, "first at a = 0.7, b = 0.35") || !strings.Contains(note, "a: the top of the range is cut from 0.8 to 0.7") || !strings.Contains(note, "b: the top of the range is cut from 0.8 to 0.7") {
+		if blank == 0 || !strings.Contains(note, "first at a = 70%, b = 35%") || !strings.Contains(note, "a: the top of the range is cut from 80% to 70%") || !strings.Contains(note, "b: the top of the range is cut from 80% to 70%") {
 			t.Errorf("map %d: %d blank cells, notes %q", k, blank, mp.Notes)
 		}
 		if k > 0 && (fmt.Sprint(mp.Best, mp.Boundaries, mp.Notes, mp.Samples) != fmt.Sprint(maps[0].Best, maps[0].Boundaries, maps[0].Notes, maps[0].Samples)) {

@@ -139,6 +139,9 @@ func (a *analysis) target(s *search, vr VaryRange, pct *decimal.Decimal) (RangeF
 	if (vr.Low == nil) != (vr.High == nil) {
 		return 0, reqErr("%s: give both ends of the range or neither", v)
 	}
+	if vr.Low != nil && vr.Low.Equal(*vr.High) {
+		return 0, reqErr("%s: the range %s..%s is empty: give a low end below the high one", v, vr.Low, vr.High)
+	}
 	if vr.Low == nil {
 		var cur decimal.Decimal
 		isParam := v.Kind == VaryParam
@@ -261,4 +264,13 @@ func gridPoint(lo, hi decimal.Decimal, k, n int) decimal.Decimal {
 	}
 	places := max(-lo.Exponent(), -hi.Exponent(), 0) + int32(len(fmt.Sprint(n))) + 2
 	return lo.Add(hi.Sub(lo).Mul(decimal.NewFromInt(int64(k))).DivRound(decimal.NewFromInt(int64(n)), places))
+}
+
+// showInputValue writes a value of input v for notes: as a percentage when
+// v stands for a probability (as people wrote it), else as it is.
+func showInputValue(m *tree.Model, v Vary, x decimal.Decimal) string {
+	if v.IsProbability(m) {
+		return x.Shift(2).String() + "%"
+	}
+	return x.String()
 }

@@ -125,7 +125,11 @@ func (r *SensitivityReport) WriteText(out io.Writer) error {
 	}
 	writeMeans(w, r.Model)
 	w.ln()
-	w.f("Inputs by swing, largest first (%s at each end, every decision re-optimised)\n", words.value)
+	if s.Decision != nil {
+		w.f("Inputs by swing, largest first (%s at each end, every decision re-optimised)\n", words.value)
+	} else {
+		w.f("Inputs by swing, largest first (%s at each end)\n", words.value)
+	}
 	rows := [][]string{{"input", "low", "base", "high", words.short + " at low", words.short + " at high", "swing"}}
 	for _, in := range s.Inputs {
 		rows = append(rows, []string{in.Vary.String(), showInput(in.Low, in.Probability), showInput(in.Base, in.Probability), showInput(in.High, in.Probability),

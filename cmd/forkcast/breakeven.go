@@ -119,8 +119,12 @@ func parseRange(s string) (lo, hi decimal.Decimal, err error) {
 	if err == nil {
 		hi, err = parseNumber(parts[1])
 	}
-	if err == nil && lo.GreaterThan(hi) {
+	switch {
+	case err != nil:
+	case lo.GreaterThan(hi):
 		err = fmt.Errorf("the range %s runs downwards: write the smaller bound first", s)
+	case lo.Equal(hi):
+		err = fmt.Errorf("the range %s is empty: give a LOW below HIGH (to answer at one value, use --set NAME=VALUE)", s)
 	}
 	return lo, hi, err
 }

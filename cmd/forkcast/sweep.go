@@ -2,6 +2,10 @@ package main
 
 import (
 	"io"
+	"strings"
+
+	"github.com/forkcast/forkcast/compiled"
+	"github.com/forkcast/forkcast/tree"
 
 	"github.com/forkcast/forkcast/eval"
 	"github.com/forkcast/forkcast/render/chart"
@@ -97,6 +101,10 @@ func sweepAction(c *cli.Context) error {
 		return err
 	}
 	l.printWarnings(c)
+	if !hasDecision(l.Compiled) {
+		return usageErr("%s has no decision, so a sweep has no options to compare; to see how its expected value moves with %s, run\n  forkcast sensitivity %s --vary %s --spider spider.svg",
+			l.Name, vrs[0].Vary, shellWord(fileArgOf(c)), shellWord(specs[0]))
+	}
 	names := report.SweepOptions{Names: flagNames()}
 	if len(vrs) == 1 {
 		prog, stop := progress(c, "sweep: points done")
@@ -131,4 +139,28 @@ func sweepAction(c *cli.Context) error {
 		return r.WriteCSV(c.App.Writer)
 	}
 	return show(c, r)
+}
+
+// hasDecision reports whether the model has a decision node.
+func hasDecision(c *compiled.Model) bool {
+	for i := 0; i < c.Len(); i++ {
+		if c.Kind(i) == tree.KindDecision {
+			return true
+		}
+	}
+	return false
+}
+
+// fileArgOf is the FILE argument as given.
+func fileArgOf(c *cli.Context) string { return c.Args().First() }
+
+// shellWord quotes s for a shell when it holds anything but plain
+// characters, so that a command quoted in a message can be pasted.
+func shellWord(s string) string {
+	for _, r := range s {
+		if !(r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= '0' && r <= '9' || strings.ContainsRune("-_./=%:,+", r)) {
+			return "'" + strings.ReplaceAll(s, "'", `'\''`) + "'"
+		}
+	}
+	return s
 }

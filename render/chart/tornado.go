@@ -142,11 +142,22 @@ func WriteTornado(w io.Writer, t Tornado, opt Options) error {
 			lowLabel, highLabel = highLabel, lowLabel
 			lowX, highX = highX, lowX
 		}
+		// A switch mark at a bar's end (the best option changes just
+		// where the value stops moving) would sit on the end's label:
+		// the label moves out past the mark.
+		gap := func(x float64) vg.Length {
+			for _, m := range b.Marks {
+				if math.Abs(m.At-x) <= markNear*(p.X.Max-p.X.Min) {
+					return 4 + switchGlyph().Radius + 3
+				}
+			}
+			return 4
+		}
 		if lowLabel != "" {
-			ends = append(ends, note{x: lowX, y: y, dx: -4, text: lowLabel, style: left})
+			ends = append(ends, note{x: lowX, y: y, dx: -gap(lowX), text: lowLabel, style: left})
 		}
 		if highLabel != "" {
-			ends = append(ends, note{x: highX, y: y, dx: 4, text: highLabel, style: right})
+			ends = append(ends, note{x: highX, y: y, dx: gap(highX), text: highLabel, style: right})
 		}
 		for _, m := range b.Marks {
 			glyphs = append(glyphs, markAt{x: m.At, y: y})
@@ -186,6 +197,11 @@ var (
 	startTone = greyLight
 	endTone   = greyDark
 )
+
+// markNear is how close to a bar's end, as a share of the value axis, a
+// switch mark pushes the end's label out of its way (about the mark's
+// width on a chart of the usual size).
+const markNear = 0.02
 
 // rowY is the vertical position of the i-th of n rows, the first on top.
 func rowY(i, n int) float64 { return float64(n - 1 - i) }
