@@ -1,6 +1,7 @@
 package compiled
 
 import (
+	"encoding/binary"
 	"fmt"
 
 	"github.com/forkcast/forkcast/dist"
@@ -387,6 +388,7 @@ func (p *program) evalFloat(in []float64) float64 {
 // rounding and spare capacity) than the parts themselves. Slabs live as
 // long as the compiled model.
 type progSlab struct {
+	shared map[string]*program // programs that cannot fail, by what they compute (pack)
 	progs  []program
 	ops    []op
 	consts []exact.Num
@@ -411,8 +413,47 @@ func cut[T any](slab *[]T, n int) []T {
 }
 
 // pack returns a copy of p made of slab parts, each exactly its size (p
-// itself may be scratch space, used again).
+// itself may be scratch space, used again). A program that cannot fail
+// (it only reads inputs and negates them, as `cost fee` does) needs none
+// of its positions, and one copy serves every figure written the same
+// way.
 func (s *progSlab) pack(p *program) *program {
+	key, share := shareKey(p)
+	if share {
+		if q, ok := s.shared[key]; ok {
+			return q
+		}
+	}
+	q := s.copyOf(p)
+	if share {
+		if s.shared == nil {
+			s.shared = map[string]*program{}
+		}
+		s.shared[key] = q
+	}
+	return q
+}
+
+// shareKey says what a program that cannot fail computes (its inputs and
+// signs, not where they are written); share is false for any other.
+func shareKey(p *program) (key string, share bool) {
+	if len(p.ops) > 4 || len(p.consts) > 0 || len(p.exprs) > 0 {
+		return "", false
+	}
+	var buf [4 * 5]byte
+	k := buf[:0]
+	for _, o := range p.ops {
+		if o.code != opSlot && o.code != opNeg {
+			return "", false
+		}
+		k = append(k, byte(o.code))
+		k = binary.LittleEndian.AppendUint32(k, uint32(o.arg))
+	}
+	return string(k), true
+}
+
+// copyOf is p made of slab parts.
+func (s *progSlab) copyOf(p *program) *program {
 	q := &cut(&s.progs, 1)[0]
 	q.ops = cut(&s.ops, len(p.ops))
 	copy(q.ops, p.ops)
