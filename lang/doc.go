@@ -28,6 +28,12 @@
 // [Options.NodeLimit]; nothing is built past the limit. All of this is
 // iterative, so very deep trees read without exhausting the stack.
 //
+// A model may also hold risk registers (`register NAME` blocks, with
+// their threats and opportunities), alone or beside a tree; a `let` may
+// take a register's total or one risk as an input of the tree. Load
+// compiles those inputs and checks every register's figures with package
+// register, whose FromModel gives a register ready to analyse.
+//
 // Numbers are read exactly, as decimals. The package has no mutable global
 // state; Parse and Load may be called concurrently.
 package lang
