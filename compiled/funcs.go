@@ -55,12 +55,38 @@ var functions = map[string]function{
 			vs, ps = append(vs, a[i]), append(ps, a[i+1])
 		}
 		d, err := dist.NewDiscreteExact(vs, ps)
+		if err != nil && roundedToOne(ps) {
+			// Probabilities written as fractions ((1/3) three times)
+			// went through a rounded division and miss 1 by about
+			// 10^−DivisionScale: they count as 1, as under a chance
+			// node, and the mean is then not exact.
+			fv, fp := make([]float64, len(vs)), make([]float64, len(ps))
+			for i := range vs {
+				fv[i], fp[i] = vs[i].InexactFloat64(), ps[i].InexactFloat64()
+			}
+			d, err = dist.NewDiscrete(fv, fp)
+		}
 		if ae, ok := err.(*dist.ArgError); ok {
 			// The constructor blames an outcome; point at its value.
 			ae.Arg *= 2
 		}
 		return d, err
 	}},
+}
+
+// roundedToOne reports whether ps, each in [0, 1], sum to 1 but for the
+// rounding of divisions at DivisionScale places (sumTolerance, as for a
+// chance node's branches), without summing to exactly 1.
+func roundedToOne(ps []decimal.Decimal) bool {
+	sum := decimal.Zero
+	for _, p := range ps {
+		if p.Sign() < 0 || p.GreaterThan(decimal.NewFromInt(1)) {
+			return false
+		}
+		sum = sum.Add(p)
+	}
+	diff := sum.Sub(decimal.NewFromInt(1)).Abs()
+	return !diff.IsZero() && diff.LessThanOrEqual(decimal.New(1, -(DivisionScale-5)))
 }
 
 // functionNames lists the functions, for messages.
