@@ -63,10 +63,14 @@ func (c *Model) rollbackInto(dst *Rollback, policy []int32) *Rollback {
 	o := bigOps{}
 	if !c.Exact() {
 		// An absolute floor of 10^-(DivisionScale-5) in value at mass 1.
+		// At a coarser scale figures that differ at all differ by more
+		// than that (one unit of the scale): no floor, only the relative
+		// part (a floor of one unit made options a whole unit apart tie
+		// in a model of whole numbers with a mean taken from float64).
 		if k := int64(d.scale) - (DivisionScale - 5); k > 0 {
 			o.tol = new(big.Int).Exp(big.NewInt(10), big.NewInt(k), nil)
 		} else {
-			o.tol = big.NewInt(1)
+			o.tol = new(big.Int)
 		}
 	}
 	r.ops = o
