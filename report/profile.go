@@ -67,6 +67,18 @@ func riskNote(tolerance string) string {
 	return fmt.Sprintf("certainty equivalents of an exponential utility with risk tolerance %s, computed with exp and ln in float64 and rounded to %d significant digits", tolerance, eval.RiskDigits)
 }
 
+// toleranceText is a risk tolerance as money, except that one the minor
+// unit would round by more than a thousandth of itself (0.000001 shown as
+// 0.00, which reads as no tolerance at all) is shown as given.
+func toleranceText(d decimal.Decimal, cur string) string {
+	unit := render.MinorUnit(cur)
+	if r := d.Round(unit); r.Sub(d).Abs().Mul(decimal.NewFromInt(1000)).GreaterThan(d.Abs()) {
+		// Money is Amount and the code after it, as safe to print.
+		return render.Grouped(d.String()) + strings.TrimPrefix(render.Money(d, cur), render.Amount(d, cur))
+	}
+	return render.Money(d, cur)
+}
+
 // probText is a probability as a percentage to two decimals, never
 // rounded to 0% or 100% when it is neither.
 func probText(p decimal.Decimal) string {
@@ -121,7 +133,7 @@ func (r *ProfileReport) WriteText(out io.Writer) error {
 		w.f("note: some figures went through a rounded division (%d decimal places)\n", compiled.DivisionScale)
 	}
 	if rs := r.Options.Risk; rs != nil {
-		w.f("note: %s\n", riskNote(render.Money(rs.Tolerance, cur)))
+		w.f("note: %s\n", riskNote(toleranceText(rs.Tolerance, cur)))
 	}
 	for _, n := range ps.Notes {
 		w.f("note: %s\n", r.Options.Names.Apply(n))

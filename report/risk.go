@@ -28,7 +28,7 @@ func (r *SolveReport) writeRiskText(t textOut) {
 		ev, sure = "expected cost: ", " (a certain cost)"
 	}
 	t.f("objective:             %s\n", objectiveText(m))
-	t.f("risk attitude:         risk averse, exponential utility with risk tolerance %s\n", p.money(rs.Tolerance))
+	t.f("risk attitude:         risk averse, exponential utility with risk tolerance %s\n", toleranceText(rs.Tolerance, p.cur))
 	t.f("certainty equivalent:  %s%s\n", p.money(rs.CE()), sure)
 	t.f("%s        %s  (of the risk-averse policy)\n", ev, p.money(sol.Value()))
 	t.f("risk premium:          %s\n", p.money(rs.RootPremium()))

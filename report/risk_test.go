@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"io"
 	"os"
 	"strings"
 	"testing"
@@ -167,6 +168,38 @@ decision "Approach"
 	for _, want := range []string{"the costs after the decision span 40,000.00", `No switch: "Replace" has the best certainty equivalent`} {
 		if !strings.Contains(text, want) {
 			t.Errorf("no %q in\n%s", want, text)
+		}
+	}
+}
+
+// A risk tolerance below the currency's minor unit is shown as given, not
+// rounded to "0.00 EUR", which reads as no tolerance at all.
+func TestSmallRiskToleranceShown(t *testing.T) {
+	sol := solveText(t, `currency EUR
+decision "D"
+  "Gamble"
+    chance "Coin"
+      "Heads"  50%  gain 10
+      "Tails"  rest cost 5
+  "Pass"`)
+	rs, err := eval.SolveRiskAverse(sol, decimal.RequireFromString("0.000001"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	ps, err := eval.RiskProfiles(context.Background(), rs.Averse, eval.ProfileOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, r := range map[string]interface{ WriteText(io.Writer) error }{
+		"solve":   report.Solve(sol, report.SolveOptions{Risk: rs}),
+		"profile": report.Profile(sol.Compiled, ps, report.ProfileOptions{Risk: rs}),
+	} {
+		var out bytes.Buffer
+		if err := r.WriteText(&out); err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(out.String(), "risk tolerance 0.000001 EUR") || strings.Contains(out.String(), "risk tolerance 0.00 EUR") {
+			t.Errorf("%s:\n%s", name, out.String())
 		}
 	}
 }
