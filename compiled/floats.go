@@ -29,6 +29,9 @@ type Uncertain struct {
 	// be rounded (a lognormal's mean is irrational).
 	Mean  decimal.Decimal
 	Exact bool
+	// Fixed is true when Input was set to a value (With): the analyses
+	// use that value, not the distribution's mean.
+	Fixed bool
 }
 
 // Uncertain lists the distributions written in the model, in the order
@@ -50,6 +53,7 @@ func (c *Model) Uncertain() []Uncertain {
 		}
 		if s.let >= 0 {
 			u.Input = c.sh.params[s.let].Name
+			u.Fixed = c.fixed != nil && c.fixed[s.let]
 		}
 		out[i] = u
 	}

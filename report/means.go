@@ -27,7 +27,7 @@ func meansOf(c *compiled.Model) []meanJSON {
 	if c == nil {
 		return out
 	}
-	for _, u := range c.Uncertain() {
+	for _, u := range atMeans(c) {
 		out = append(out, meanJSON{Input: u.Input, Written: u.Written(), Mean: u.Mean.String(), Exact: u.Exact})
 	}
 	return out
@@ -39,7 +39,7 @@ func writeMeans(w textOut, c *compiled.Model) {
 	if c == nil {
 		return
 	}
-	us := c.Uncertain()
+	us := atMeans(c)
 	if len(us) == 0 {
 		return
 	}
@@ -63,6 +63,18 @@ func writeMeans(w textOut, c *compiled.Model) {
 			w.f("  %s = %s: mean %s\n", u.Input, u.Written(), mean)
 		}
 	}
+}
+
+// atMeans lists the distributions of c that stand for their means: those
+// whose input was not set to a value.
+func atMeans(c *compiled.Model) []compiled.Uncertain {
+	var out []compiled.Uncertain
+	for _, u := range c.Uncertain() {
+		if !u.Fixed {
+			out = append(out, u)
+		}
+	}
+	return out
 }
 
 // meansNonEmpty is meansOf, nil when there are none (the key is then left

@@ -277,3 +277,35 @@ func sameButExactness(a, b string) bool {
 	}
 	return strip(a) == strip(b)
 }
+
+// TestSetDistributionInput: an input written as a distribution and set
+// with --set is no longer listed as standing for its mean (the analysis
+// uses the value given), in the text and in the JSON; the other one still
+// is. PERT mean (a + 4m + b)/6 (Malcolm et al., 1959): (10 + 80 + 60)/6 = 25.
+func TestSetDistributionInput(t *testing.T) {
+	path := writeFile(t, "d.fork", `let fee = pert(10, 20, 60)
+let other = triangular(0, 3, 6)
+
+decision "Go"
+  "Enter" cost fee + other
+  "Stay"
+`)
+	_, out, _ := forkcast(t, "", "solve", "--no-tree", path)
+	if !strings.Contains(out, "fee = pert(10, 20, 60): mean 25") || !strings.Contains(out, "other = triangular(0, 3, 6): mean 3") {
+		t.Fatalf("without --set both means are listed:\n%s", out)
+	}
+	code, out, errs := forkcast(t, "", "solve", "--no-tree", "--set", "fee=40", path)
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	if strings.Contains(out, "fee = pert") || !strings.Contains(out, "other = triangular(0, 3, 6): mean 3") {
+		t.Errorf("--set fee=40: fee must not be listed as its mean, other must:\n%s", out)
+	}
+	if !strings.Contains(out, "-43.00") { // cost 40 + 3
+		t.Errorf("--set fee=40: Enter should be worth -43.00:\n%s", out)
+	}
+	_, js, _ := forkcast(t, "", "profile", "--json", "--set", "fee=40", path)
+	if strings.Contains(js, `"written": "pert(10, 20, 60)"`) || !strings.Contains(js, `"written": "triangular(0, 3, 6)"`) {
+		t.Errorf("--set fee=40: JSON means list fee:\n%s", js)
+	}
+}
