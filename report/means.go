@@ -1,8 +1,11 @@
 package report
 
 import (
+	"strings"
+
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/render"
+	"github.com/forkcast/forkcast/tree"
 )
 
 // Exact analyses (solve, voi, breakeven, sensitivity, sweep, profile) use
@@ -19,6 +22,9 @@ type meanJSON struct {
 	Written string `json:"written"`
 	Mean    string `json:"mean"`
 	Exact   bool   `json:"exact"` // false: the mean is irrational and rounded
+	// SplitAt lists the three-point chance nodes (`chance NAME by
+	// swanson`) below which the input stands at its percentiles instead.
+	SplitAt []string `json:"split_at,omitempty"`
 }
 
 // meansOf lists the distributions of c for a report's JSON (never nil).
@@ -27,10 +33,45 @@ func meansOf(c *compiled.Model) []meanJSON {
 	if c == nil {
 		return out
 	}
-	for _, u := range atMeans(c) {
-		out = append(out, meanJSON{Input: u.Input, Written: u.Written(), Mean: u.Mean.String(), Exact: u.Exact})
+	us := atMeans(c)
+	if len(us) == 0 {
+		return out // no walk of the tree for its splits
+	}
+	splits, _ := splitNodes(c)
+	for _, u := range us {
+		out = append(out, meanJSON{Input: u.Input, Written: u.Written(), Mean: u.Mean.String(), Exact: u.Exact, SplitAt: splits[u.Input]})
 	}
 	return out
+}
+
+// splitNodes maps each input split into a three-point chance node to the
+// labels of those nodes, each once, in the order of the tree; rules gives
+// the rule of the first.
+func splitNodes(c *compiled.Model) (out map[string][]string, rules map[string]tree.SplitRule) {
+	out, rules = map[string][]string{}, map[string]tree.SplitRule{}
+	seen := map[[2]string]bool{}
+	var walk func(n *tree.Node)
+	walk = func(n *tree.Node) {
+		if n == nil {
+			return
+		}
+		if sp := n.Split; sp != nil {
+			if k := [2]string{sp.Input, n.Display()}; !seen[k] {
+				seen[k] = true
+				if len(out[sp.Input]) == 0 {
+					rules[sp.Input] = sp.Rule
+				}
+				out[sp.Input] = append(out[sp.Input], n.Display())
+			}
+		}
+		for _, b := range n.Branches {
+			walk(b.Node)
+		}
+	}
+	if m := c.Source(); m != nil {
+		walk(m.Root)
+	}
+	return out, rules
 }
 
 // writeMeans writes the note that the distributions of c stand for their
@@ -43,6 +84,7 @@ func writeMeans(w textOut, c *compiled.Model) {
 	if len(us) == 0 {
 		return
 	}
+	splits, rules := splitNodes(c)
 	if len(us) == 1 {
 		w.ln("means: the distribution stands for its mean here (`forkcast simulate` draws it):")
 	} else {
@@ -59,9 +101,14 @@ func writeMeans(w textOut, c *compiled.Model) {
 		}
 		if u.Input == "" {
 			w.f("  %s (in a calculation): mean %s\n", u.Written(), mean)
-		} else {
-			w.f("  %s = %s: mean %s\n", u.Input, u.Written(), mean)
+			continue
 		}
+		w.f("  %s = %s: mean %s", u.Input, u.Written(), mean)
+		if at := splits[u.Input]; len(at) > 0 {
+			points, _, _ := rules[u.Input].Points()
+			w.f(", but at its %s, %s and %s below %s", points[0], points[1], points[2], strings.Join(quotedAll(at), ", "))
+		}
+		w.ln()
 	}
 }
 
