@@ -34,6 +34,8 @@ type chunk[T any] struct {
 // chunk's unused end is all that is wasted.
 const maxChunk = 1024
 
+// new returns a zero T from the current chunk, starting a new chunk when
+// it is used up.
 func (c *chunk[T]) new() *T {
 	if len(c.free) == 0 {
 		// Small models take small chunks; large ones reach maxChunk soon.

@@ -59,8 +59,10 @@ type fexpr struct {
 	e     int32
 }
 
+// text is token i as written.
 func (fl *fastLine) text(i int32) []byte { t := fl.toks[i]; return fl.s[t.from:t.to] }
 
+// at is where token i is.
 func (fl *fastLine) at(i int32) tree.Pos { return tree.At(fl.num, int(fl.toks[i].col)) }
 
 // is reports whether token i has type t and text v.
@@ -306,6 +308,7 @@ func (fl *fastLine) primary(i *int32) (int32, bool) {
 	return x, true
 }
 
+// add records an expression found by the check and returns its index.
 func (fl *fastLine) add(e fexpr) int32 {
 	fl.ex = append(fl.ex, e)
 	return int32(len(fl.ex) - 1)
@@ -349,7 +352,7 @@ func fastNumber(t []byte) (c int64, e int32, ok bool) {
 
 func isDigit(ch byte) bool { return ch >= '0' && ch <= '9' }
 
-// expr makes the model's expression of the checked expression x, as
+// fastExpr makes the model's expression of the checked expression x, as
 // lowerExpr makes it from participle's, and records its names as useName
 // does. top says that x is a whole term of the line's sum.
 func (b *builder) fastExpr(fl *fastLine, x int32, c exprCtx, top bool) tree.Expr {
