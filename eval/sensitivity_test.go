@@ -15,8 +15,9 @@ import (
 
 // oilInputs is the oil-drilling prototype of Hillier & Lieberman,
 // Introduction to Operations Research, chapter "Decision Analysis"
-// (thousands of dollars: drill +700 if oil, −100 if dry; sell +90; prior
-// P(oil) 0.25), with the three money figures as inputs over ranges of our
+// (thousands of dollars: drill +700 if oil, −100 if dry, that is revenue
+// 800 less the drilling cost 100; sell +90; prior P(oil) 0.25, as the
+// book's example gives them), with the three money figures as inputs over ranges of our
 // own choosing (the book gives none): the payoff with oil 500 .. 900, the
 // cost of a dry hole 80 .. 150, the sale price 60 .. 120.
 func oilInputs() *tree.Model {

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/xml"
 	"flag"
+	"fmt"
 	"io"
 	"os"
 	"path/filepath"
@@ -147,6 +148,31 @@ func TestSensitivityChartFiles(t *testing.T) {
 	} {
 		if code, _, errs := forkcast(t, "", args...); code != 0 {
 			t.Errorf("%v: exit %d: %s", args, code, errs)
+		}
+	}
+	// Every chart is the same, byte for byte, when drawn again.
+	for _, args := range [][]string{
+		{"sensitivity", "example:sourcing", "--pct", "20", "--tornado", "%s.svg"},
+		{"sensitivity", "example:release", "--vary", "defect:Defective=5%..40%", "--spider", "%s.svg"},
+		{"sweep", "example:sourcing", "--vary", "licence", "--chart", "%s.svg"},
+		{"sweep", "example:sourcing", "--vary", "licence", "--vary", "lease_fee=250_000..450_000", "--steps", "6", "--chart", "%s.svg"},
+	} {
+		var drawn [][]byte
+		for run := 0; run < 2; run++ {
+			a := append([]string(nil), args...)
+			name := filepath.Join(dir, fmt.Sprintf("again%d", run))
+			a[len(a)-1] = fmt.Sprintf(a[len(a)-1], name)
+			if code, _, errs := forkcast(t, "", a...); code != 0 {
+				t.Fatalf("%v: exit %d: %s", a, code, errs)
+			}
+			b, err := os.ReadFile(name + ".svg")
+			if err != nil {
+				t.Fatal(err)
+			}
+			drawn = append(drawn, b)
+		}
+		if !bytes.Equal(drawn[0], drawn[1]) || len(drawn[0]) == 0 {
+			t.Errorf("%v: two runs drew different charts", args)
 		}
 	}
 	// A directory where the chart should go: refused.
