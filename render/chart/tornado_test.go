@@ -137,3 +137,31 @@ func TestTornadoRefusesBadData(t *testing.T) {
 		})
 	}
 }
+
+// A switch mark at a bar's end pushes that end's label out past the mark
+// (it would sit on it); a mark inside the bar leaves the label where it
+// is. The bar: 100 at its start, 200 at its end, around a base of 150.
+func TestTornadoLabelClearsMarkAtEnd(t *testing.T) {
+	// gap is how far the low end's label starts left of the bar's pale
+	// part (the label is the same width in both charts).
+	gap := func(markAt float64) float64 {
+		data := Tornado{Value: Axis{Label: "Value"}, Base: 150, Bars: []Bar{
+			{Label: "x", Start: 100, End: 200, StartLabel: "low end", EndLabel: "high end", Marks: []Mark{{At: markAt}}},
+		}}
+		doc := parseSVG(t, drawn(t, func(w io.Writer, o Options) error { return WriteTornado(w, data, o) }, Options{}))
+		legendX := doc.text(t, "Input at its low value").x
+		barX := math.Inf(1)
+		for _, p := range doc.filled(colour(startTone)) {
+			if x0, _, _, _ := p.bounds(); x0 < legendX-float64(legendThumb)-1 {
+				barX = math.Min(barX, x0)
+			}
+		}
+		return barX - doc.text(t, "low end").x
+	}
+	inside, atEnd := gap(130), gap(100)
+	// The mark is 4.2 points either way of its centre; the label moves
+	// out by at least that.
+	if atEnd < inside+4 {
+		t.Errorf("the low end's label starts %.1f left of the bar with a mark at the end, %.1f with the mark inside the bar: want it moved out past the mark", atEnd, inside)
+	}
+}
