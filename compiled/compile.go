@@ -38,7 +38,12 @@ func compile(m *tree.Model, opts Options) (*Model, tree.Diagnostics) {
 	k.usedElsewhere()
 	k.c.sh.random = k.random
 	for _, p := range m.Params {
-		if !k.used[p.Name] && !k.dupParam[p] {
+		switch {
+		case k.used[p.Name] || k.dupParam[p]:
+		case k.correlated[p.Name]:
+			k.ds.Warn(p.Pos, "it is named only in `correlate` lines: it is drawn, but its draws feed no figure; use it in a branch, or remove it and its correlate lines",
+				"%q is defined but never used", p.Name)
+		default:
 			k.ds.Warn(p.Pos, "remove it, or use it in a branch", "%q is defined but never used", p.Name)
 		}
 	}
@@ -67,7 +72,10 @@ type compiler struct {
 	work     group       // reused while checking sibling probabilities
 	random   []bool      // per input slot: a distribution feeds it
 	current  *tree.Param // the input being compiled, if any
-	opts     Options
+	// correlated holds the inputs named in `correlate` lines, which do
+	// not count as uses.
+	correlated map[string]bool
+	opts       Options
 	// calls gives each distribution written in a `let` its slot, so that
 	// a let compiled again below a split (split.go, while relet is set)
 	// reads the same random input. Elsewhere every distribution in the

@@ -45,7 +45,12 @@ func (k *compiler) correlations() {
 			k.ds.Add(at, hint, "unknown input %q", name)
 			return -1
 		}
-		k.used[name] = true
+		// Naming an input here does not use it: it is drawn, but its
+		// draws feed nothing unless a figure reads it.
+		if k.correlated == nil {
+			k.correlated = map[string]bool{}
+		}
+		k.correlated[name] = true
 		for i, s := range sh.sources {
 			if s.let == slot {
 				return i
