@@ -56,10 +56,11 @@ func WriteStrategyMap(w io.Writer, m StrategyMap, opt Options) error {
 	p.X.Min, p.X.Max = m.XValues[0], m.XValues[len(m.XValues)-1]
 	p.Y.Min, p.Y.Max = m.YValues[0], m.YValues[len(m.YValues)-1]
 	p.X.Padding, p.Y.Padding = 0, 0
-	p.Add(cells)
 	if len(m.Boundaries) > 0 {
+		p.Add(&splitCells{xs: m.XValues, ys: m.YValues, best: m.Best, options: len(m.Options), boundaries: m.Boundaries})
 		p.Add(segments{list: m.Boundaries, line: draw.LineStyle{Color: ink, Width: vg.Points(1.4)}})
 	} else {
+		p.Add(cells)
 		cells.edges = true
 	}
 	labels := &regionLabels{style: textStyle(legendSize, true, ink)}
