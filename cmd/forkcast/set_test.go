@@ -162,7 +162,9 @@ func TestSetIsEditingTheLet(t *testing.T) {
 			{"draw", "--format", "dot", "-o", "-", "-"},
 		}
 		if ranged != "" {
-			cmds = append(cmds, []string{"breakeven", "--json", "--vary", ranged, "-"})
+			cmds = append(cmds, []string{"breakeven", "--json", "--vary", ranged, "-"},
+				[]string{"sensitivity", "--json", "--pct", "20", "-"},
+				[]string{"sweep", "--json", "--vary", ranged, "--steps", "4", "-"})
 		}
 		for _, args := range cmds {
 			codeE, outE, errE := forkcast(t, edited, args...)
