@@ -35,6 +35,10 @@ import (
 // over runs of the best option's value with the inputs known minus the
 // base-case option's value with the same inputs.
 //
+// A tree with no decision (a project's cost with its chance events, say)
+// has one distribution, of the whole tree's payoff, and no P(best) or value
+// of knowing: there is no choice for the knowledge to change.
+//
 // Runs are reproducible: run r's draws depend only on the seed and r
 // (pdist.Streams), so the results for a seed are identical whatever the
 // number of workers, and a longer simulation starts with the runs of a
@@ -106,9 +110,10 @@ func (in SimInput) Label() string {
 }
 
 // SimOption is what a simulation found for one option of the watched
-// decision. Figures are in the objective's terms (a payoff under max, a
-// cost under min).
+// decision, or for the whole tree when it has no decision. Figures are in
+// the objective's terms (a payoff under max, a cost under min).
 type SimOption struct {
+	// Label is the option's label ("" for the whole tree).
 	Label string
 	// Sample holds the option's payoff in every run done.
 	Sample pdist.Sample
@@ -119,7 +124,7 @@ type SimOption struct {
 	Base bool
 	// PBest is the share of runs in which the option is best when the
 	// decision is re-made knowing the run's inputs (ties go to the first
-	// option in the model).
+	// option in the model); 0 for the whole tree, which has no decision.
 	PBest float64
 	// PLoss is the share of runs whose net value is below zero: a
 	// negative payoff under max, a cost above zero under min.
@@ -149,7 +154,9 @@ type Simulation struct {
 	// Model is the model as written.
 	Model *tree.Model
 	// Decision is the decision watched and Path the branch labels from
-	// the root to it.
+	// the root to it. Decision is nil when the tree has no decision:
+	// Options then holds one entry, the whole tree's payoff, and
+	// KnowInputs and BestKnown are zero.
 	Decision *tree.Node
 	Path     []string
 	// Inputs are the distributions drawn, in the order of
@@ -199,13 +206,13 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 	if err != nil {
 		return nil, err
 	}
-	if d == nil {
-		return nil, reqErr("the model has no decision to simulate the options of")
-	}
 	s := &Simulation{Asked: runs, Seed: opts.Seed, InputsOnly: opts.InputsOnly, Objective: c.Objective(),
-		Model: c.Source(), Decision: d.Node, Notes: notes}
-	for _, b := range d.Path() {
-		s.Path = append(s.Path, b.Label)
+		Model: c.Source(), Notes: notes}
+	if d != nil {
+		s.Decision = d.Node
+		for _, b := range d.Path() {
+			s.Path = append(s.Path, b.Label)
+		}
 	}
 	for _, u := range c.Uncertain() {
 		s.Inputs = append(s.Inputs, SimInput{Name: u.Input, Written: u.Written(), Dist: u.Dist, Mean: u.Mean, MeanExact: u.Exact})
@@ -245,10 +252,13 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 		}
 	}
 
-	node := d.Number()
-	from, to := c.Kids(node)
-	nopt := to - from
-	sim := &simRun{c: c, node: node, from: from, policy: base.Rollback().Policy(), full: !opts.InputsOnly}
+	sim := &simRun{c: c, policy: base.Rollback().Policy(), full: !opts.InputsOnly, whole: d == nil}
+	nopt := 1
+	if d != nil {
+		sim.node = d.Number()
+		from, to := c.Kids(sim.node)
+		sim.from, nopt = from, to-from
+	}
 	values := make([][]float64, nopt)
 	for j := range values {
 		values[j] = make([]float64, runs)
@@ -327,6 +337,9 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 	for _, b := range bestKnown[:done] {
 		counts[b]++
 	}
+	if d == nil {
+		counts[0] = 0 // no decision: nothing is best
+	}
 	for j := range nopt {
 		vs := values[j][:done]
 		loss := 0
@@ -336,24 +349,33 @@ func Simulate(ctx context.Context, c *compiled.Model, opts SimulateOptions) (*Si
 			}
 			vs[i] = obj.FigureFloat(v)
 		}
+		label, what := "", "the whole tree"
+		atMeans, taken := base.Value(), true
+		if d != nil {
+			label = d.Node.Branches[j].Label
+			what = fmt.Sprintf("option %q", label)
+			atMeans, taken = d.BranchValue(j), j == d.Chosen()
+		}
 		sample, err := pdist.NewSample(vs)
 		if err != nil {
-			return nil, &SimulationError{Err: fmt.Errorf("option %q: %w", d.Node.Branches[j].Label, err)}
+			return nil, &SimulationError{Err: fmt.Errorf("%s: %w", what, err)}
 		}
 		s.Options = append(s.Options, SimOption{
-			Label:   d.Node.Branches[j].Label,
+			Label:   label,
 			Sample:  sample,
-			AtMeans: d.BranchValue(j),
-			Base:    j == d.Chosen(),
+			AtMeans: atMeans,
+			Base:    taken,
 			PBest:   float64(counts[j]) / float64(done),
 			PLoss:   float64(loss) / float64(done),
 		})
 	}
-	ks, err := pdist.NewSample(know[:done])
-	if err != nil {
-		return nil, &SimulationError{Err: err}
+	if d != nil {
+		ks, err := pdist.NewSample(know[:done])
+		if err != nil {
+			return nil, &SimulationError{Err: err}
+		}
+		s.KnowInputs = Estimate{Mean: ks.Mean(), StdErr: ks.StdErr()}
 	}
-	s.KnowInputs = Estimate{Mean: ks.Mean(), StdErr: ks.StdErr()}
 	if opts.KeepDraws {
 		s.Draws = make([][]float64, len(keep))
 		for j := range keep {
@@ -468,6 +490,7 @@ type simRun struct {
 	from   int     // its first child
 	policy []int32 // the base-case policy
 	full   bool    // walk a path for each option (not InputsOnly)
+	whole  bool    // no decision: one value a run, the whole tree's
 }
 
 // run evaluates one run on ws.f, whose inputs are drawn: every decision
@@ -475,6 +498,16 @@ type simRun struct {
 // policy followed (each option's payoff). Values are net.
 func (s *simRun) run(ws *worker, r *rand.Rand, run int, values [][]float64, bestKnown []int32, know []float64) {
 	f := ws.f
+	if s.whole {
+		// No decision to re-make: the tree's value, or one path.
+		if s.full {
+			values[0][run] = s.walk(f, 0, r)
+		} else {
+			f.Rollback()
+			values[0][run] = f.Total(0)
+		}
+		return
+	}
 	f.Rollback()
 	b := f.Best(s.node)
 	bestKnown[run] = int32(b)

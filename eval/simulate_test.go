@@ -458,3 +458,70 @@ decision "D"
 		t.Errorf("a stopped correlated simulation does not say its runs cannot be repeated by a shorter one: %q", stopped.Notes)
 	}
 }
+
+// wholeTreeSrc is a project's cost with chance events and three-point
+// estimates but no decision: simulate gives one distribution, of the whole
+// tree's cost.
+const wholeTreeSrc = `title "Depot refit as planned"
+currency EUR
+objective min
+let strip   = pert(40_000, 50_000, 90_000)
+let fit     = triangular(200_000, 230_000, 300_000)
+let p_asb   = pert(10%, 20%, 40%)
+let removal = uniform(15_000, 35_000)
+chance "Asbestos found"
+  "Found"  p_asb  cost strip + fit + removal
+    chance "Inspection"
+      "Passed"  80%
+      "Failed"  rest  cost 12_000
+  "Clear"  rest   cost strip + fit
+`
+
+// TestSimulateWholeTree: a tree with no decision simulates as one
+// distribution whose mean lies within 4 standard errors of the exact
+// expected value, for several seeds and both modes, with no P(best) and no
+// value of knowing the inputs.
+func TestSimulateWholeTree(t *testing.T) {
+	c := loadText(t, wholeTreeSrc)
+	// The expected cost by hand: E[strip] + E[fit] + E[p_asb]·(E[removal]
+	// + 20% · 12,000), the inputs independent. PERT mean (a + 4m + b)/6
+	// (Malcolm, Roseboom, Clark & Fazar 1959): 55,000 and 13/60; the
+	// triangular mean (a + m + b)/3 (common practice): 730,000/3; the
+	// uniform mean (a + b)/2: 25,000.
+	want := new(big.Rat).SetInt64(55_000)
+	want.Add(want, big.NewRat(730_000, 3))
+	want.Add(want, new(big.Rat).Mul(big.NewRat(13, 60), big.NewRat(25_000+2_400, 1)))
+	wantF, _ := want.Float64() // 304,270
+	sol, err := Solve(c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// 13/60 has no finite decimal: the engine holds it to many places.
+	if diff := new(big.Rat).Sub(sol.Value().Rat(), want); diff.Abs(diff).Cmp(big.NewRat(1, 1_000_000)) > 0 {
+		got := sol.Value().Rat()
+		t.Fatalf("exact expected cost %v, want %v", got.FloatString(6), want.FloatString(6))
+	}
+	for _, seed := range []uint64{1, 2, 99} {
+		for _, inputsOnly := range []bool{false, true} {
+			s, err := Simulate(context.Background(), c, SimulateOptions{Runs: 5000, Seed: seed, InputsOnly: inputsOnly})
+			if err != nil {
+				t.Fatalf("seed %d inputs-only %v: %v", seed, inputsOnly, err)
+			}
+			if s.Decision != nil || len(s.Options) != 1 {
+				t.Fatalf("seed %d: decision %v, %d options; want the whole tree alone", seed, s.Decision, len(s.Options))
+			}
+			o := s.Options[0]
+			if o.Label != "" || o.PBest != 0 || s.KnowInputs != (Estimate{}) {
+				t.Errorf("seed %d: label %q, P(best) %v, value of knowing %+v; want none", seed, o.Label, o.PBest, s.KnowInputs)
+			}
+			if at, _ := o.AtMeans.Float64(); math.Abs(at-wantF) > 1e-6 {
+				t.Errorf("seed %d: at the means %v, want %v", seed, at, wantF)
+			}
+			se := o.Sample.StdErr()
+			if diff := math.Abs(o.Sample.Mean() - wantF); se <= 0 || diff > 4*se {
+				t.Errorf("seed %d inputs-only %v: mean %v, exact %v (%.1f standard errors of %v)",
+					seed, inputsOnly, o.Sample.Mean(), wantF, diff/se, se)
+			}
+		}
+	}
+}

@@ -40,14 +40,14 @@ type SimulateOptions struct {
 //	{"title", "objective", "currency",
 //	 "runs", "asked", "stopped", "seed",
 //	 "drawn": "paths" or "inputs",  paths walked, or inputs only
-//	 "decision", "path": [...],
+//	 "decision" (absent when the tree has no decision), "path": [...],
 //	 "inputs": [{"name" ("" inside a calculation), "written" (as in the model),
 //	             "distribution" (its arguments evaluated), "mean", "mean_exact"}],
 //	 "options": [{"label", "base", "at_means",
 //	              "mean", "stderr", "sd", "min", "max",
 //	              "percentiles": {"P5", "P10", "P20", …, "P80", "P90", "P95"},
-//	              "p_loss", "p_best"}],
-//	 "value_of_knowing_inputs": {"mean", "stderr"},
+//	              "p_loss", "p_best"}],   one option, "label" "", and no "p_best" with no decision
+//	 "value_of_knowing_inputs": {"mean", "stderr"},   absent with no decision
 //	 "notes": [...]}
 //
 // Figures are in the objective's terms (a payoff under max, a cost under
@@ -93,18 +93,28 @@ func (r *SimulateReport) WriteText(out io.Writer) error {
 		w.f("; %s gives the same figures", r.Options.Rerun)
 	}
 	w.ln()
-	if s.InputsOnly {
+	switch {
+	case s.InputsOnly && s.Decision == nil:
+		w.ln("drawn:      the distributions only; the tree's payoff is its expected value")
+		w.ln("            over the chance outcomes")
+	case s.InputsOnly:
 		w.ln("drawn:      the distributions only; each option's payoff is its expected value")
 		w.ln("            over the chance outcomes, the base-case policy followed after it")
-	} else {
+	case s.Decision == nil:
+		w.ln("drawn:      the distributions and every chance outcome, one path a run")
+	default:
 		w.ln("drawn:      the distributions and every chance outcome, one path a run, the")
 		w.ln("            base-case policy followed after each option")
 	}
-	w.f("watching:   decision %s", quoted(s.Decision.Display()))
-	if len(s.Path) > 0 {
-		w.f(" (after %s)", strings.Join(quotedAll(s.Path), " → "))
+	if s.Decision == nil {
+		w.ln("watching:   the whole tree (it has no decision)")
+	} else {
+		w.f("watching:   decision %s", quoted(s.Decision.Display()))
+		if len(s.Path) > 0 {
+			w.f(" (after %s)", strings.Join(quotedAll(s.Path), " → "))
+		}
+		w.ln()
 	}
-	w.ln()
 	for _, n := range s.Notes {
 		w.f("note: %s\n", r.Options.Names.Apply(n))
 	}
@@ -135,36 +145,51 @@ func (r *SimulateReport) WriteText(out io.Writer) error {
 	if cur != "" {
 		unit = " (" + cur + ")"
 	}
-	w.f("%s of each option%s; * the base-case choice\n", what, unit)
+	whole := s.Decision == nil
+	if whole {
+		w.f("%s of the whole tree%s\n", what, unit)
+	} else {
+		w.f("%s of each option%s; * the base-case choice\n", what, unit)
+	}
 	head := []string{"", "at the means", "mean", "± s.e.", "SD"}
 	right := []bool{false, true, true, true, true}
 	if !min {
 		head, right = append(head, "P(loss)"), append(right, true)
 	}
-	head, right = append(head, "P(best)"), append(right, true)
+	if !whole {
+		head, right = append(head, "P(best)"), append(right, true)
+	}
 	rows := [][]string{head}
 	for _, o := range s.Options {
 		mark := "  "
-		if o.Base {
+		if o.Base && !whole {
 			mark = "* "
 		}
-		row := []string{mark + o.Label, render.Amount(o.AtMeans, cur), simFigure(o.Sample.Mean(), cur),
+		row := []string{mark + r.optionName(o), render.Amount(o.AtMeans, cur), simFigure(o.Sample.Mean(), cur),
 			simFigure(o.Sample.StdErr(), cur), simFigure(o.Sample.SD(), cur)}
 		if !min {
 			row = append(row, share(o.PLoss))
 		}
-		rows = append(rows, append(row, share(o.PBest)))
+		if !whole {
+			row = append(row, share(o.PBest))
+		}
+		rows = append(rows, row)
 	}
 	textTable(w, "  ", 3, right, rows)
-	w.ln("  P(best): the share of runs in which the option is best when the decision")
-	w.ln("  is made knowing that run's inputs (ties go to the first option)")
+	if whole {
+		w.ln("  No P(best) and no value of knowing the inputs: the tree has no decision for")
+		w.ln("  them to inform.")
+	} else {
+		w.ln("  P(best): the share of runs in which the option is best when the decision")
+		w.ln("  is made knowing that run's inputs (ties go to the first option)")
+	}
 
 	w.ln()
 	w.f("Percentiles: the %s at or below which that share of runs fell\n", strings.ToLower(what))
 	head = []string{""}
 	right = []bool{false}
 	for _, o := range s.Options {
-		head, right = append(head, o.Label), append(right, true)
+		head, right = append(head, r.optionName(o)), append(right, true)
 	}
 	rows = [][]string{head}
 	for _, lv := range eval.Percentiles {
@@ -176,10 +201,12 @@ func (r *SimulateReport) WriteText(out io.Writer) error {
 	}
 	textTable(w, "  ", 3, right, rows)
 
-	w.ln()
-	w.f("Value of knowing the inputs before deciding: %s ± %s (s.e.)\n",
-		simFigure(s.KnowInputs.Mean, cur), simFigure(s.KnowInputs.StdErr, cur))
-	w.ln("  the mean gain of choosing with each run's inputs known over the base-case choice")
+	if !whole {
+		w.ln()
+		w.f("Value of knowing the inputs before deciding: %s ± %s (s.e.)\n",
+			simFigure(s.KnowInputs.Mean, cur), simFigure(s.KnowInputs.StdErr, cur))
+		w.ln("  the mean gain of choosing with each run's inputs known over the base-case choice")
+	}
 	w.ln()
 	w.ln("Simulated figures are float64 and carry sampling error; \"at the means\" is the")
 	w.ln("exact expected value with every distribution at its mean, as solve reports it.")
@@ -235,7 +262,7 @@ type simOptionJSON struct {
 	Max         float64            `json:"max"`
 	Percentiles simPercentilesJSON `json:"percentiles"`
 	PLoss       float64            `json:"p_loss"`
-	PBest       float64            `json:"p_best"`
+	PBest       *float64           `json:"p_best,omitempty"` // none for the whole tree
 }
 
 type estimateJSON struct {
@@ -252,11 +279,11 @@ type simulateJSON struct {
 	Stopped    bool            `json:"stopped"`
 	Seed       uint64          `json:"seed"`
 	Drawn      string          `json:"drawn"`
-	Decision   string          `json:"decision"`
+	Decision   *string         `json:"decision,omitempty"` // none when the tree has no decision
 	Path       []string        `json:"path"`
 	Inputs     []simInputJSON  `json:"inputs"`
 	Options    []simOptionJSON `json:"options"`
-	KnowInputs estimateJSON    `json:"value_of_knowing_inputs"`
+	KnowInputs *estimateJSON   `json:"value_of_knowing_inputs,omitempty"`
 	Notes      []string        `json:"notes"`
 }
 
@@ -265,8 +292,12 @@ func (r *SimulateReport) shape() simulateJSON {
 	m := s.Model
 	out := simulateJSON{Title: m.Title, Objective: s.Objective.String(), Currency: m.Currency,
 		Runs: s.Runs, Asked: s.Asked, Stopped: s.Stopped, Seed: s.Seed, Drawn: "paths",
-		Decision: s.Decision.Display(), Path: append([]string{}, s.Path...), Inputs: []simInputJSON{},
-		Options: []simOptionJSON{}, KnowInputs: estimateJSON{s.KnowInputs.Mean, s.KnowInputs.StdErr}, Notes: []string{}}
+		Path: append([]string{}, s.Path...), Inputs: []simInputJSON{}, Options: []simOptionJSON{}, Notes: []string{}}
+	if s.Decision != nil {
+		d := s.Decision.Display()
+		out.Decision = &d
+		out.KnowInputs = &estimateJSON{s.KnowInputs.Mean, s.KnowInputs.StdErr}
+	}
 	if s.InputsOnly {
 		out.Drawn = "inputs"
 	}
@@ -278,9 +309,14 @@ func (r *SimulateReport) shape() simulateJSON {
 		for i, lv := range eval.Percentiles {
 			ps[i] = o.Sample.Percentile(float64(lv) / 100)
 		}
-		out.Options = append(out.Options, simOptionJSON{Label: o.Label, Base: o.Base, AtMeans: o.AtMeans.String(),
+		opt := simOptionJSON{Label: o.Label, Base: o.Base, AtMeans: o.AtMeans.String(),
 			Mean: o.Sample.Mean(), StdErr: o.Sample.StdErr(), SD: o.Sample.SD(), Min: o.Sample.Min(), Max: o.Sample.Max(),
-			Percentiles: ps, PLoss: o.PLoss, PBest: o.PBest})
+			Percentiles: ps, PLoss: o.PLoss}
+		if s.Decision != nil {
+			pb := o.PBest
+			opt.PBest = &pb
+		}
+		out.Options = append(out.Options, opt)
 	}
 	for _, n := range s.Notes {
 		out.Notes = append(out.Notes, r.Options.Names.Apply(n))
@@ -309,8 +345,8 @@ func (r *SimulateReport) charts(title string, marks bool) chart.Simulated {
 	}
 	out := chart.Simulated{Title: title, Value: chart.Axis{Label: label}}
 	for _, o := range s.Options {
-		name := o.Label
-		if o.Base {
+		name := r.optionName(o)
+		if o.Base && s.Decision != nil {
 			name += " (base case)"
 		}
 		set := chart.SampleSet{Label: name, Samples: o.Sample.Sorted()}
@@ -334,6 +370,15 @@ func (r *SimulateReport) Cumulative() chart.Simulated {
 	return r.charts(fmt.Sprintf("Chance of a %s at or below, %s runs", r.what(), render.Grouped(strconv.Itoa(r.Result.Runs))), false)
 }
 
+// optionName is how an option is named in the text, the charts and the
+// CSV: its label, or "whole tree" when the tree has no decision.
+func (r *SimulateReport) optionName(o eval.SimOption) string {
+	if r.Result.Decision == nil {
+		return "whole tree"
+	}
+	return o.Label
+}
+
 func (r *SimulateReport) what() string {
 	if r.Result.Objective == tree.Min {
 		return "cost"
@@ -343,7 +388,8 @@ func (r *SimulateReport) what() string {
 
 // WriteDraws writes every run as a CSV row: the run's number (from 1),
 // each input's draw, each option's payoff in the objective's terms and
-// the option best with the run's inputs known. The simulation must have
+// the option best with the run's inputs known (a tree with no decision:
+// its payoff, and no best option). The simulation must have
 // kept its draws (eval.SimulateOptions.KeepDraws).
 func (r *SimulateReport) WriteDraws(w io.Writer) error {
 	s := r.Result
@@ -357,9 +403,12 @@ func (r *SimulateReport) WriteDraws(w io.Writer) error {
 	}
 	what := r.what()
 	for _, o := range s.Options {
-		head = append(head, what+": "+o.Label)
+		head = append(head, what+": "+r.optionName(o))
 	}
-	head = append(head, "best with inputs known")
+	whole := s.Decision == nil
+	if !whole {
+		head = append(head, "best with inputs known")
+	}
 	if err := cw.Write(head); err != nil {
 		return err
 	}
@@ -375,7 +424,9 @@ func (r *SimulateReport) WriteDraws(w io.Writer) error {
 			row[k] = strconv.FormatFloat(s.Values[j][run], 'g', -1, 64)
 			k++
 		}
-		row[k] = s.Options[s.BestKnown[run]].Label
+		if !whole {
+			row[k] = s.Options[s.BestKnown[run]].Label
+		}
 		if err := cw.Write(row); err != nil {
 			return err
 		}

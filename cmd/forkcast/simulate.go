@@ -29,7 +29,8 @@ func simulateCommand() *cli.Command {
 			"its payoff's mean with the standard error, the SD, the percentiles P5 … P95\n" +
 			"(P80 among them), the chance of a loss and P(best), the share of runs in which\n" +
 			"it is the best option once that run's inputs are known; then the expected value\n" +
-			"of knowing the inputs before deciding.\n\n" +
+			"of knowing the inputs before deciding. A tree with no decision gets one\n" +
+			"distribution, of the whole tree's payoff, and no P(best).\n\n" +
 			"Each run follows the base-case policy (the one solve recommends) after the\n" +
 			"option and draws every chance outcome on the way, with the run's probabilities.\n" +
 			"--inputs-only draws the inputs only and takes each option's expected value over\n" +

@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"os"
 	"path/filepath"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -211,5 +212,52 @@ func TestExactAnalysesSayMeans(t *testing.T) {
 			res.Means[0].Input != "design" || res.Means[0].Mean != "48000" || !res.Means[0].Exact || res.Means[7].Input != "" {
 			t.Errorf("%v --json: exit %d, %v, means %+v\n%s", args, code, err, res.Means, errs)
 		}
+	}
+}
+
+// A tree with no decision simulates as one distribution, of the whole
+// tree's cost: text and JSON against golden files, byte-identical for 1
+// and 2 workers, and a CSV of the draws with no "best" column. Its mean
+// is checked against the exact expected value in package eval
+// (TestSimulateWholeTree).
+func TestSimulateWholeTreeCLI(t *testing.T) {
+	file := filepath.Join("testdata", "refit.fork")
+	for _, c := range []struct {
+		name string
+		args []string
+	}{
+		{"simulate_refit.txt", []string{"simulate", file, "--runs", "2000"}},
+		{"simulate_refit_inputs.json", []string{"simulate", file, "--runs", "500", "--seed", "5", "--inputs-only", "--json"}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			var first string
+			for _, w := range []string{"1", "2"} {
+				code, out, errs := forkcast(t, "", append(c.args, "--workers", w)...)
+				if code != 0 {
+					t.Fatalf("exit %d: %s", code, errs)
+				}
+				if first == "" {
+					first = out
+					golden(t, c.name, out)
+				} else if out != first {
+					t.Errorf("%s workers: output differs from 1 worker's", w)
+				}
+			}
+		})
+	}
+	draws := filepath.Join(t.TempDir(), "d.csv")
+	if code, _, errs := forkcast(t, "", "simulate", file, "--runs", "50", "--save-draws", draws); code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	raw, err := os.ReadFile(draws)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(raw)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := []string{"run", "strip", "fit", "p_asb", "removal", "cost: whole tree"}; len(rows) != 51 || !reflect.DeepEqual(rows[0], want) {
+		t.Errorf("%d rows, header %q; want 51 rows, header %q", len(rows), rows[0], want)
 	}
 }
