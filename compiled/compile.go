@@ -36,6 +36,7 @@ func compile(m *tree.Model, opts Options) (*Model, tree.Diagnostics) {
 		k.env = nil
 	}
 	k.usedElsewhere()
+	k.checkDrawnProbs()
 	k.c.sh.random = k.random
 	for _, p := range m.Params {
 		switch {
@@ -75,6 +76,9 @@ type compiler struct {
 	// correlated holds the inputs named in `correlate` lines, which do
 	// not count as uses.
 	correlated map[string]bool
+	// probChecks are the probabilities that read random inputs
+	// (drawnprob.go).
+	probChecks []probCheck
 	opts       Options
 	// calls gives each distribution written in a `let` its slot, so that
 	// a let compiled again below a split (split.go, while relet is set)
@@ -154,7 +158,11 @@ func (k *compiler) figure(e tree.Expr, kind figKind, i, j, kk int32) (exact.Num,
 		k.random[i] = true
 	}
 	if !p.isConst() {
-		k.c.sh.dyn = append(k.c.sh.dyn, dynFig{kind: kind, i: i, j: j, k: kk, prog: k.progs.pack(p)})
+		packed := k.progs.pack(p)
+		k.c.sh.dyn = append(k.c.sh.dyn, dynFig{kind: kind, i: i, j: j, k: kk, prog: packed})
+		if (kind == figProb || kind == figPrior || kind == figLikelihood) && k.readsRandom(packed) {
+			k.noteProb(e, packed, kind, i, j, kk)
+		}
 	}
 	if kind != figInput { // an input's rounding is tracked per input (inInexact)
 		k.c.noteRounded(!isExact, !p.isConst())
