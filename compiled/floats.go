@@ -404,7 +404,7 @@ func (f *Floats) remass() {
 func (f *Floats) rests() error {
 	c := f.c
 	bad := func(p float64, what string) error {
-		return fmt.Errorf("a draw makes a probability under %s %.6g, outside [0, 1]", what, p)
+		return fmt.Errorf("a probability under %s is drawn as %.6g, outside [0, 1]; the distributions it reads must keep it within 0 .. 1", what, p)
 	}
 	for _, i := range f.restNodes {
 		from, to := c.sh.first[i], c.sh.first[i+1]
@@ -416,7 +416,7 @@ func (f *Floats) rests() error {
 		for k := from; k < to; k++ {
 			if k != rest {
 				if p := f.prob[k]; p < 0 || p > 1 {
-					return bad(p, describe(c.sh.nodes[i]))
+					return bad(p, describeAt(c.sh.nodes[i]))
 				}
 				sum += f.prob[k]
 			}
@@ -425,12 +425,12 @@ func (f *Floats) rests() error {
 			f.prob[rest] = 1 - sum
 			switch {
 			case f.prob[rest] < -1e-12:
-				return bad(f.prob[rest], describe(c.sh.nodes[i]))
+				return bad(f.prob[rest], describeAt(c.sh.nodes[i]))
 			case f.prob[rest] < 0:
 				f.prob[rest] = 0 // rounding: the others sum to 1
 			}
 		} else if math.Abs(sum-1) > sumSlack {
-			return unsummed(sum, describe(c.sh.nodes[i]))
+			return unsummed(sum, describeAt(c.sh.nodes[i]))
 		}
 	}
 	for _, u := range f.restUncs {
@@ -439,12 +439,12 @@ func (f *Floats) rests() error {
 		for s, p := range f.prior[u] {
 			if int32(s) != rest {
 				if p < 0 || p > 1 {
-					return bad(p, "uncertainty "+c.sh.uncs[u].Name)
+					return bad(p, "uncertainty "+c.sh.uncs[u].Name+atText(c.sh.uncs[u].Pos))
 				}
 				sum += p
 			}
 		}
-		what := "uncertainty " + c.sh.uncs[u].Name
+		what := "uncertainty " + c.sh.uncs[u].Name + atText(c.sh.uncs[u].Pos)
 		switch {
 		case rest < 0:
 			if math.Abs(sum-1) > sumSlack {
@@ -457,7 +457,7 @@ func (f *Floats) rests() error {
 		}
 	}
 	for _, t := range f.restTests {
-		what := "test " + c.sh.tests[t].Name
+		what := "test " + c.sh.tests[t].Name + atText(c.sh.tests[t].Pos)
 		for st := range c.sh.uncs[c.TestOn(int(t))].States {
 			rest := c.sh.restReading[t][st]
 			sum := 0.0
@@ -482,6 +482,18 @@ func (f *Floats) rests() error {
 		}
 	}
 	return nil
+}
+
+// describeAt names a node and where it is written: "M" at 4:5 (a model
+// read from JSON has no positions).
+func describeAt(n *tree.Node) string { return describe(n) + atText(n.Pos) }
+
+// atText is " at LINE:COL", or "" for no position.
+func atText(p tree.Pos) string {
+	if !p.IsValid() {
+		return ""
+	}
+	return " at " + p.String()
 }
 
 // sumSlack is how far drawn probabilities may miss summing to 1 by

@@ -201,11 +201,11 @@ func TestFloatsDrawRefused(t *testing.T) {
 		want string
 	}{
 		{"let p = uniform(20%, 40%)\ndecision \"D\"\n  \"a\"\n    chance \"M\"\n      \"u\"  p  gain 1\n      \"d\"  rest\n  \"b\"\n",
-			[]float64{1.2}, `under "M" 1.2, outside [0, 1]`},
+			[]float64{1.2}, `a probability under "M" at 4:5 is drawn as 1.2, outside [0, 1]`},
 		{"let p = uniform(20%, 40%)\ndecision \"D\"\n  \"a\"\n    chance \"M\"\n      \"u\"  p  gain 1\n      \"d\"  70%\n  \"b\"\n",
-			[]float64{0.35}, `probabilities under "M" sum to 1.05, not 1`},
+			[]float64{0.35}, `probabilities under "M" at 4:5 sum to 1.05, not 1`},
 		{"let p = uniform(20%, 40%)\nuncertainty u\n  \"x\"  p\n  \"y\"  rest\ndecision \"D\"\n  \"a\"\n    chance u\n      \"x\"  gain 1\n      \"y\"\n  \"b\"\n",
-			[]float64{-0.1}, `under uncertainty u -0.1`},
+			[]float64{-0.1}, `a probability under uncertainty u at 2:13 is drawn as -0.1, outside [0, 1]`},
 	} {
 		f := load(t, c.src).NewFloats()
 		err := f.Draw(c.x)

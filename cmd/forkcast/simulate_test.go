@@ -166,7 +166,11 @@ func TestSimulateUsage(t *testing.T) {
 		{[]string{"simulate", "example:project-cost", "--save-draws", "-"}, exitUsage, "needs a file name"},
 		// Two charts into one file: the second would replace the first.
 		{[]string{"simulate", "example:project-cost", "--chart", filepath.Join(dir, "s.svg"), "--cumulative", dir + "/./s.svg"}, exitUsage, "--chart and --cumulative name the same file"},
-		{[]string{"simulate", badP, "--runs", "1000"}, exitModel, `outside [0, 1]`},
+		// normal(50%, 40%) as a probability is warned about when read, and
+		// the first draw outside [0, 1] stops the runs, naming the node
+		// and where it is written.
+		{[]string{"simulate", badP, "--runs", "1000"}, exitModel, `a probability under "M" at 4:5 is drawn as`},
+		{[]string{"simulate", badP, "--runs", "1000"}, exitModel, `normal(50%, 40%) is unbounded: 21.1% of its draws fall outside 0 .. 1`},
 	} {
 		code, out, errs := forkcast(t, "", c.args...)
 		if code != c.code || !strings.Contains(out+errs, c.want) {
