@@ -102,8 +102,12 @@ func (k *compiler) checkDrawnProbs() {
 		memo[s] = sp
 		return sp
 	}
+	byNode := map[int32]*span{} // figProb spans by node, for the rests
 	for _, pc := range k.probChecks {
 		sp := pc.prog.span(slotSpan)
+		if pc.kind == figProb {
+			byNode[pc.i] = sp
+		}
 		if sp == nil {
 			continue
 		}
@@ -176,6 +180,58 @@ func (k *compiler) checkDrawnProbs() {
 				k.ds.Add(at, hint, "%s", summary)
 			}
 		}
+	}
+	k.checkDrawnRests(byNode)
+}
+
+// checkDrawnRests reports the plain chance nodes whose `rest` can be
+// drawn below 0: the other branches' probabilities, some drawn, can sum
+// past 1. Judged only when that sum's range is exact (every drawn input
+// enters it once, from bounded distributions).
+func (k *compiler) checkDrawnRests(byNode map[int32]*span) {
+	sh := k.c.sh
+	if sh.restAt == nil {
+		return
+	}
+	done := map[int32]bool{}
+	said := map[tree.Pos]bool{}
+	for i := range byNode {
+		if int(i) >= len(sh.parent) {
+			continue
+		}
+		p := sh.parent[i]
+		if p < 0 || done[p] || int(p) >= len(sh.restAt) || sh.restAt[p] < 0 || sh.nodes[p] == nil {
+			continue
+		}
+		done[p] = true
+		sum := &span{exact: true}
+		for c := sh.first[p]; c < sh.first[p+1]; c++ {
+			if c == sh.restAt[p] {
+				continue
+			}
+			sp, drawn := byNode[c]
+			if !drawn {
+				v := k.pool.Float64(k.c.prob[c])
+				sp = &span{lo: v, hi: v, exact: true}
+			}
+			// A branch that is out of range itself is reported as such.
+			if sp == nil || len(sp.unbound) > 0 || !sp.exact || !disjoint(sum.srcs, sp.srcs) || sp.hi > 1+probSlack || sp.lo < -probSlack {
+				sum = nil
+				break
+			}
+			sum = &span{lo: sum.lo + sp.lo, hi: sum.hi + sp.hi, srcs: append(append([]int32{}, sum.srcs...), sp.srcs...), exact: true}
+		}
+		if sum == nil || sum.hi <= 1+probSlack {
+			continue
+		}
+		n := sh.nodes[p]
+		rest := n.Branches[sh.restAt[p]-sh.first[p]]
+		if said[rest.Pos] { // a subtree used twice: one message
+			continue
+		}
+		said[rest.Pos] = true
+		k.ds.Add(rest.Pos, "the drawn probabilities' ranges together must stay within 0..1: narrow them, or write one as what is left of another (1 - p)",
+			"the other probabilities under %s can sum to %s with their draws, leaving %q (rest) below 0", describe(n), percentText(sum.hi), rest.Label)
 	}
 }
 

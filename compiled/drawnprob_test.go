@@ -61,6 +61,38 @@ func TestDrawnProbRange(t *testing.T) {
 	}
 }
 
+// TestDrawnRest: the probabilities before a `rest`, some drawn, must not
+// be able to sum past 1 (the rest would be drawn below 0). The sum's range
+// is the sum of the ranges when each drawn input enters once.
+func TestDrawnRest(t *testing.T) {
+	for _, c := range []struct {
+		name, lets, a, b string
+		want             string // "" for no diagnostic
+	}{
+		{"within", "let p = pert(10%, 30%, 50%)", "p", "40%", ""},
+		{"at 1 exactly", "let p = uniform(10%, 60%)", "p", "40%", ""},
+		{"past 1", "let p = pert(10%, 50%, 90%)", "p", "(uniform(10%, 40%))", `7:7: the other probabilities under "M" can sum to 130% with their draws, leaving "r" (rest) below 0`},
+		{"fixed and drawn", "let p = uniform(20%, 70%)", "p", "40%", `can sum to 110% with their draws`},
+		// p and 1 - p sum to 1 whatever p is; interval sums cannot see
+		// that, so an input entering twice is not judged.
+		{"one input twice", "let p = uniform(20%, 70%)", "(p / 2)", "(p / 2)", ""},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			src := c.lets + "\ndecision \"D\"\n  \"a\"\n    chance \"M\"\n      \"u\"  " + c.a + "  gain 1\n      \"v\"  " + c.b + "\n      \"r\"  rest\n  \"b\"\n"
+			_, ds := lang.Load([]byte(src), lang.Options{})
+			if c.want == "" {
+				if len(ds) != 0 {
+					t.Errorf("want no diagnostics, got %v\n%s", ds, src)
+				}
+				return
+			}
+			if len(ds) != 1 || !ds.HasErrors() || !strings.Contains(ds[0].Error(), c.want) {
+				t.Errorf("got %v, want an error with %q\n%s", ds, c.want, src)
+			}
+		})
+	}
+}
+
 // TestDrawnPriorAndLikelihood: the probabilities of a named uncertainty's
 // states and of a test's readings are checked like branches'.
 func TestDrawnPriorAndLikelihood(t *testing.T) {
