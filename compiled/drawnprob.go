@@ -102,14 +102,17 @@ func (k *compiler) checkDrawnProbs() {
 		memo[s] = sp
 		return sp
 	}
-	byNode := map[int32]*span{} // figProb spans by node, for the rests
+	// figProb spans by node, for the rests; drawn marks the nodes that
+	// have one (a nil span is one that could not be followed).
+	byNode := make([]*span, len(sh.parent))
+	drawn := make([]bool, len(sh.parent))
 	for _, pc := range k.probChecks {
 		sp := pc.prog.span(slotSpan)
-		if pc.kind == figProb {
-			byNode[pc.i] = sp
+		if pc.kind == figProb && int(pc.i) < len(byNode) {
+			byNode[pc.i], drawn[pc.i] = sp, true
 		}
-		if sp == nil {
-			continue
+		if sp == nil || len(sp.unbound) == 0 && (!sp.exact || sp.hi <= 1+probSlack && sp.lo >= -probSlack) {
+			continue // nothing to say
 		}
 		// Where to say it: at the distribution or the let's calculation
 		// when the probability is an input as it stands, else at the
@@ -181,36 +184,36 @@ func (k *compiler) checkDrawnProbs() {
 			}
 		}
 	}
-	k.checkDrawnRests(byNode)
+	k.checkDrawnRests(byNode, drawn)
 }
 
 // checkDrawnRests reports the plain chance nodes whose `rest` can be
 // drawn below 0: the other branches' probabilities, some drawn, can sum
 // past 1. Judged only when that sum's range is exact (every drawn input
 // enters it once, from bounded distributions).
-func (k *compiler) checkDrawnRests(byNode map[int32]*span) {
+func (k *compiler) checkDrawnRests(byNode []*span, drawn []bool) {
 	sh := k.c.sh
 	if sh.restAt == nil {
 		return
 	}
-	done := map[int32]bool{}
 	said := map[tree.Pos]bool{}
-	for i := range byNode {
-		if int(i) >= len(sh.parent) {
+	last := int32(-1) // the last chance node judged: siblings are numbered together
+	for i, d := range drawn {
+		if !d {
 			continue
 		}
 		p := sh.parent[i]
-		if p < 0 || done[p] || int(p) >= len(sh.restAt) || sh.restAt[p] < 0 || sh.nodes[p] == nil {
+		if p < 0 || p == last || int(p) >= len(sh.restAt) || sh.restAt[p] < 0 || sh.nodes[p] == nil {
 			continue
 		}
-		done[p] = true
+		last = p
 		sum := &span{exact: true}
 		for c := sh.first[p]; c < sh.first[p+1]; c++ {
 			if c == sh.restAt[p] {
 				continue
 			}
-			sp, drawn := byNode[c]
-			if !drawn {
+			sp := byNode[c]
+			if !drawn[c] {
 				v := k.pool.Float64(k.c.prob[c])
 				sp = &span{lo: v, hi: v, exact: true}
 			}
