@@ -52,9 +52,7 @@ func registerCommand() *cli.Command {
 		Flags: []cli.Flag{
 			&cli.StringFlag{Name: "confidence", Value: "80%", Usage: "size the reserve to cover the total in `LEVEL` of runs (80%, 0.9)"},
 			&cli.StringFlag{Name: "budget", Usage: "give the chance that the total stays within `AMOUNT`"},
-			&cli.IntFlag{Name: "runs", Value: register.DefaultRuns, Usage: "draw `N` runs (at most " + fmt.Sprint(register.MaxRuns) + ")"},
-			&cli.Uint64Flag{Name: "seed", Value: register.DefaultSeed, Usage: "the random seed `S`; the same seed gives the same figures"},
-			&cli.IntFlag{Name: "workers", Usage: "run on `N` goroutines (0: one per CPU); never changes the figures"},
+			runsFlag(register.DefaultRuns, register.MaxRuns), seedFlag(register.DefaultSeed), workersFlag,
 			&cli.BoolFlag{Name: "json", Usage: "print the result as JSON"},
 			&cli.StringFlag{Name: "csv", Usage: "write the register with the figures added to `FILE` as CSV (- for standard output)"},
 			&cli.StringFlag{Name: "tornado", Usage: "write the ranking as a tornado diagram to `FILE` (.svg or .png)"},
@@ -200,9 +198,9 @@ func registerAction(c *cli.Context) error {
 		}
 		budget = &b
 	}
-	runs := c.Int("runs")
-	if runs > register.MaxRuns {
-		return usageErr("--runs %d: give at most %d", runs, register.MaxRuns)
+	runs, err := runsArg(c, register.MaxRuns)
+	if err != nil {
+		return err
 	}
 	tornado, err := chartTarget(c, "tornado")
 	if err != nil {

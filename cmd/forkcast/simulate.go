@@ -43,9 +43,7 @@ func simulateCommand() *cli.Command {
 			"--at names the decision watched (default: the root, or the first decision on\n" +
 			"the best path). Ctrl-C stops the runs and reports those done (exit status 130).",
 		Flags: []cli.Flag{
-			&cli.IntFlag{Name: "runs", Value: eval.DefaultRuns, Usage: "draw `N` runs (at most " + fmt.Sprint(eval.MaxRuns) + ")"},
-			&cli.Uint64Flag{Name: "seed", Value: eval.DefaultSeed, Usage: "the random seed `S`; the same seed gives the same figures"},
-			&cli.IntFlag{Name: "workers", Usage: "run on `N` goroutines (0: one per CPU); never changes the figures"},
+			runsFlag(eval.DefaultRuns, eval.MaxRuns), seedFlag(eval.DefaultSeed), workersFlag,
 			&cli.BoolFlag{Name: "inputs-only", Usage: "draw the inputs only: each option's payoff is its expected value over the chance outcomes"},
 			&cli.StringFlag{Name: "at", Usage: "watch the decision with this `LABEL`"},
 			&cli.BoolFlag{Name: "json", Usage: "print the result as JSON"},
@@ -60,9 +58,9 @@ func simulateCommand() *cli.Command {
 }
 
 func simulateAction(c *cli.Context) error {
-	runs := c.Int("runs")
-	if runs > eval.MaxRuns {
-		return usageErr("--runs %d: give at most %d", runs, eval.MaxRuns)
+	runs, err := runsArg(c, eval.MaxRuns)
+	if err != nil {
+		return err
 	}
 	hist, err := chartTarget(c, "chart")
 	if err != nil {
@@ -197,4 +195,25 @@ func setDrawnInput(c *cli.Context, l *loaded) error {
 		}
 	}
 	return nil
+}
+
+// The flags of a seeded simulation, shared by simulate and register: how
+// many runs (with the library's default and cap), the seed, the workers.
+func runsFlag(def, max int) cli.Flag {
+	return &cli.IntFlag{Name: "runs", Value: def, Usage: "draw `N` runs (at most " + fmt.Sprint(max) + ")"}
+}
+
+func seedFlag(def uint64) cli.Flag {
+	return &cli.Uint64Flag{Name: "seed", Value: def, Usage: "the random seed `S`; the same seed gives the same figures"}
+}
+
+var workersFlag = &cli.IntFlag{Name: "workers", Usage: "run on `N` goroutines (0: one per CPU); never changes the figures"}
+
+// runsArg is --runs, refused above max (leastCount refuses fewer than 2).
+func runsArg(c *cli.Context, max int) (int, error) {
+	runs := c.Int("runs")
+	if runs > max {
+		return 0, usageErr("--runs %d: give at most %d", runs, max)
+	}
+	return runs, nil
 }
