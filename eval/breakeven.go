@@ -1280,36 +1280,32 @@ func kinkPoint(a2, a, b, b2 *sample, A, B int) *big.Rat {
 // confirmation fails, or a sample where a third option is best.
 func (s *search) kink(x *big.Rat, a2, a, b, b2 *sample, A, B int) (*Switch, *sample, error) {
 	at := decimal.NewFromBigRat(x, compiled.DivisionScale)
-	sides := []struct {
-		p, q     *sample // the two samples of the side, in order along x
-		from     decimal.Decimal
-		best     int
-		nearEnds bool // q is the sample next to x
-	}{{a2, a, a.x, A, true}, {b, b2, b.x, B, false}}
-	for _, sd := range sides {
-		mid := sd.from.Add(at).Mul(half).Round(compiled.DivisionScale)
-		if !mid.GreaterThan(decimal.Min(sd.from, at)) || !mid.LessThan(decimal.Max(sd.from, at)) {
-			return nil, nil, nil
+	// side samples between near (the sample of the side next to x) and x;
+	// with far, the side's other sample, the three in order along x must
+	// be straight for A and B, and best must be best there.
+	side := func(far, near *sample, best int) (third *sample, ok bool, err error) {
+		mid := near.x.Add(at).Mul(half).Round(compiled.DivisionScale)
+		if !mid.GreaterThan(decimal.Min(near.x, at)) || !mid.LessThan(decimal.Max(near.x, at)) {
+			return nil, false, nil
 		}
 		m, err := s.sample(mid)
 		if err != nil {
-			return nil, nil, err
+			return nil, false, err
 		}
 		if m.best != A && m.best != B {
-			return nil, m, nil
+			return m, false, nil
 		}
-		if m.best != sd.best {
-			return nil, nil, nil
+		lo, hi := far, m
+		if far.x.GreaterThan(m.x) {
+			lo, hi = m, far
 		}
-		ok := false
-		if sd.nearEnds {
-			ok = straight(sd.p, sd.q, m, A, B) && yExact(sd.p, sd.q, m)
-		} else {
-			ok = straight(m, sd.p, sd.q, A, B) && yExact(m, sd.p, sd.q)
-		}
-		if !ok {
-			return nil, nil, nil
-		}
+		return nil, m.best == best && straight(lo, near, hi, A, B) && yExact(lo, near, hi), nil
+	}
+	if third, ok, err := side(a2, a, A); err != nil || third != nil || !ok {
+		return nil, third, err
+	}
+	if third, ok, err := side(b2, b, B); err != nil || third != nil || !ok {
+		return nil, third, err
 	}
 	sw, err := s.confirm(x, A, B)
 	return sw, nil, err
