@@ -2,7 +2,7 @@ package compiled
 
 import (
 	"fmt"
-	"slices"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"strconv"
 
 	"github.com/forkcast/forkcast/internal/exact"
@@ -93,6 +93,9 @@ type compiler struct {
 	env   map[int32]int32
 	envOf []map[int32]int32
 	progs progSlab // where the programs of figures that read inputs are kept
+	// netSub and netNeg are netExpr's scratch.
+	netSub tree.Binary
+	netNeg tree.Unary
 	// scratchProg is where a figure is compiled, to be evaluated and,
 	// when it reads an input, packed into progs.
 	scratchProg program
@@ -561,17 +564,23 @@ func (k *compiler) dupLabels(what func() string, n int, at func(int) (string, tr
 	}
 }
 
-// netExpr is a branch's net value as one expression: gain − cost.
-func netExpr(b *tree.Branch) tree.Expr {
+// netExpr is a branch's net value as one expression: gain − cost. The
+// expression it makes is the compiler's scratch, good until the next call:
+// a program keeps only the divisions and calls inside an expression, never
+// its top, so nothing keeps it (a model with a cost on most branches made
+// one for each).
+func (k *compiler) netExpr(b *tree.Branch) tree.Expr {
 	switch {
 	case b.Gain == nil && b.Cost == nil:
 		return nil
 	case b.Cost == nil:
 		return b.Gain
 	case b.Gain == nil:
-		return &tree.Unary{At: b.Cost.Pos(), Op: '-', X: b.Cost}
+		k.netNeg = tree.Unary{At: b.Cost.Pos(), Op: '-', X: b.Cost}
+		return &k.netNeg
 	}
-	return &tree.Binary{At: b.Gain.Pos(), Op: '-', X: b.Gain, Y: b.Cost}
+	k.netSub = tree.Binary{At: b.Gain.Pos(), Op: '-', X: b.Gain, Y: b.Cost}
+	return &k.netSub
 }
 
 // cash evaluates the net value of the branch into node i.
@@ -585,7 +594,7 @@ func (k *compiler) cash(b *tree.Branch, i int32) {
 	case cok && b.Gain == nil:
 		k.c.cash[i] = k.pool.Neg(numOf(k.pool, c))
 	default:
-		k.c.cash[i], _ = k.figure(netExpr(b), figCash, i, 0, 0)
+		k.c.cash[i], _ = k.figure(k.netExpr(b), figCash, i, 0, 0)
 	}
 }
 
@@ -624,17 +633,17 @@ func (k *compiler) tree() {
 		}
 		return true
 	})
-	sh.dyn = slices.Grow(sh.dyn, calcs)
-	sh.nodes = make([]*tree.Node, 0, size)
-	sh.kind = make([]tree.Kind, 0, size)
-	sh.parent = make([]int32, 0, size)
-	sh.first = make([]int32, 0, size+1)
-	k.c.cash = make([]exact.Num, 0, size)
-	k.c.prob = make([]exact.Num, 0, size)
+	sh.dyn = bulk.Grow(sh.dyn, calcs)
+	sh.nodes = bulk.Make[*tree.Node](size)[:0]
+	sh.kind = bulk.Make[tree.Kind](size)[:0]
+	sh.parent = bulk.Make[int32](size)[:0]
+	sh.first = bulk.Make[int32](size + 1)[:0]
+	k.c.cash = bulk.Make[exact.Num](size)[:0]
+	k.c.prob = bulk.Make[exact.Num](size)[:0]
 	if named {
-		sh.unc = make([]int32, 0, size)
-		sh.test = make([]int32, 0, size)
-		sh.out = make([]int32, 0, size)
+		sh.unc = bulk.Make[int32](size)[:0]
+		sh.test = bulk.Make[int32](size)[:0]
+		sh.out = bulk.Make[int32](size)[:0]
 	}
 	push := func(n *tree.Node, parent int32) {
 		sh.nodes = append(sh.nodes, n)
@@ -831,7 +840,7 @@ func (k *compiler) scratch(n int) *group {
 func (k *compiler) setRest(i, c int32) {
 	sh := k.c.sh
 	if sh.restAt == nil {
-		sh.restAt = make([]int32, cap(sh.kind))
+		sh.restAt = bulk.Make[int32](cap(sh.kind))
 		for j := range sh.restAt {
 			sh.restAt[j] = -1
 		}

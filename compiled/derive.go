@@ -2,6 +2,7 @@ package compiled
 
 import (
 	"fmt"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"math/big"
 	"sync"
 
@@ -191,7 +192,7 @@ func prodOf[T any](ar arith[T], x *ctx[T]) T {
 // that cannot occur where it stands (k, the node under it; t, the test).
 func masses[T any](sh *shape, ar arith[T], prob []T, prior [][]T, lik [][][]T, zeroReading func(k int, t int32)) (mass []T, restart []bool, rho []T) {
 	n := len(sh.kind)
-	mass = make([]T, n)
+	mass = bulk.Make[T](n)
 	mass[0] = ar.one()
 	named := sh.unc != nil
 	var plain []T
@@ -450,7 +451,7 @@ func (c *Model) payoffAt(i int) exact.Num {
 func (c *Model) weigh(d *derived) {
 	n := len(d.mass)
 	pool := c.pool
-	es := make([]exact.Num, n)
+	es := bulk.Make[exact.Num](n)
 	scale := int32(0)
 	for i := 0; i < n; i++ {
 		v := pool.Add(c.cash[i], c.own(i))
@@ -465,7 +466,7 @@ func (c *Model) weigh(d *derived) {
 	}
 	d.scale = scale
 	if scale <= 38 {
-		w := make([]exact.Wide, n)
+		w := bulk.Make[exact.Wide](n)
 		ok := true
 		for i, e := range es {
 			if e.IsZero() {

@@ -1,6 +1,9 @@
 package compiled
 
-import "github.com/forkcast/forkcast/internal/exact"
+import (
+	"github.com/forkcast/forkcast/internal/bulk"
+	"github.com/forkcast/forkcast/internal/exact"
+)
 
 // Most figures that read an input are a·x + b of that one input: the input
 // itself, `cost amount * 3`, `gain benefit - 90_000`. With evaluates those
@@ -29,7 +32,7 @@ const linLimit = 40
 // round), no distribution.
 func (k *compiler) linearFigures() {
 	sh := k.c.sh
-	sh.lin = make([]linFig, len(sh.dyn))
+	sh.lin = bulk.Make[linFig](len(sh.dyn))
 	for fi, f := range sh.dyn {
 		sh.lin[fi] = linearOf(k.c.pool, f.prog)
 	}

@@ -3,6 +3,7 @@ package compiled
 import (
 	"encoding/binary"
 	"fmt"
+	"github.com/forkcast/forkcast/internal/bulk"
 
 	"github.com/forkcast/forkcast/dist"
 	"github.com/forkcast/forkcast/internal/exact"
@@ -389,27 +390,11 @@ func (p *program) evalFloat(in []float64) float64 {
 // long as the compiled model.
 type progSlab struct {
 	shared map[string]*program // programs that cannot fail, by what they compute (pack)
-	progs  []program
-	ops    []op
-	consts []exact.Num
-	floats []float64
-	slots  []int32
-}
-
-// slabSize is the number of values of one kind allocated at once.
-const slabSize = 1024
-
-// cut returns n values from the front of *slab, refilling it when short.
-func cut[T any](slab *[]T, n int) []T {
-	if n == 0 {
-		return nil
-	}
-	if len(*slab) < n {
-		*slab = make([]T, max(n, slabSize))
-	}
-	out := (*slab)[:n:n]
-	*slab = (*slab)[n:]
-	return out
+	progs  bulk.Slab[program]
+	ops    bulk.Slab[op]
+	consts bulk.Slab[exact.Num]
+	floats bulk.Slab[float64]
+	slots  bulk.Slab[int32]
 }
 
 // pack returns a copy of p made of slab parts, each exactly its size (p
@@ -454,14 +439,14 @@ func shareKey(p *program) (key string, share bool) {
 
 // copyOf is p made of slab parts.
 func (s *progSlab) copyOf(p *program) *program {
-	q := &cut(&s.progs, 1)[0]
-	q.ops = cut(&s.ops, len(p.ops))
+	q := s.progs.New()
+	q.ops = s.ops.Cut(len(p.ops))
 	copy(q.ops, p.ops)
-	q.consts = cut(&s.consts, len(p.consts))
+	q.consts = s.consts.Cut(len(p.consts))
 	copy(q.consts, p.consts)
-	q.fconsts = cut(&s.floats, len(p.fconsts))
+	q.fconsts = s.floats.Cut(len(p.fconsts))
 	copy(q.fconsts, p.fconsts)
-	q.slots = cut(&s.slots, len(p.slots))
+	q.slots = s.slots.Cut(len(p.slots))
 	copy(q.slots, p.slots)
 	if len(p.exprs) > 0 {
 		q.exprs = append([]tree.Expr(nil), p.exprs...)

@@ -1,6 +1,7 @@
 package compiled
 
 import (
+	"github.com/forkcast/forkcast/internal/bulk"
 	"math"
 	"math/big"
 
@@ -47,11 +48,11 @@ func (c *Model) rollbackInto(dst *Rollback, policy []int32) *Rollback {
 		r.best, r.wide, r.bigs = dst.best, dst.wide, dst.bigs
 		*dst = Rollback{}
 	} else {
-		r.best = make([]int32, n)
+		r.best = bulk.Make[int32](n)
 	}
 	if d.e != nil && c.Exact() {
 		if len(r.wide) != n {
-			r.wide = make([]exact.Wide, n)
+			r.wide = bulk.Make[exact.Wide](n)
 		}
 		if rollbackWide(c.sh, d.restart, d.e, r.wide, r.best, policy) {
 			r.bigs = nil

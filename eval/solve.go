@@ -7,6 +7,7 @@ package eval
 
 import (
 	"errors"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"io"
 
 	"github.com/forkcast/forkcast/compiled"
@@ -75,8 +76,8 @@ func Follow(c *compiled.Model, policy []int32) (*Solution, error) {
 func newSolution(c *compiled.Model, r *compiled.Rollback) *Solution {
 	sol := &Solution{Model: c.Source(), Compiled: c, r: r}
 	n := c.Len()
-	sol.nodes = make([]Solved, n)
-	sol.pre = make([]int32, n)
+	sol.nodes = bulk.Make[Solved](n)
+	sol.pre = bulk.Make[int32](n)
 	// Pre-order: a node, then each child's subtree in branch order.
 	type item struct{ i, parent int32 }
 	stack := []item{{0, -1}}
@@ -263,7 +264,7 @@ func (s *Solved) OnPolicy() bool {
 // Reachable reports, for every node in pre-order, whether the optimal policy
 // can reach it, in one forward sweep.
 func (sol *Solution) Reachable() []bool {
-	on := make([]bool, len(sol.nodes))
+	on := bulk.Make[bool](len(sol.nodes))
 	for i := range sol.nodes {
 		s := &sol.nodes[i]
 		if s.parent < 0 {

@@ -3,6 +3,7 @@ package lang
 import (
 	"hash/maphash"
 
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/forkcast/forkcast/tree"
 )
 
@@ -14,48 +15,20 @@ import (
 // Labels and names that repeat ("Buy", "High demand", an input's name)
 // share one string.
 type allocator struct {
-	nodes    chunk[tree.Node]
-	branches chunk[tree.Branch]
-	numbers  chunk[tree.Number]
-	names    chunk[tree.Name]
-	binaries chunk[tree.Binary]
-	unaries  chunk[tree.Unary]
-	lists    []*tree.Branch // the rest of the chunk branch lists are cut from
+	nodes    bulk.Slab[tree.Node]
+	branches bulk.Slab[tree.Branch]
+	numbers  bulk.Slab[tree.Number]
+	names    bulk.Slab[tree.Name]
+	binaries bulk.Slab[tree.Binary]
+	unaries  bulk.Slab[tree.Unary]
+	lists    bulk.Slab[*tree.Branch] // nodes' branch lists
 	strs     *stringCache
-}
-
-// chunk hands out values of T from slices allocated whole.
-type chunk[T any] struct {
-	free []T
-	size int // of the next slice
-}
-
-// maxChunk is the most values of one kind allocated at once; the last
-// chunk's unused end is all that is wasted.
-const maxChunk = 1024
-
-// new returns a zero T from the current chunk, starting a new chunk when
-// it is used up.
-func (c *chunk[T]) new() *T {
-	if len(c.free) == 0 {
-		// Small models take small chunks; large ones reach maxChunk soon.
-		c.size = min(max(2*c.size, 8), maxChunk)
-		c.free = make([]T, c.size)
-	}
-	p := &c.free[0]
-	c.free = c.free[1:]
-	return p
 }
 
 // branchList copies a node's branches into a list of exactly their
 // number, cut from a shared chunk.
 func (a *allocator) branchList(kids []*tree.Branch) []*tree.Branch {
-	n := len(kids)
-	if len(a.lists) < n {
-		a.lists = make([]*tree.Branch, max(n, maxChunk))
-	}
-	out := a.lists[:n:n]
-	a.lists = a.lists[n:]
+	out := a.lists.Cut(len(kids))
 	copy(out, kids)
 	return out
 }

@@ -2,6 +2,7 @@ package lang
 
 import (
 	"fmt"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"strconv"
 	"strings"
 
@@ -682,6 +683,7 @@ func (b *builder) placeNode(l *lineHead, parent *frame, n *tree.Node, noun, name
 	if n.Kind == tree.KindChance && n.Uncertainty == "" && n.Test == "" && n.Split == nil {
 		defer func() {
 			if !f.detached {
+				b.chances = bulk.Grow(b.chances, 1)
 				b.chances = append(b.chances, plainChance{n: n, line: int32(l.num), width: int32(l.endCol - int(l.at.Col))})
 			}
 		}()

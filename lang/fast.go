@@ -359,7 +359,7 @@ func (b *builder) fastExpr(fl *fastLine, x int32, c exprCtx, top bool) tree.Expr
 	e := &fl.ex[x]
 	switch e.kind {
 	case 'n':
-		n := b.alloc.numbers.new()
+		n := b.alloc.numbers.New()
 		*n = tree.WrittenNumber(fl.at(e.tok), e.c, e.e, fl.text(e.tok))
 		return n
 	case 'v':
@@ -367,11 +367,11 @@ func (b *builder) fastExpr(fl *fastLine, x int32, c exprCtx, top bool) tree.Expr
 		if !b.knownLet(name, c, top) {
 			b.pendingNames = append(b.pendingNames, nameRef{name: name, pos: fl.at(e.tok), width: int(fl.toks[e.tok].width), ctx: c, top: top})
 		}
-		v := b.alloc.names.new()
+		v := b.alloc.names.New()
 		v.At, v.Name = fl.at(e.tok), name
 		return v
 	case 'u':
-		u := b.alloc.unaries.new()
+		u := b.alloc.unaries.New()
 		u.At, u.Op = fl.at(e.tok), '-'
 		u.X = b.fastExpr(fl, e.x, c, false)
 		return u
@@ -379,7 +379,7 @@ func (b *builder) fastExpr(fl *fastLine, x int32, c exprCtx, top bool) tree.Expr
 	sum := top && (e.op == '+' || e.op == '-')
 	x1 := b.fastExpr(fl, e.x, c, sum)
 	y1 := b.fastExpr(fl, e.y, c, sum)
-	bin := b.alloc.binaries.new()
+	bin := b.alloc.binaries.New()
 	*bin = tree.Binary{At: fl.start(x), Op: e.op, X: x1, Y: y1}
 	return bin
 }
@@ -415,7 +415,7 @@ func (b *builder) commitItem(fl *fastLine) {
 		b.push(&fl.lineHead, parent, b.newFrame(frame{kind: fLeaf, noun: "state", label: label, hasLabel: true}))
 		return
 	}
-	br := b.alloc.branches.new()
+	br := b.alloc.branches.New()
 	br.Label, br.Pos, br.Rest = label, at, fl.rest
 	if fl.prob >= 0 {
 		br.Prob = b.fastExpr(fl, fl.prob, ctxProb, true)
@@ -444,7 +444,7 @@ func (b *builder) commitNode(fl *fastLine, k tree.Kind, name, label int32) {
 	if parent == nil {
 		b.sawNodeTop = true
 	}
-	n := b.alloc.nodes.new()
+	n := b.alloc.nodes.New()
 	n.Kind, n.Pos = k, fl.at(0)
 	var nameText string
 	if name >= 0 {

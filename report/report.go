@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"io"
 	"sort"
 	"strconv"
@@ -160,7 +161,7 @@ type chanceLink struct{ node, via int }
 // through the decisions between.
 func nearestChance(sol *eval.Solution) []chanceLink {
 	nodes := sol.Nodes()
-	up := make([]chanceLink, len(nodes))
+	up := bulk.Make[chanceLink](len(nodes))
 	for i := range nodes {
 		up[i] = chanceLink{-1, -1}
 		if par := nodes[i].Parent(); par != nil {
