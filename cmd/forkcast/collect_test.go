@@ -1,0 +1,77 @@
+package main
+
+import (
+	"math"
+	"runtime"
+	"runtime/debug"
+	"runtime/metrics"
+	"testing"
+	"time"
+)
+
+// gcSetting reads the collector's percent setting (by setting it back).
+func gcSetting() int {
+	p := debug.SetGCPercent(100)
+	debug.SetGCPercent(p)
+	return p
+}
+
+// Not parallel: it reads the process-wide collector settings, which
+// commands running at the same time would change.
+func TestPauseCollectionRestores(t *testing.T) {
+	defer debug.SetGCPercent(debug.SetGCPercent(100))
+	defer debug.SetMemoryLimit(debug.SetMemoryLimit(math.MaxInt64))
+
+	outer := pauseCollection(10 << 20)
+	if p := gcSetting(); p != -1 {
+		t.Fatalf("while paused the collector setting is %d, want -1 (off)", p)
+	}
+	if l := debug.SetMemoryLimit(-1); l != pauseFloor {
+		t.Fatalf("while paused the memory limit is %d, want the floor %d", l, pauseFloor)
+	}
+	inner := pauseCollection(200 << 20)
+	inner()
+	inner() // a second call is harmless
+	if p := gcSetting(); p != -1 {
+		t.Fatalf("after the inner pause ended the setting is %d, want still -1", p)
+	}
+	keep := make([][]byte, 0, 64)
+	for range 64 { // a heap that grew while paused
+		keep = append(keep, make([]byte, 1<<20))
+	}
+	outer()
+	if l := debug.SetMemoryLimit(-1); l != math.MaxInt64 {
+		t.Fatalf("after the pause the memory limit is %d, want it back at %d", l, int64(math.MaxInt64))
+	}
+	if p := gcSetting(); p < 100 {
+		t.Fatalf("after the pause the setting is %d, want at least 100 until the next collection", p)
+	}
+	runtime.GC()
+	deadline := time.Now().Add(5 * time.Second)
+	for gcSetting() != 100 {
+		if time.Now().After(deadline) {
+			t.Fatalf("the setting is %d after a collection, want 100 again", gcSetting())
+		}
+		runtime.GC()
+		time.Sleep(10 * time.Millisecond)
+	}
+	runtime.KeepAlive(keep)
+}
+
+func TestStretchedPercent(t *testing.T) {
+	// The goal of the collector is the heap marked last × (1 + p/100)
+	// (the runtime/debug.SetGCPercent documentation): a heap that has
+	// grown since is given at least the usual setting, never less.
+	if p := stretchedPercent(100); p < 100 {
+		t.Fatalf("stretchedPercent(100) = %d, want at least 100", p)
+	}
+	keep := make([]byte, 256<<20)
+	p := stretchedPercent(100)
+	s := []metrics.Sample{{Name: "/gc/heap/live:bytes"}}
+	metrics.Read(s)
+	live := max(float64(s[0].Value.Uint64()), 4<<20)
+	if goal := live * (1 + float64(p)/100); goal < 2*256<<20 {
+		t.Fatalf("with 256 MiB more on the heap than was marked (%.0f), stretchedPercent(100) = %d puts the next collection at %.0f bytes, want at least twice the 256 MiB", live, p, goal)
+	}
+	runtime.KeepAlive(keep)
+}
