@@ -892,6 +892,19 @@ func (k *compiler) feeds() {
 	for _, s := range sh.sources {
 		sh.isSource[s.slot] = true
 	}
+	// Counted first, so that each list is allocated once at its size (a
+	// large model has hundreds of thousands of figures reading one input).
+	count := make([]int, len(k.c.in))
+	for _, f := range sh.dyn {
+		for _, r := range f.prog.slots {
+			count[r]++
+		}
+	}
+	for r, n := range count {
+		if n > 0 {
+			sh.readers[r] = bulk.Make[int32](n)[:0]
+		}
+	}
 	for fi, f := range sh.dyn {
 		for _, r := range f.prog.slots {
 			sh.readers[r] = append(sh.readers[r], int32(fi))

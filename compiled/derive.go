@@ -447,20 +447,23 @@ func (c *Model) payoffAt(i int) exact.Num {
 	return c.payoff[i]
 }
 
-// weigh computes E = mass × (cash + own) for every node at one scale.
+// weigh computes E = mass × (cash + own) for every node at one scale: the
+// most decimal places any E has. A first pass finds that scale and a
+// second writes E at it, computing each E again rather than keeping them
+// all: a product costs less than an array of a large model's size.
 func (c *Model) weigh(d *derived) {
 	n := len(d.mass)
 	pool := c.pool
-	es := bulk.Make[exact.Num](n)
-	scale := int32(0)
-	for i := 0; i < n; i++ {
+	eAt := func(i int) exact.Num {
 		v := pool.Add(c.cash[i], c.own(i))
 		if v.IsZero() {
-			continue
+			return exact.Zero
 		}
-		e := pool.Mul(d.mass[i], v)
-		es[i] = e
-		if p := pool.Places(e); p > scale {
+		return pool.Mul(d.mass[i], v)
+	}
+	scale := int32(0)
+	for i := 0; i < n; i++ {
+		if p := pool.Places(eAt(i)); p > scale {
 			scale = p
 		}
 	}
@@ -468,7 +471,8 @@ func (c *Model) weigh(d *derived) {
 	if scale <= 38 {
 		w := bulk.Make[exact.Wide](n)
 		ok := true
-		for i, e := range es {
+		for i := range w {
+			e := eAt(i)
 			if e.IsZero() {
 				continue
 			}
@@ -482,7 +486,7 @@ func (c *Model) weigh(d *derived) {
 		}
 	}
 	d.eBig = make([]*big.Int, n)
-	for i, e := range es {
-		d.eBig[i], _ = pool.BigOf(e, scale)
+	for i := range d.eBig {
+		d.eBig[i], _ = pool.BigOf(eAt(i), scale)
 	}
 }
