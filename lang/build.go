@@ -121,6 +121,7 @@ type builder struct {
 	subs     map[string]*subtreeDef
 	subOrder []*subtreeDef
 	uses     []*useRef
+	splits   int                    // three-point splits written
 	useAt    map[*tree.Node]*useRef // placeholder → its use line
 	refs     []declRef              // chance NAME, test NAME and on NAME, checked in finish
 	lets     declared               // every let, uncertainty and test declared in the file

@@ -53,6 +53,11 @@ func (b *builder) expand() {
 	if b.m.Root == nil {
 		return
 	}
+	if len(b.uses) == 0 && b.splits == 0 {
+		// The tree is as written, and every node of it was counted as it
+		// was read (countBranch): nothing to weigh or expand.
+		return
+	}
 	if !b.checkLimit() {
 		b.dropUses()
 		return

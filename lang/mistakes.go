@@ -1,7 +1,9 @@
 package lang
 
 import (
+	"cmp"
 	"fmt"
+	"hash/maphash"
 	"slices"
 	"strings"
 	"unicode"
@@ -230,25 +232,43 @@ func (b *builder) repeatedChance() {
 		warned bool
 	}
 	// Only labels met more than once can repeat: find them by sorting
-	// the nodes by label (most labels of a large model are unique, and a
-	// map entry for each would cost more than the rest of the check).
-	order := make([]int32, 0, len(b.chances))
+	// the nodes by a hash of their label (most labels of a large model are
+	// unique, and a map entry for each would cost more than the rest of
+	// the check; sorting hashes reads no label again). Nodes whose hashes
+	// are equal are then compared by label, which a rare collision of two
+	// labels' hashes cannot fool.
+	type keyed struct {
+		h uint64
+		i int32
+	}
+	seed := maphash.MakeSeed()
+	keys := make([]keyed, 0, len(b.chances))
 	for i := range b.chances {
 		if c := &b.chances[i]; c.n.Label != "" && len(c.n.Branches) >= 2 {
-			order = append(order, int32(i))
+			keys = append(keys, keyed{maphash.String(seed, c.n.Label), int32(i)})
 		}
 	}
-	slices.SortFunc(order, func(x, y int32) int {
-		if c := strings.Compare(b.chances[x].n.Label, b.chances[y].n.Label); c != 0 {
-			return c
-		}
-		return int(x - y)
-	})
+	slices.SortFunc(keys, func(x, y keyed) int { return cmp.Compare(x.h, y.h) })
 	repeated := make([]bool, len(b.chances))
-	for i := 1; i < len(order); i++ {
-		if b.chances[order[i]].n.Label == b.chances[order[i-1]].n.Label {
-			repeated[order[i]], repeated[order[i-1]] = true, true
+	for lo := 0; lo < len(keys); {
+		hi := lo + 1
+		for hi < len(keys) && keys[hi].h == keys[lo].h {
+			hi++
 		}
+		// A node already marked was marked with every later node of its
+		// label, by the first of them: a label on thousands of nodes is
+		// one pass.
+		for x := lo; x < hi; x++ {
+			if repeated[keys[x].i] {
+				continue
+			}
+			for y := x + 1; y < hi; y++ {
+				if b.chances[keys[x].i].n.Label == b.chances[keys[y].i].n.Label {
+					repeated[keys[x].i], repeated[keys[y].i] = true, true
+				}
+			}
+		}
+		lo = hi
 	}
 	labels := map[string]*label{}
 	for i := range b.chances {

@@ -36,6 +36,7 @@ func (b *builder) splitLine(l *srcLine, g *gChance, parent *frame, quiet bool) *
 		n.Label = b.labelTok(l, *g.Label)
 	}
 	n.Split = &tree.Split{Rule: rule}
+	b.splits++
 	if g.Name != nil {
 		n.Split.Input, n.Split.InputPos = g.Name.Value, tokPos(*g.Name)
 		if n.Label == "" {
@@ -69,7 +70,7 @@ func isSplitHolder(n *tree.Node) bool {
 
 // splitOut gives every split in the tree its three branches.
 func (b *builder) splitOut() {
-	if b.m.Root == nil {
+	if b.m.Root == nil || b.splits == 0 {
 		return
 	}
 	stack := []*tree.Node{b.m.Root}
