@@ -29,8 +29,12 @@ const pauseTextFactor = 16
 var gcPause struct {
 	sync.Mutex
 	depth   int   // pauses in progress (tests run commands at once)
-	percent int   // the collector's setting before the first of them
-	limit   int64 // the memory limit before the first of them
+	percent int   // the collector's setting to return to
+	limit   int64 // the memory limit to return to
+	// stretch counts the settings stretched after a pause; stretched is
+	// set while the last one is in force (until the next collection).
+	stretch   int
+	stretched bool
 }
 
 // pauseCollection pauses garbage collection while a model of about size
@@ -41,7 +45,11 @@ func pauseCollection(size int64) (resume func()) {
 	defer gcPause.Unlock()
 	if gcPause.depth == 0 {
 		gcPause.limit = debug.SetMemoryLimit(-1)
-		gcPause.percent = debug.SetGCPercent(-1)
+		percent := debug.SetGCPercent(-1)
+		if !gcPause.stretched { // else the setting to return to is kept
+			gcPause.percent = percent
+		}
+		gcPause.stretched = false
 		bound := max(pauseFloor, pauseTextFactor*size)
 		if gcPause.limit < bound {
 			bound = gcPause.limit // the user's own limit is lower
@@ -69,15 +77,17 @@ func resumeCollection() {
 	// the next collection waits until the heap has grown by the usual share
 	// of what it is now, and the usual setting returns when it is over.
 	debug.SetGCPercent(stretchedPercent(gcPause.percent))
-	percent := gcPause.percent
+	gcPause.stretch++
+	gcPause.stretched = true
 	sentinel := new([64]byte) // too big for the tiny allocator, whose blocks are freed together
-	runtime.AddCleanup(sentinel, func(int) {
+	runtime.AddCleanup(sentinel, func(stretch int) {
 		gcPause.Lock()
 		defer gcPause.Unlock()
-		if gcPause.depth == 0 {
-			debug.SetGCPercent(percent)
+		if gcPause.depth == 0 && gcPause.stretched && gcPause.stretch == stretch {
+			debug.SetGCPercent(gcPause.percent)
+			gcPause.stretched = false
 		}
-	}, 0)
+	}, gcPause.stretch)
 }
 
 // stretchedPercent is the collector setting that puts the next collection
