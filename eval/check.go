@@ -51,9 +51,10 @@ func (sol *Solution) ranges() []Range {
 func (sol *Solution) Ranges() []Range {
 	c := sol.Compiled
 	net := sol.ranges()
-	out := make([]Range, len(sol.nodes))
-	for x := range sol.nodes {
-		i := int(sol.nodes[x].i)
+	nodes := sol.table()
+	out := make([]Range, len(nodes))
+	for x := range nodes {
+		i := int(nodes[x].i)
 		cash := c.Cash(i)
 		lo, hi := net[i].Lo.Sub(cash), net[i].Hi.Sub(cash)
 		if sol.obj() == tree.Min {
@@ -90,8 +91,9 @@ func dominated(sol *Solution, maxEnds int) tree.Diagnostics {
 		policy: func(i int) int { return sol.r.Best(i) }}
 	budgetLeft := true
 	drawn := drawnBelow(c)
-	for x := range sol.nodes {
-		s := &sol.nodes[x]
+	nodes := sol.table()
+	for x := range nodes {
+		s := &nodes[x]
 		if s.Node.Kind != tree.KindDecision {
 			continue
 		}

@@ -207,8 +207,9 @@ func (v *voi) evsi(name string) (*TestValue, error) {
 	var scen []*compiled.Rollback
 	var scenModels []*compiled.Model
 	runs := 0
-	for x := range v.sol.nodes {
-		node := &v.sol.nodes[x]
+	nodes := v.sol.table()
+	for x := range nodes {
+		node := &nodes[x]
 		k := int(node.i)
 		if c.RunsTest(k) != ti {
 			continue

@@ -7,8 +7,10 @@ package eval
 
 import (
 	"errors"
-	"github.com/forkcast/forkcast/internal/bulk"
 	"io"
+	"sync"
+
+	"github.com/forkcast/forkcast/internal/bulk"
 
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/interchange"
@@ -25,8 +27,14 @@ type Solution struct {
 	Compiled *compiled.Model
 	Root     *Solved
 	r        *compiled.Rollback
-	nodes    []Solved // every node in pre-order
-	pre      []int32  // compiled node number → pre-order index
+	// nodes is every node in pre-order and pre maps compiled node numbers
+	// to pre-order indices. Both are allocated with the solution but
+	// filled only when first needed (table): a report of the policy alone
+	// never needs them, and on a large tree they are a tenth of its
+	// memory. Root, nodes[0], is filled from the start.
+	fill  sync.Once
+	nodes []Solved
+	pre   []int32
 }
 
 // Solved is one node of a solved tree. Its figures are methods, made into
@@ -76,28 +84,49 @@ func Follow(c *compiled.Model, policy []int32) (*Solution, error) {
 func newSolution(c *compiled.Model, r *compiled.Rollback) *Solution {
 	sol := &Solution{Model: c.Source(), Compiled: c, r: r}
 	n := c.Len()
+	// Memory that is allocated but not yet written costs nothing.
 	sol.nodes = bulk.Make[Solved](n)
 	sol.pre = bulk.Make[int32](n)
+	sol.nodes[0] = Solved{Node: c.Node(0), sol: sol, i: 0, self: 0, parent: -1, size: int32(n)}
+	sol.Root = &sol.nodes[0]
+	return sol
+}
+
+// table returns every node in pre-order, filling the table on first use.
+func (sol *Solution) table() []Solved {
+	sol.fill.Do(sol.fillTable)
+	return sol.nodes
+}
+
+// fillTable writes the pre-order table below the root (the root's entry is
+// written when the solution is made, and may be read meanwhile).
+func (sol *Solution) fillTable() {
+	c := sol.Compiled
+	n := c.Len()
 	// Pre-order: a node, then each child's subtree in branch order.
 	type item struct{ i, parent int32 }
-	stack := []item{{0, -1}}
-	self := int32(0)
+	var stack []item
+	push := func(i, self int32) {
+		from, to := c.Kids(int(i))
+		for k := to - 1; k >= from; k-- {
+			stack = append(stack, item{int32(k), self})
+		}
+	}
+	push(0, 0)
+	self := int32(1)
 	for len(stack) > 0 {
 		it := stack[len(stack)-1]
 		stack = stack[:len(stack)-1]
 		sol.nodes[self] = Solved{Node: c.Node(int(it.i)), sol: sol, i: it.i, self: self, parent: it.parent, size: 1}
 		sol.pre[it.i] = self
-		from, to := c.Kids(int(it.i))
-		for k := to - 1; k >= from; k-- {
-			stack = append(stack, item{int32(k), self})
-		}
+		push(it.i, self)
 		self++
 	}
 	for j := n - 1; j > 0; j-- {
-		sol.nodes[sol.nodes[j].parent].size += sol.nodes[j].size
+		if p := sol.nodes[j].parent; p > 0 {
+			sol.nodes[p].size += sol.nodes[j].size
+		}
 	}
-	sol.Root = &sol.nodes[0]
-	return sol
 }
 
 // Rollback is the compiled model's rollback the solution reads.
@@ -105,10 +134,15 @@ func (sol *Solution) Rollback() *compiled.Rollback { return sol.r }
 
 // Nodes returns every solved node in pre-order (the root first, then each
 // subtree in model order).
-func (sol *Solution) Nodes() []Solved { return sol.nodes }
+func (sol *Solution) Nodes() []Solved { return sol.table() }
 
 // At is the solved node with compiled number i.
-func (sol *Solution) At(i int) *Solved { return &sol.nodes[sol.pre[i]] }
+func (sol *Solution) At(i int) *Solved {
+	if i == 0 {
+		return sol.Root
+	}
+	return &sol.table()[sol.pre[i]]
+}
 
 // Value is the expected value of the whole tree, in the objective's terms.
 func (sol *Solution) Value() decimal.Decimal { return sol.Root.Value() }
@@ -156,7 +190,7 @@ func (s *Solved) Parent() *Solved {
 	if s.parent < 0 {
 		return nil
 	}
-	return &s.sol.nodes[s.parent]
+	return &s.sol.table()[s.parent]
 }
 
 // Via is the index of the parent's branch that leads here (-1 at the root).
@@ -165,7 +199,8 @@ func (s *Solved) Via() int { return s.sol.Compiled.Via(int(s.i)) }
 // Depth is the number of branches from the root to this node.
 func (s *Solved) Depth() int {
 	d := 0
-	for p := s.parent; p >= 0; p = s.sol.nodes[p].parent {
+	nodes := s.sol.table()
+	for p := s.parent; p >= 0; p = nodes[p].parent {
 		d++
 	}
 	return d
@@ -264,14 +299,15 @@ func (s *Solved) OnPolicy() bool {
 // Reachable reports, for every node in pre-order, whether the optimal policy
 // can reach it, in one forward sweep.
 func (sol *Solution) Reachable() []bool {
-	on := bulk.Make[bool](len(sol.nodes))
-	for i := range sol.nodes {
-		s := &sol.nodes[i]
+	nodes := sol.table()
+	on := bulk.Make[bool](len(nodes))
+	for i := range nodes {
+		s := &nodes[i]
 		if s.parent < 0 {
 			on[i] = true
 			continue
 		}
-		p := &sol.nodes[s.parent]
+		p := &nodes[s.parent]
 		on[i] = on[s.parent] && (p.Node.Kind != tree.KindDecision || p.Chosen() == s.Via())
 	}
 	return on
@@ -309,11 +345,12 @@ type EndPoint struct {
 func (sol *Solution) Ends() []EndPoint {
 	c := sol.Compiled
 	on := sol.Reachable()
-	pay := make([]decimal.Decimal, len(sol.nodes))
-	weight := make([]decimal.Decimal, len(sol.nodes)) // what a mass in the node's frame is worth at the root
+	nodes := sol.table()
+	pay := make([]decimal.Decimal, len(nodes))
+	weight := make([]decimal.Decimal, len(nodes)) // what a mass in the node's frame is worth at the root
 	var out []EndPoint
-	for x := range sol.nodes {
-		s := &sol.nodes[x]
+	for x := range nodes {
+		s := &nodes[x]
 		i := int(s.i)
 		own := c.Cash(i).Add(c.Payoff(i)).Sub(c.TestCostAt(i))
 		weight[x] = decimal.NewFromInt(1)

@@ -162,8 +162,9 @@ func (rs *RiskSolution) Cost() decimal.Decimal {
 // for each whether the risk-averse policy reaches it.
 func (rs *RiskSolution) Decisions() (ds []*Solved, averse []bool) {
 	ra, ev := rs.Averse.Reachable(), rs.EMV.Reachable()
-	for x := range rs.Averse.nodes {
-		if s := &rs.Averse.nodes[x]; s.Node.Kind == tree.KindDecision && (ra[x] || ev[x]) {
+	nodes := rs.Averse.table()
+	for x := range nodes {
+		if s := &nodes[x]; s.Node.Kind == tree.KindDecision && (ra[x] || ev[x]) {
 			ds, averse = append(ds, s), append(averse, ra[x])
 		}
 	}

@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"github.com/forkcast/forkcast/internal/bulk"
 	"io"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -182,18 +183,42 @@ const maxConditions = 4
 
 // conditions is the chance outcomes on the way to s ("Integration = Rework").
 func conditions(sol *eval.Solution, up []chanceLink, s *eval.Solved) string {
-	var parts []string
 	nodes := sol.Nodes()
-	for l := up[s.Index()]; l.node >= 0; l = up[l.node] {
+	l := up[s.Index()]
+	return conditionText(func() (*eval.Solved, int, bool) {
+		if l.node < 0 {
+			return nil, 0, false
+		}
+		ch, via := &nodes[l.node], l.via
+		l = up[l.node]
+		return ch, via, true
+	})
+}
+
+// conditionsAbove is conditions for a decision from PolicyDecisions.
+func conditionsAbove(c *eval.Condition) string {
+	return conditionText(func() (*eval.Solved, int, bool) {
+		if c == nil {
+			return nil, 0, false
+		}
+		ch, via := c.Chance, c.Via
+		c = c.Up
+		return ch, via, true
+	})
+}
+
+// conditionText writes the chance outcomes that next gives, the nearest
+// first, as "Market = High, Integration = Rework": the maxConditions
+// nearest, top first, after an ellipsis when there are more.
+func conditionText(next func() (chance *eval.Solved, via int, ok bool)) string {
+	var parts []string
+	for ch, via, ok := next(); ok; ch, via, ok = next() {
 		if len(parts) == maxConditions {
 			parts = append(parts, "…")
 			break
 		}
-		ch := &nodes[l.node]
-		parts = append(parts, fmt.Sprintf("%s = %s", ch.Node.Display(), quoted(ch.Node.Branches[l.via].Label)))
+		parts = append(parts, fmt.Sprintf("%s = %s", ch.Node.Display(), quoted(ch.Node.Branches[via].Label)))
 	}
-	for i, j := 0, len(parts)-1; i < j; i, j = i+1, j-1 {
-		parts[i], parts[j] = parts[j], parts[i]
-	}
+	slices.Reverse(parts)
 	return strings.Join(parts, ", ")
 }

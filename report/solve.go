@@ -106,16 +106,11 @@ func (p printer) cash(c decimal.Decimal) string {
 func (p printer) policy(sol *eval.Solution) {
 	w := p.t
 	n := 0
-	reach := sol.Reachable()
-	chanceAbove := nearestChance(sol)
-	for i := range sol.Nodes() {
-		s := &sol.Nodes()[i]
-		if s.Node.Kind != tree.KindDecision || !reach[i] {
-			continue
-		}
+	for _, d := range sol.PolicyDecisions() {
+		s := d.Solved
 		n++
 		w.f("  %d. %s", n, quoted(s.Node.Display()))
-		if cond := conditions(sol, chanceAbove, s); cond != "" {
+		if cond := conditionsAbove(d.Above); cond != "" {
 			w.f("  (if %s)", cond)
 		}
 		w.ln()
