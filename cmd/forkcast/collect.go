@@ -9,90 +9,86 @@ import (
 )
 
 // Reading a model builds one structure that lives until the process ends:
-// nearly every byte allocated while a large model is read and compiled is
+// nearly everything allocated while a large model is read and compiled is
 // still in use at the end. A garbage collection in that time marks all of
-// it and frees almost nothing, and the collector's default pacing runs one
-// each time the heap doubles (on an 864,000-node model that was a fifth of
-// the reading time; BENCHMARKS.md). So the CLI pauses the collector while
-// it reads, with a memory limit as the bound should a model make garbage
-// after all, and afterwards lets the heap double once more before the
-// next collection, as the default pacing would have.
+// it and frees little, and the collector's default pacing runs one each
+// time the heap doubles (on an 864,000-node model that was a fifth of the
+// reading time; BENCHMARKS.md). So while the CLI reads a model the
+// collector waits until the heap has grown elevenfold instead of twofold
+// (readingPercent): garbage stays bounded by the live heap, as it always
+// is, only by a larger multiple. A memory limit would bound it in bytes,
+// but a model that needs more than the limit (a big tree built by `use`
+// from a small file) would then be collected over and over. Afterwards
+// the next collection waits until the heap has grown by the usual share
+// of what it is then, and the usual setting returns once it has run.
 
-// pauseFloor is the least memory limit while the collector is paused: a
-// model of the default node limit holds about 1 GB.
-const pauseFloor = 1 << 30
+// readingPercent is the collector's setting while a model is read.
+const readingPercent = 1000
 
-// pauseTextFactor scales a file's size to the memory limit: a model holds
-// 5 to 15 bytes of memory for each byte of its text.
-const pauseTextFactor = 16
-
-var gcPause struct {
+var gcRelax struct {
 	sync.Mutex
-	depth   int   // pauses in progress (tests run commands at once)
-	percent int   // the collector's setting to return to
-	limit   int64 // the memory limit to return to
-	// stretch counts the settings stretched after a pause; stretched is
+	depth   int // readings in progress (tests run commands at once)
+	percent int // the collector's setting to return to
+	// stretch counts the settings stretched after a reading; stretched is
 	// set while the last one is in force (until the next collection).
 	stretch   int
 	stretched bool
 }
 
-// pauseCollection pauses garbage collection while a model of about size
-// bytes of text is read (size 0: unknown) and returns the function that
-// resumes it. Pauses nest; calling resume more than once is harmless.
-func pauseCollection(size int64) (resume func()) {
-	gcPause.Lock()
-	defer gcPause.Unlock()
-	if gcPause.depth == 0 {
-		gcPause.limit = debug.SetMemoryLimit(-1)
-		percent := debug.SetGCPercent(-1)
-		if !gcPause.stretched { // else the setting to return to is kept
-			gcPause.percent = percent
+// collectRarely makes the collector run rarely while a model is read and
+// returns the function that ends that. Calls nest; calling the function
+// it returns more than once is harmless. Where collection is off, or set
+// to run even more rarely, it changes nothing.
+func collectRarely() (done func()) {
+	gcRelax.Lock()
+	defer gcRelax.Unlock()
+	if gcRelax.depth == 0 {
+		percent := debug.SetGCPercent(readingPercent)
+		if !gcRelax.stretched { // else the setting to return to is kept
+			gcRelax.percent = percent
 		}
-		gcPause.stretched = false
-		bound := max(pauseFloor, pauseTextFactor*size)
-		if gcPause.limit < bound {
-			bound = gcPause.limit // the user's own limit is lower
+		gcRelax.stretched = false
+		if gcRelax.percent < 0 || gcRelax.percent >= readingPercent {
+			debug.SetGCPercent(gcRelax.percent)
 		}
-		debug.SetMemoryLimit(bound)
 	}
-	gcPause.depth++
-	return sync.OnceFunc(resumeCollection)
+	gcRelax.depth++
+	return sync.OnceFunc(collectAsUsual)
 }
 
-func resumeCollection() {
-	gcPause.Lock()
-	defer gcPause.Unlock()
-	gcPause.depth--
-	if gcPause.depth > 0 {
+func collectAsUsual() {
+	gcRelax.Lock()
+	defer gcRelax.Unlock()
+	gcRelax.depth--
+	if gcRelax.depth > 0 {
 		return
 	}
-	debug.SetMemoryLimit(gcPause.limit)
-	if gcPause.percent < 0 {
-		debug.SetGCPercent(gcPause.percent) // collection was off before
+	if gcRelax.percent < 0 || gcRelax.percent >= readingPercent {
+		debug.SetGCPercent(gcRelax.percent)
 		return
 	}
 	// Set back as it was, the collector would start at once on the whole
-	// model, measured against the small heap it saw before reading. Instead
-	// the next collection waits until the heap has grown by the usual share
-	// of what it is now, and the usual setting returns when it is over.
-	debug.SetGCPercent(stretchedPercent(gcPause.percent))
-	gcPause.stretch++
-	gcPause.stretched = true
+	// model, measured against the heap it last marked, early in the
+	// reading. Instead the next collection waits until the heap has grown
+	// by the usual share of what it is now, and the usual setting returns
+	// when it is over.
+	debug.SetGCPercent(stretchedPercent(gcRelax.percent))
+	gcRelax.stretch++
+	gcRelax.stretched = true
 	sentinel := new([64]byte) // too big for the tiny allocator, whose blocks are freed together
 	runtime.AddCleanup(sentinel, func(stretch int) {
-		gcPause.Lock()
-		defer gcPause.Unlock()
-		if gcPause.depth == 0 && gcPause.stretched && gcPause.stretch == stretch {
-			debug.SetGCPercent(gcPause.percent)
-			gcPause.stretched = false
+		gcRelax.Lock()
+		defer gcRelax.Unlock()
+		if gcRelax.depth == 0 && gcRelax.stretched && gcRelax.stretch == stretch {
+			debug.SetGCPercent(gcRelax.percent)
+			gcRelax.stretched = false
 		}
-	}, gcPause.stretch)
+	}, gcRelax.stretch)
 }
 
 // stretchedPercent is the collector setting that puts the next collection
 // where percent would put it had the last collection seen today's heap:
-// the goal is the heap marked last time × (1 + setting/100).
+// the goal is the heap marked last × (1 + setting/100).
 func stretchedPercent(percent int) int {
 	s := []metrics.Sample{{Name: "/gc/heap/live:bytes"}, {Name: "/memory/classes/heap/objects:bytes"}}
 	metrics.Read(s)

@@ -1,7 +1,6 @@
 package main
 
 import (
-	"math"
 	"runtime"
 	"runtime/debug"
 	"runtime/metrics"
@@ -9,16 +8,17 @@ import (
 	"time"
 )
 
-// gcSetting reads the collector's percent setting (by setting it back).
+// gcSetting reads the collector's percent setting by setting it back;
+// only while no cleanup of collectAsUsual can be pending.
 func gcSetting() int {
 	p := debug.SetGCPercent(100)
 	debug.SetGCPercent(p)
 	return p
 }
 
-// gogc reads the collector's setting without writing it: once a pause has
-// ended, the cleanup that sets it back runs on a goroutine of its own, and
-// a write here could undo that.
+// gogc reads the collector's setting without writing it: once a reading
+// has ended, the cleanup that sets it back runs on a goroutine of its
+// own, and a write here could undo that.
 func gogc() uint64 {
 	s := []metrics.Sample{{Name: "/gc/gogc:percent"}}
 	metrics.Read(s)
@@ -27,36 +27,29 @@ func gogc() uint64 {
 
 // Not parallel: it reads the process-wide collector settings, which
 // commands running at the same time would change.
-func TestPauseCollectionRestores(t *testing.T) {
+func TestCollectRarelyRestores(t *testing.T) {
 	defer debug.SetGCPercent(debug.SetGCPercent(100))
-	defer debug.SetMemoryLimit(debug.SetMemoryLimit(math.MaxInt64))
 
-	// A pause that begins while an earlier one's stretched setting is in
-	// force returns to the setting from before both.
-	pauseCollection(0)()
-	outer := pauseCollection(10 << 20)
-	if p := gcSetting(); p != -1 {
-		t.Fatalf("while paused the collector setting is %d, want -1 (off)", p)
+	// A reading that begins while an earlier one's stretched setting is
+	// in force returns to the setting from before both.
+	collectRarely()()
+	outer := collectRarely()
+	if p := gcSetting(); p != readingPercent {
+		t.Fatalf("while reading the collector setting is %d, want %d", p, readingPercent)
 	}
-	if l := debug.SetMemoryLimit(-1); l != pauseFloor {
-		t.Fatalf("while paused the memory limit is %d, want the floor %d", l, pauseFloor)
-	}
-	inner := pauseCollection(200 << 20)
+	inner := collectRarely()
 	inner()
 	inner() // a second call is harmless
-	if p := gcSetting(); p != -1 {
-		t.Fatalf("after the inner pause ended the setting is %d, want still -1", p)
+	if p := gcSetting(); p != readingPercent {
+		t.Fatalf("after the inner reading ended the setting is %d, want still %d", p, readingPercent)
 	}
 	keep := make([][]byte, 0, 64)
-	for range 64 { // a heap that grew while paused
+	for range 64 { // a heap that grew while reading
 		keep = append(keep, make([]byte, 1<<20))
 	}
 	outer()
-	if l := debug.SetMemoryLimit(-1); l != math.MaxInt64 {
-		t.Fatalf("after the pause the memory limit is %d, want it back at %d", l, int64(math.MaxInt64))
-	}
 	if p := gogc(); p < 100 {
-		t.Fatalf("after the pause the setting is %d, want at least 100 until the next collection", p)
+		t.Fatalf("after the reading the setting is %d, want at least 100 until the next collection", p)
 	}
 	runtime.GC()
 	deadline := time.Now().Add(5 * time.Second)
@@ -68,6 +61,20 @@ func TestPauseCollectionRestores(t *testing.T) {
 		time.Sleep(10 * time.Millisecond)
 	}
 	runtime.KeepAlive(keep)
+
+	// A setting of the user's that collects even more rarely, or never,
+	// is left as it is.
+	for _, user := range []int{-1, 5000} {
+		debug.SetGCPercent(user)
+		done := collectRarely()
+		if p := gcSetting(); p != user {
+			t.Errorf("with the user's setting %d, reading sets %d", user, p)
+		}
+		done()
+		if p := gcSetting(); p != user {
+			t.Errorf("with the user's setting %d, after reading it is %d", user, p)
+		}
+	}
 }
 
 func TestStretchedPercent(t *testing.T) {

@@ -95,23 +95,10 @@ func streamed(name string) bool {
 	return err == nil && st.Mode().IsRegular()
 }
 
-// sourceSize is the size of the file name, or 0 when it is no regular
-// file (standard input, a bundled example).
-func sourceSize(name string) int64 {
-	if name == "-" {
-		return 0
-	}
-	st, err := os.Stat(name)
-	if err != nil || !st.Mode().IsRegular() {
-		return 0
-	}
-	return st.Size()
-}
-
 // loadSource reads and compiles FILE. src is its text when it is needed
 // afterwards: to show diagnostics, or --set's problems (needText).
 func loadSource(c *cli.Context, name string, limit int, needText bool) (cm *compiled.Model, ds tree.Diagnostics, src []byte, err error) {
-	defer pauseCollection(sourceSize(name))()
+	defer collectRarely()()
 	if streamed(name) {
 		// A model file is read as a stream, so that a large one costs
 		// memory for the model and not for its text as well; the text is
