@@ -448,22 +448,23 @@ func (c *Model) payoffAt(i int) exact.Num {
 }
 
 // weigh computes E = mass × (cash + own) for every node at one scale: the
-// most decimal places any E has. A first pass finds that scale and a
-// second writes E at it, computing each E again rather than keeping them
-// all: a product costs less than an array of a large model's size.
+// most decimal places any E has. The E are kept until the scale is known
+// (computing each again instead would save an array the model's size, but
+// cost twice the products where figures are big numbers, as in the
+// exact confirmation of a switch).
 func (c *Model) weigh(d *derived) {
 	n := len(d.mass)
 	pool := c.pool
-	eAt := func(i int) exact.Num {
-		v := pool.Add(c.cash[i], c.own(i))
-		if v.IsZero() {
-			return exact.Zero
-		}
-		return pool.Mul(d.mass[i], v)
-	}
+	es := bulk.Make[exact.Num](n)
 	scale := int32(0)
 	for i := 0; i < n; i++ {
-		if p := pool.Places(eAt(i)); p > scale {
+		v := pool.Add(c.cash[i], c.own(i))
+		if v.IsZero() {
+			continue
+		}
+		e := pool.Mul(d.mass[i], v)
+		es[i] = e
+		if p := pool.Places(e); p > scale {
 			scale = p
 		}
 	}
@@ -471,8 +472,7 @@ func (c *Model) weigh(d *derived) {
 	if scale <= 38 {
 		w := bulk.Make[exact.Wide](n)
 		ok := true
-		for i := range w {
-			e := eAt(i)
+		for i, e := range es {
 			if e.IsZero() {
 				continue
 			}
@@ -486,7 +486,7 @@ func (c *Model) weigh(d *derived) {
 		}
 	}
 	d.eBig = make([]*big.Int, n)
-	for i := range d.eBig {
-		d.eBig[i], _ = pool.BigOf(eAt(i), scale)
+	for i, e := range es {
+		d.eBig[i], _ = pool.BigOf(e, scale)
 	}
 }

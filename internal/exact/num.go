@@ -110,10 +110,10 @@ func trim(d decimal.Decimal) decimal.Decimal {
 	if c.Sign() == 0 {
 		return decimal.Zero
 	}
-	var q, r big.Int
-	if r.Rem(c, bigTen).Sign() != 0 {
-		return d
+	if !tenDivides(c) {
+		return d // most coefficients: no division needed to know
 	}
+	var q, r big.Int
 	e := d.Exponent()
 	for _, tp := range trimPowers {
 		for {
@@ -126,6 +126,20 @@ func trim(d decimal.Decimal) decimal.Decimal {
 		}
 	}
 	return decimal.NewFromBigInt(c, e)
+}
+
+// tenDivides reports whether 10 divides c, from its words alone: 2 does
+// when the lowest bit is clear, and 5 when the sum of the 64-bit words
+// is a multiple of 5 (a word is 2³² or 2⁶⁴, both ≡ 1 mod 5).
+func tenDivides(c *big.Int) bool {
+	if c.Bit(0) != 0 {
+		return false
+	}
+	var sum uint64
+	for _, w := range c.Bits() {
+		sum += uint64(w) % 5
+	}
+	return sum%5 == 0
 }
 
 // Dec is n as a decimal.

@@ -1,6 +1,8 @@
 package exact
 
 import (
+	"math/big"
+	"math/rand"
 	"strconv"
 	"testing"
 
@@ -25,6 +27,27 @@ func TestFloat64(t *testing.T) {
 			if got := p.Float64(n); got != want {
 				t.Errorf("%s: %v, want %v", d, got, want)
 			}
+		}
+	}
+}
+
+// tenDivides is checked against math/big's remainder on random
+// coefficients of one to five words, both signs, multiples of ten among
+// them.
+func TestTenDividesMatchesRem(t *testing.T) {
+	rng := rand.New(rand.NewSource(7))
+	ten := big.NewInt(10)
+	for i := 0; i < 20000; i++ {
+		c := new(big.Int).Rand(rng, new(big.Int).Lsh(big.NewInt(1), uint(1+rng.Intn(320))))
+		if i%3 == 0 {
+			c.Mul(c, ten)
+		}
+		if i%2 == 1 {
+			c.Neg(c)
+		}
+		want := new(big.Int).Rem(c, ten).Sign() == 0
+		if got := tenDivides(c); got != want {
+			t.Fatalf("tenDivides(%s) = %v, want %v", c, got, want)
 		}
 	}
 }
