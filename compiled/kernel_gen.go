@@ -89,19 +89,28 @@ func rollbackBig(o bigOps, sh *shape, restart []bool, rho []*big.Int, e, t []*bi
 	for i := len(kind) - 1; i >= 0; i-- {
 		from, to := first[i], first[i+1]
 		acc := e[i]
+		own := false
 		switch kind[i] {
 		case tree.KindChance:
 			if restart == nil {
 				for _, v := range t[from:to] {
-					acc = new(big.Int).Add(acc, v)
+					if own {
+						acc.Add(acc, v)
+					} else {
+						acc, own = new(big.Int).Add(acc, v), true
+					}
 				}
 				break
 			}
 			for k := from; k < to; k++ {
 				if !restart[k] {
-					acc = new(big.Int).Add(acc, t[k])
+					if own {
+						acc.Add(acc, t[k])
+					} else {
+						acc, own = new(big.Int).Add(acc, t[k]), true
+					}
 				} else if rho != nil {
-					acc = o.addScaled(acc, t[k], rho[k])
+					acc, own = o.addScaled(acc, t[k], rho[k]), true
 				}
 			}
 		case tree.KindDecision:
@@ -125,7 +134,11 @@ func rollbackBig(o bigOps, sh *shape, restart []bool, rho []*big.Int, e, t []*bi
 				b |= ties
 			}
 			best[i] = b
-			acc = new(big.Int).Add(acc, t[from+b&^tiedBit])
+			if own {
+				acc.Add(acc, t[from+b&^tiedBit])
+			} else {
+				acc, own = new(big.Int).Add(acc, t[from+b&^tiedBit]), true
+			}
 		}
 		t[i] = acc
 	}

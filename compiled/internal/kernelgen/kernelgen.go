@@ -27,6 +27,7 @@ type instance struct {
 	Ops          bool // the function takes o bigOps (tolerant comparison)
 	Rho          bool // frames of their own carry a weight rho
 	Checked      bool // additions may overflow
+	Owned        bool // acc is a pointer: the first addition makes it the node's own, later ones add in place
 	Add          func(x string) string
 	AddScaled    func(x, r string) string
 	Less, Equal  func(a, b string) string
@@ -42,9 +43,14 @@ var instances = []instance{
 		Equal: func(a, b string) string { return fmt.Sprintf("%s == %s", a, b) },
 	},
 	{
-		Name: "Big", Doc: "big integers, for figures that outgrow 128 bits\n// (o compares them, tolerantly in a model with rounded figures)", T: "*big.Int", Ops: true, Rho: true,
-		Add:       func(x string) string { return fmt.Sprintf("acc = new(big.Int).Add(acc, %s)", x) },
-		AddScaled: func(x, r string) string { return fmt.Sprintf("acc = o.addScaled(acc, %s, %s)", x, r) },
+		Name: "Big", Doc: "big integers, for figures that outgrow 128 bits\n// (o compares them, tolerantly in a model with rounded figures)", T: "*big.Int", Ops: true, Rho: true, Owned: true,
+		// acc starts as e[i], which other rollbacks share: the first
+		// addition makes a new integer, the later ones add into it (one
+		// allocation a node with children instead of one an addition).
+		Add: func(x string) string {
+			return fmt.Sprintf("if own {\nacc.Add(acc, %s)\n} else {\nacc, own = new(big.Int).Add(acc, %s), true\n}", x, x)
+		},
+		AddScaled: func(x, r string) string { return fmt.Sprintf("acc, own = o.addScaled(acc, %s, %s), true", x, r) },
 		Less:      func(a, b string) string { return fmt.Sprintf("o.less(%s, %s)", a, b) },
 		Equal:     func(a, b string) string { return fmt.Sprintf("o.equal(%s, %s)", a, b) },
 	},
