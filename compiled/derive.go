@@ -487,6 +487,10 @@ func (c *Model) weigh(d *derived) {
 	}
 	d.eBig = make([]*big.Int, n)
 	for i, e := range es {
+		if e.IsZero() {
+			d.eBig[i] = bigZero
+			continue
+		}
 		d.eBig[i], _ = pool.BigOf(e, scale)
 	}
 }

@@ -79,6 +79,10 @@ func (c *Model) rollbackInto(dst *Rollback, policy []int32) *Rollback {
 	return r
 }
 
+// bigZero stands for every E of 0 among big integers. Nothing writes to
+// an E: the kernel adds into integers of its own (rollbackBig).
+var bigZero = new(big.Int)
+
 // bigE is E as big integers, made once when first needed (figures that
 // outgrew 128 bits, or sums that overflowed them).
 func (c *Model) bigE() []*big.Int {
@@ -90,11 +94,11 @@ func (c *Model) bigE() []*big.Int {
 			switch {
 			case d.eBig != nil:
 				d.bigE[i] = d.eBig[i]
-			case d.e != nil:
+			case d.e != nil && d.e[i] != exact.Wide{}:
 				d.bigE[i] = d.e[i].Big()
 			}
 			if d.bigE[i] == nil {
-				d.bigE[i] = new(big.Int)
+				d.bigE[i] = bigZero
 			}
 		}
 	})
