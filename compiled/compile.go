@@ -2,9 +2,9 @@ package compiled
 
 import (
 	"fmt"
-	"github.com/forkcast/forkcast/internal/bulk"
 	"strconv"
 
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/forkcast/forkcast/internal/exact"
 	"github.com/forkcast/forkcast/tree"
 )

@@ -2,10 +2,10 @@ package compiled
 
 import (
 	"fmt"
-	"github.com/forkcast/forkcast/internal/bulk"
 	"math/big"
 	"sync"
 
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/forkcast/forkcast/internal/exact"
 	"github.com/forkcast/forkcast/tree"
 )

@@ -3,9 +3,9 @@ package compiled
 import (
 	"encoding/binary"
 	"fmt"
-	"github.com/forkcast/forkcast/internal/bulk"
 
 	"github.com/forkcast/forkcast/dist"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/forkcast/forkcast/internal/exact"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"

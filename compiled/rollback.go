@@ -1,10 +1,10 @@
 package compiled
 
 import (
-	"github.com/forkcast/forkcast/internal/bulk"
 	"math"
 	"math/big"
 
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/forkcast/forkcast/internal/exact"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"

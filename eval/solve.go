@@ -10,10 +10,9 @@ import (
 	"io"
 	"sync"
 
-	"github.com/forkcast/forkcast/internal/bulk"
-
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/interchange"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )

@@ -2,11 +2,11 @@ package lang
 
 import (
 	"fmt"
-	"github.com/forkcast/forkcast/internal/bulk"
 	"strconv"
 	"strings"
 
 	"github.com/alecthomas/participle/v2/lexer"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/forkcast/forkcast/tree"
 	"github.com/shopspring/decimal"
 )

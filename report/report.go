@@ -5,7 +5,6 @@ import (
 	"bytes"
 	"encoding/json"
 	"fmt"
-	"github.com/forkcast/forkcast/internal/bulk"
 	"io"
 	"slices"
 	"sort"
@@ -13,6 +12,7 @@ import (
 	"strings"
 
 	"github.com/forkcast/forkcast/eval"
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/forkcast/forkcast/tree"
 )
 

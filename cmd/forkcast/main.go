@@ -23,6 +23,7 @@ import (
 	"strings"
 	"unicode"
 
+	"github.com/forkcast/forkcast/internal/bulk"
 	"github.com/urfave/cli/v2"
 	"github.com/xrash/smetrics"
 )
@@ -50,7 +51,12 @@ const exitStatusHelp = "Exit status: 0 success; 1 the model has errors, or a fil
 	"130 interrupted with Ctrl-C before the work was done (nothing is written,\n" +
 	"except by simulate, which reports the runs done)."
 
-func main() { os.Exit(mainStatus(os.Args)) }
+func main() {
+	// A run reads one model, works on it and exits: its large arrays are
+	// better in huge pages (internal/bulk).
+	bulk.UseHugePages(true)
+	os.Exit(mainStatus(os.Args))
+}
 
 // mainStatus runs the command as the process does: Ctrl-C (SIGINT)
 // cancels the running analysis through its context, which then stops

@@ -6,11 +6,26 @@
 // kernel backs fresh memory a 4 KiB page at a time, one page fault each;
 // for such a model those faults cost more CPU time than reading the text.
 // Marking a large array for transparent huge pages (2 MiB) before it is
-// first written removes nearly all of them. Elsewhere, or where the
-// system has huge pages turned off, Make is a plain make.
+// first written removes nearly all of them.
+//
+// The marking is off until UseHugePages turns it on, as the command-line
+// tool does: a process that reads one model and exits gains, while in a
+// long-running program the advice stays on heap memory after the arrays
+// are freed, and the system may then keep more of it (the Go runtime
+// gives no such advice itself for that reason). Elsewhere than Linux, or
+// where the system has huge pages turned off, Make is a plain make.
 package bulk
 
-import "unsafe"
+import (
+	"sync/atomic"
+	"unsafe"
+)
+
+var hugePages atomic.Bool
+
+// UseHugePages turns the marking of large arrays for huge pages on or off
+// for the whole process (see the package comment); it is off at first.
+func UseHugePages(on bool) { hugePages.Store(on) }
 
 // Threshold is the size in bytes from which Make asks for huge pages: an
 // array needs a whole, aligned huge page (2 MiB) inside it for the request
@@ -18,11 +33,11 @@ import "unsafe"
 const Threshold = 2 << 20
 
 // Make returns make([]T, n), with memory of Threshold bytes or more
-// marked for huge pages (see the package comment).
+// marked for huge pages when UseHugePages has turned that on.
 func Make[T any](n int) []T {
 	s := make([]T, n)
 	var zero T
-	if size := uintptr(n) * unsafe.Sizeof(zero); n > 0 && size >= Threshold {
+	if size := uintptr(n) * unsafe.Sizeof(zero); n > 0 && size >= Threshold && hugePages.Load() {
 		advise(unsafe.Pointer(unsafe.SliceData(s)), size)
 	}
 	return s

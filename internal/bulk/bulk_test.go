@@ -1,6 +1,7 @@
 package bulk
 
 import (
+	"runtime"
 	"slices"
 	"testing"
 )
@@ -109,4 +110,38 @@ func TestChunkBounds(t *testing.T) {
 	if got := Chunk[[64 << 20]byte](0); got != 8 {
 		t.Errorf("Chunk of a huge type = %d, want the least, 8", got)
 	}
+}
+
+// Arrays marked for huge pages are made while the collector runs on
+// another goroutine and small objects come and go around them: the advice
+// reaches past the array's ends, and no pointer to those ends may exist
+// when the collector looks (an earlier version made one, and the runtime
+// stopped with "found bad pointer in Go heap").
+func TestMakeUnderCollection(t *testing.T) {
+	UseHugePages(true)
+	defer UseHugePages(false)
+	stop := make(chan struct{})
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		for {
+			select {
+			case <-stop:
+				return
+			default:
+				runtime.GC()
+			}
+		}
+	}()
+	var keep [][]byte
+	for i := range 300 {
+		s := Make[byte](Threshold + (i%7)*8192)
+		s[len(s)-1] = 1
+		keep = append(keep, make([]byte, 40<<10+i%50<<10))
+		if len(keep) > 20 {
+			keep = keep[1:]
+		}
+	}
+	close(stop)
+	<-done
 }
