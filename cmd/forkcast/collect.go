@@ -2,10 +2,10 @@ package main
 
 import (
 	"math"
-	"runtime"
 	"runtime/debug"
 	"runtime/metrics"
 	"sync"
+	"time"
 )
 
 // Reading a model builds one structure that lives until the process ends:
@@ -30,7 +30,7 @@ var gcRelax struct {
 	depth   int // readings in progress (tests run commands at once)
 	percent int // the collector's setting to return to
 	// stretch counts the settings stretched after a reading; stretched is
-	// set while the last one is in force (until the next collection).
+	// set while the last one is in force (until a collection has ended).
 	stretch   int
 	stretched bool
 }
@@ -43,13 +43,13 @@ func collectRarely() (done func()) {
 	gcRelax.Lock()
 	defer gcRelax.Unlock()
 	if gcRelax.depth == 0 {
-		percent := debug.SetGCPercent(readingPercent)
-		if !gcRelax.stretched { // else the setting to return to is kept
-			gcRelax.percent = percent
+		percent := gcRelax.percent // the setting to return to, while stretched
+		if !gcRelax.stretched {
+			percent = gcPercent()
 		}
-		gcRelax.stretched = false
-		if gcRelax.percent < 0 || gcRelax.percent >= readingPercent {
-			debug.SetGCPercent(gcRelax.percent)
+		gcRelax.percent, gcRelax.stretched = percent, false
+		if percent >= 0 && percent < readingPercent {
+			debug.SetGCPercent(readingPercent)
 		}
 	}
 	gcRelax.depth++
@@ -71,19 +71,67 @@ func collectAsUsual() {
 	// model, measured against the heap it last marked, early in the
 	// reading. Instead the next collection waits until the heap has grown
 	// by the usual share of what it is now, and the usual setting returns
-	// when it is over.
+	// as soon as a collection has ended: the goal is then worked out again
+	// from the heap that collection marked. (A collection already under
+	// way counts too: its goal from the stretched setting is undone at
+	// once.)
+	cycles := gcCycles()
 	debug.SetGCPercent(stretchedPercent(gcRelax.percent))
 	gcRelax.stretch++
 	gcRelax.stretched = true
-	sentinel := new([64]byte) // too big for the tiny allocator, whose blocks are freed together
-	runtime.AddCleanup(sentinel, func(stretch int) {
+	go restoreAfterCollection(gcRelax.stretch, cycles)
+}
+
+// restoreAfterCollection sets the usual collector setting back once a
+// collection has ended after cycles (the count when the setting was
+// stretched), unless another reading has begun or ended since.
+func restoreAfterCollection(stretch int, cycles uint64) {
+	for {
+		time.Sleep(restorePoll)
 		gcRelax.Lock()
-		defer gcRelax.Unlock()
-		if gcRelax.depth == 0 && gcRelax.stretched && gcRelax.stretch == stretch {
+		if gcRelax.depth > 0 || !gcRelax.stretched || gcRelax.stretch != stretch {
+			gcRelax.Unlock()
+			return
+		}
+		if gcCycles() > cycles {
 			debug.SetGCPercent(gcRelax.percent)
 			gcRelax.stretched = false
+			gcRelax.Unlock()
+			return
 		}
-	}, gcRelax.stretch)
+		gcRelax.Unlock()
+	}
+}
+
+// restorePoll is how often restoreAfterCollection looks for a finished
+// collection: the heap can grow by little in that time.
+const restorePoll = 5 * time.Millisecond
+
+// gcCycles is the number of collections completed so far.
+func gcCycles() uint64 {
+	s := []metrics.Sample{{Name: "/gc/cycles/total:gc-cycles"}}
+	metrics.Read(s)
+	if s[0].Value.Kind() != metrics.KindUint64 {
+		return 0
+	}
+	return s[0].Value.Uint64()
+}
+
+// gcPercent is the collector's setting, read without changing it (a
+// change, even one undone at once, could let a collection start): -1 when
+// collection is off.
+func gcPercent() int {
+	s := []metrics.Sample{{Name: "/gc/gogc:percent"}}
+	metrics.Read(s)
+	if s[0].Value.Kind() != metrics.KindUint64 {
+		p := debug.SetGCPercent(100) // no such metric: read it the old way
+		debug.SetGCPercent(p)
+		return p
+	}
+	if v := s[0].Value.Uint64(); v <= math.MaxInt32 {
+		return int(v)
+	}
+	return -1
 }
 
 // stretchedPercent is the collector setting that puts the next collection

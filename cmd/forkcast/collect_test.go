@@ -77,6 +77,35 @@ func TestCollectRarelyRestores(t *testing.T) {
 	}
 }
 
+// A collection already under way when a reading ends finishes with the
+// stretched setting; the usual one must be back as soon as it has ended,
+// not only after the collection that follows (which the stretched goal
+// would put far off).
+func TestCollectAsUsualAfterACollectionUnderWay(t *testing.T) {
+	defer debug.SetGCPercent(debug.SetGCPercent(100))
+	done := collectRarely()
+	keep := make([][]byte, 0, 40)
+	for range 40 {
+		keep = append(keep, make([]byte, 1<<20))
+	}
+	collected := make(chan struct{})
+	go func() {
+		runtime.GC()
+		close(collected)
+	}()
+	time.Sleep(time.Millisecond / 2)
+	done()
+	<-collected
+	deadline := time.Now().Add(2 * time.Second)
+	for gogc() != 100 {
+		if time.Now().After(deadline) {
+			t.Fatalf("the setting is %d after the collection under way ended, want 100 without another collection", gogc())
+		}
+		time.Sleep(time.Millisecond)
+	}
+	runtime.KeepAlive(keep)
+}
+
 func TestStretchedPercent(t *testing.T) {
 	// The goal of the collector is the heap marked last × (1 + p/100)
 	// (the runtime/debug.SetGCPercent documentation): a heap that has
