@@ -13,12 +13,7 @@ import (
 func TestPolicyDecisionsMatchesTheWholeTable(t *testing.T) {
 	rng := rand.New(rand.NewSource(3))
 	for n := 0; n < 400; n++ {
-		m := &tree.Model{}
-		money := tree.Gain
-		if n%2 == 1 {
-			m.Objective, money = tree.Min, tree.Cost
-		}
-		m.Root = randomTree(rng, 2+rng.Intn(300), money)
+		m := objectiveModel(rng, n, 2+rng.Intn(300))
 		sol := mustSolve(t, m)
 		got := sol.PolicyDecisions() // before anything fills the table
 		var want []*Solved

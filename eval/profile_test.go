@@ -100,12 +100,7 @@ func TestProfilesMatchBigRat(t *testing.T) {
 		trees = 200
 	}
 	for i := 0; i < trees; i++ {
-		m := &tree.Model{}
-		money := tree.Gain
-		if i%2 == 1 {
-			m.Objective, money = tree.Min, tree.Cost
-		}
-		m.Root = randomTree(rng, 2+rng.Intn(120), money)
+		m := objectiveModel(rng, i, 2+rng.Intn(120))
 		sol := mustSolve(t, m)
 		threshold := decimal.New(rng.Int63n(2001)-1000, 0)
 		ps, err := RiskProfiles(context.Background(), sol, ProfileOptions{Threshold: &threshold})

@@ -357,6 +357,19 @@ func rat(x decimal.Decimal) *big.Rat {
 	return r
 }
 
+// objectiveModel is a model of a random tree of about size nodes: under
+// max built of gains for even i, under min built of costs for odd i
+// (under min the figures are costs).
+func objectiveModel(rng *rand.Rand, i, size int) *tree.Model {
+	m := &tree.Model{}
+	money := tree.Gain
+	if i%2 == 1 {
+		m.Objective, money = tree.Min, tree.Cost
+	}
+	m.Root = randomTree(rng, size, money)
+	return m
+}
+
 // randomTree makes a random tree of about size nodes with probabilities
 // in hundredths (the last sibling takes the rest) and cash with up to two
 // decimals, some of it negative.
@@ -406,13 +419,7 @@ func TestRollbackMatchesBigRat(t *testing.T) {
 		trees = 300
 	}
 	for i := 0; i < trees; i++ {
-		// Under min the figures are costs, so the tree is built of costs.
-		m := &tree.Model{}
-		money := tree.Gain
-		if i%2 == 1 {
-			m.Objective, money = tree.Min, tree.Cost
-		}
-		m.Root = randomTree(rng, 2+rng.Intn(200), money)
+		m := objectiveModel(rng, i, 2+rng.Intn(200))
 		sol := mustSolve(t, m)
 		want := ratRollback(m, m.Root)
 		if got := rat(sol.Value()); got.Cmp(want) != 0 {

@@ -127,12 +127,7 @@ func TestCertaintyEquivalentRandomTrees(t *testing.T) {
 		trees = 100
 	}
 	for i := 0; i < trees; i++ {
-		m := &tree.Model{}
-		money := tree.Gain
-		if i%2 == 1 {
-			m.Objective, money = tree.Min, tree.Cost
-		}
-		m.Root = randomTree(rng, 2+rng.Intn(80), money)
+		m := objectiveModel(rng, i, 2+rng.Intn(80))
 		sol := mustSolve(t, m)
 		r := math.Pow(10, 2+4*rng.Float64())
 		R := decimal.NewFromFloat(r)
