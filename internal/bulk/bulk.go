@@ -27,9 +27,9 @@ var hugePages atomic.Bool
 // for the whole process (see the package comment); it is off at first.
 func UseHugePages(on bool) { hugePages.Store(on) }
 
-// Threshold is the size in bytes from which Make asks for huge pages: an
-// array needs a whole, aligned huge page (2 MiB) inside it for the request
-// to do anything, and asking costs a system call.
+// Threshold is the size in bytes from which Make asks for huge pages (2
+// MiB, the size of one): a smaller array would mostly ask for its
+// neighbours' pages, and asking costs a system call.
 const Threshold = 2 << 20
 
 // Make returns make([]T, n), with memory of Threshold bytes or more
@@ -46,9 +46,8 @@ func Make[T any](n int) []T {
 // Chunk is the number of T to allocate at once for a stream of values
 // whose chunk grows from small: it doubles from 8 up to a chunk of about
 // 32 MiB, so a small model takes small chunks and a big one soon takes
-// chunks that Make marks nearly whole (only the ends of a chunk short of
-// a huge-page boundary are not). Memory of a chunk that is never written
-// costs nothing but address space.
+// chunks that Make marks. Memory of a chunk that is never written costs
+// nothing but address space.
 func Chunk[T any](last int) int {
 	var zero T
 	most := max(int((32<<20)/max(unsafe.Sizeof(zero), 1)), 8)
