@@ -145,3 +145,36 @@ func ExampleSolveRiskAverse() {
 	// Sure: EMV 40, CE 40, premium 0
 	// take: Sure at a cost of 10
 }
+
+// List the decisions the best policy reaches, each with the chance
+// outcomes that lead to it, without walking the rest of the tree.
+func ExampleSolution_PolicyDecisions() {
+	n := func(s string) tree.Expr { return tree.Num(decimal.RequireFromString(s)) }
+	m := &tree.Model{Root: tree.Decision("Pilot",
+		tree.Choice("Run a pilot", tree.Cost(n("20")), tree.Chance("Pilot result",
+			tree.Outcome("Good", n("0.6"), tree.Gain(n("0")), tree.Decision("Roll out",
+				tree.Choice("Roll out", tree.Gain(n("300")), nil),
+				tree.Choice("Stop", tree.Gain(n("0")), nil))),
+			tree.RestOutcome("Poor", tree.Gain(n("0")), tree.Decision("Salvage",
+				tree.Choice("Sell the kit", tree.Gain(n("15")), nil),
+				tree.Choice("Scrap", tree.Gain(n("0")), nil))))),
+		tree.Choice("Skip it", tree.Gain(n("100")), nil),
+	)}
+	c, ds := compiled.Compile(m)
+	if ds.HasErrors() {
+		fmt.Println(ds)
+		return
+	}
+	sol, _ := eval.Solve(c)
+	for _, d := range sol.PolicyDecisions() {
+		fmt.Printf("%s: take %q", d.Node.Label, d.Node.Branches[d.Chosen()].Label)
+		for c := d.Above; c != nil; c = c.Up {
+			fmt.Printf(" (if %s = %s)", c.Chance.Node.Label, c.Chance.Node.Branches[c.Via].Label)
+		}
+		fmt.Println()
+	}
+	// Output:
+	// Pilot: take "Run a pilot"
+	// Roll out: take "Roll out" (if Pilot result = Good)
+	// Salvage: take "Sell the kit" (if Pilot result = Poor)
+}
