@@ -3,7 +3,6 @@ package report
 import (
 	"fmt"
 	"io"
-	"strings"
 
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
@@ -137,10 +136,7 @@ func (r *BreakevenReport) WriteText(out io.Writer) error {
 		w.ln(m.Title)
 	}
 	w.f("breakeven of %s, now %s, over %s .. %s\n", be.What, f.show(be.Current, true), f.show(be.Low, true), f.show(be.High, true))
-	w.f("watching decision %s", quoted(be.Decision.Display()))
-	if len(be.Path) > 0 {
-		w.f(" (after %s)", strings.Join(quotedAll(be.Path), " → "))
-	}
+	w.f("watching decision %s%s", quoted(be.Decision.Display()), afterPath(be.Path))
 	w.ln()
 	if be.Adjust != "" {
 		w.f("as it moves, %s\n", be.Adjust)

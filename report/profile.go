@@ -113,10 +113,7 @@ func (r *ProfileReport) WriteText(out io.Writer) error {
 	if ps.Decision == nil {
 		w.f("risk profile of the whole tree (it has no decision)\n")
 	} else {
-		w.f("risk profiles of decision %s", quoted(ps.Decision.Display()))
-		if len(ps.Path) > 0 {
-			w.f(" (after %s)", strings.Join(quotedAll(ps.Path), " → "))
-		}
+		w.f("risk profiles of decision %s%s", quoted(ps.Decision.Display()), afterPath(ps.Path))
 		w.ln()
 		after := "the best choices made after it"
 		if r.Options.Risk != nil {

@@ -105,6 +105,16 @@ func objectiveText(m *tree.Model) string {
 
 func quoted(s string) string { return strconv.Quote(s) }
 
+// afterPath is ` (after "A" → "B")` for the branches taken from the root
+// to a watched decision, and "" for a decision at the root.
+func afterPath(path []string) string {
+	if len(path) == 0 {
+		return ""
+	}
+	return " (after " + strings.Join(quotedAll(path), " → ") + ")"
+}
+
+// quotedAll quotes each of xs.
 func quotedAll(xs []string) []string {
 	out := make([]string, len(xs))
 	for i, x := range xs {

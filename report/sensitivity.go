@@ -111,10 +111,7 @@ func (r *SensitivityReport) WriteText(out io.Writer) error {
 	}
 	w.f("one-way sensitivity of the %s%s: %s with every input at its base value\n", words.value, of, render.Money(s.Base, cur))
 	if s.Decision != nil {
-		w.f("watching decision %s", quoted(s.Decision.Display()))
-		if len(s.Path) > 0 {
-			w.f(" (after %s)", strings.Join(quotedAll(s.Path), " → "))
-		}
+		w.f("watching decision %s%s", quoted(s.Decision.Display()), afterPath(s.Path))
 		w.f(" for changes of the best option, now %s\n", quoted(s.Options[s.BaseBest]))
 	}
 	if !s.Exact {

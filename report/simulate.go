@@ -109,10 +109,7 @@ func (r *SimulateReport) WriteText(out io.Writer) error {
 	if s.Decision == nil {
 		w.ln("watching:   the whole tree (it has no decision)")
 	} else {
-		w.f("watching:   decision %s", quoted(s.Decision.Display()))
-		if len(s.Path) > 0 {
-			w.f(" (after %s)", strings.Join(quotedAll(s.Path), " → "))
-		}
+		w.f("watching:   decision %s%s", quoted(s.Decision.Display()), afterPath(s.Path))
 		w.ln()
 	}
 	for _, n := range s.Notes {

@@ -54,10 +54,7 @@ func axisHeading(ax eval.SweepAxis) string {
 
 // watching writes which decision is watched.
 func watching(w textOut, d *tree.Node, path []string) {
-	w.f("watching decision %s", quoted(d.Display()))
-	if len(path) > 0 {
-		w.f(" (after %s)", strings.Join(quotedAll(path), " → "))
-	}
+	w.f("watching decision %s%s", quoted(d.Display()), afterPath(path))
 	w.ln()
 }
 

@@ -2,7 +2,6 @@ package report
 
 import (
 	"io"
-	"strings"
 
 	"github.com/forkcast/forkcast/compiled"
 	"github.com/forkcast/forkcast/eval"
@@ -50,10 +49,7 @@ func (r *ToleranceReport) WriteText(out io.Writer) error {
 		w.ln(m.Title)
 	}
 	w.f("breakeven of the risk tolerance, over %s .. %s\n", money(tb.Low), money(tb.High))
-	w.f("watching decision %s", quoted(tb.Decision.Display()))
-	if len(tb.Path) > 0 {
-		w.f(" (after %s)", strings.Join(quotedAll(tb.Path), " → "))
-	}
+	w.f("watching decision %s%s", quoted(tb.Decision.Display()), afterPath(tb.Path))
 	w.ln()
 	if tb.Default {
 		what := "payoffs"
