@@ -195,10 +195,14 @@ func (r *VOIReport) writeTest(w textOut, tv *eval.TestValue, words voiWords) {
 	if !tb.Exact {
 		w.f("    (posteriors shown rounded; computed to %d decimal places)\n", compiled.DivisionScale)
 	}
+	var up []chanceLink // every site's decision is of one solution: one sweep serves them all
 	for _, s := range tv.Sites {
 		d := s.Decision
 		w.f("  At decision %s, branch %s (the alternative: %s)", quoted(d.Node.Display()), quoted(d.Node.Branches[s.Branch].Label), quoted(d.Node.Branches[s.Alternative].Label))
-		if cond := conditions(d.Solution(), nearestChance(d.Solution()), d); cond != "" {
+		if up == nil {
+			up = nearestChance(d.Solution())
+		}
+		if cond := conditions(d.Solution(), up, d); cond != "" {
 			w.f(", if %s", cond)
 		}
 		if !s.OnPolicy {
