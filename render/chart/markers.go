@@ -165,12 +165,18 @@ func fillRects(c *draw.Canvas, fs fillStyle, rects []vg.Rectangle) {
 		area.Line(vg.Point{X: r.Min.X, Y: r.Max.Y})
 		area.Close()
 	}
-	c.SetColor(fs.fill)
-	c.Fill(area)
 	var lines vg.Path
 	for _, r := range rects {
 		hatchRect(&lines, fs.hatch, r)
 	}
+	paintFill(c, fs, area, lines)
+}
+
+// paintFill paints an area in a fill style's tone and then its hatch
+// lines over it: the last step of fillRects and fillPolygons.
+func paintFill(c *draw.Canvas, fs fillStyle, area, lines vg.Path) {
+	c.SetColor(fs.fill)
+	c.Fill(area)
 	if len(lines) > 0 {
 		c.SetLineStyle(hatchLine)
 		c.Stroke(lines)

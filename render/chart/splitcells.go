@@ -179,16 +179,11 @@ func fillPolygons(c *draw.Canvas, fs fillStyle, polys [][]vg.Point) {
 		}
 		area.Close()
 	}
-	c.SetColor(fs.fill)
-	c.Fill(area)
 	var lines vg.Path
 	for _, ps := range polys {
 		hatchPolygon(&lines, fs.hatch, ps)
 	}
-	if len(lines) > 0 {
-		c.SetLineStyle(hatchLine)
-		c.Stroke(lines)
-	}
+	paintFill(c, fs, area, lines)
 }
 
 // hatchPolygon adds to p the segments of a hatch family inside the convex
