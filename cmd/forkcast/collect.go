@@ -109,26 +109,21 @@ const restorePoll = 5 * time.Millisecond
 
 // gcCycles is the number of collections completed so far.
 func gcCycles() uint64 {
-	s := []metrics.Sample{{Name: "/gc/cycles/total:gc-cycles"}}
-	metrics.Read(s)
-	if s[0].Value.Kind() != metrics.KindUint64 {
-		return 0
-	}
-	return s[0].Value.Uint64()
+	n, _ := readMetric("/gc/cycles/total:gc-cycles")
+	return n
 }
 
 // gcPercent is the collector's setting, read without changing it (a
 // change, even one undone at once, could let a collection start): -1 when
 // collection is off.
 func gcPercent() int {
-	s := []metrics.Sample{{Name: "/gc/gogc:percent"}}
-	metrics.Read(s)
-	if s[0].Value.Kind() != metrics.KindUint64 {
-		p := debug.SetGCPercent(100) // no such metric: read it the old way
+	v, ok := readMetric("/gc/gogc:percent")
+	switch {
+	case !ok: // no such metric: read it the old way
+		p := debug.SetGCPercent(100)
 		debug.SetGCPercent(p)
 		return p
-	}
-	if v := s[0].Value.Uint64(); v <= math.MaxInt32 {
+	case v <= math.MaxInt32:
 		return int(v)
 	}
 	return -1
@@ -138,13 +133,23 @@ func gcPercent() int {
 // where percent would put it had the last collection seen today's heap:
 // the goal is the heap marked last × (1 + setting/100).
 func stretchedPercent(percent int) int {
-	s := []metrics.Sample{{Name: "/gc/heap/live:bytes"}, {Name: "/memory/classes/heap/objects:bytes"}}
-	metrics.Read(s)
-	if s[0].Value.Kind() != metrics.KindUint64 || s[1].Value.Kind() != metrics.KindUint64 {
+	marked, ok1 := readMetric("/gc/heap/live:bytes")
+	now, ok2 := readMetric("/memory/classes/heap/objects:bytes")
+	if !ok1 || !ok2 {
 		return percent
 	}
-	live := max(float64(s[0].Value.Uint64()), 4<<20) // 4 MiB: the first goal
-	now := float64(s[1].Value.Uint64())
-	p := 100 * (now*(1+float64(percent)/100)/live - 1)
+	live := max(float64(marked), 4<<20) // 4 MiB: the first goal
+	p := 100 * (float64(now)*(1+float64(percent)/100)/live - 1)
 	return int(min(max(p, float64(percent)), math.MaxInt32))
+}
+
+// readMetric reads one of the runtime's counters; ok is false when this
+// Go has no such counter.
+func readMetric(name string) (v uint64, ok bool) {
+	s := []metrics.Sample{{Name: name}}
+	metrics.Read(s)
+	if s[0].Value.Kind() != metrics.KindUint64 {
+		return 0, false
+	}
+	return s[0].Value.Uint64(), true
 }

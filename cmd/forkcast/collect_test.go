@@ -3,7 +3,6 @@ package main
 import (
 	"runtime"
 	"runtime/debug"
-	"runtime/metrics"
 	"testing"
 	"time"
 )
@@ -20,9 +19,8 @@ func gcSetting() int {
 // has ended, the cleanup that sets it back runs on a goroutine of its
 // own, and a write here could undo that.
 func gogc() uint64 {
-	s := []metrics.Sample{{Name: "/gc/gogc:percent"}}
-	metrics.Read(s)
-	return s[0].Value.Uint64()
+	v, _ := readMetric("/gc/gogc:percent")
+	return v
 }
 
 // Not parallel: it reads the process-wide collector settings, which
@@ -115,9 +113,8 @@ func TestStretchedPercent(t *testing.T) {
 	}
 	keep := make([]byte, 256<<20)
 	p := stretchedPercent(100)
-	s := []metrics.Sample{{Name: "/gc/heap/live:bytes"}}
-	metrics.Read(s)
-	live := max(float64(s[0].Value.Uint64()), 4<<20)
+	marked, _ := readMetric("/gc/heap/live:bytes")
+	live := max(float64(marked), 4<<20)
 	if goal := live * (1 + float64(p)/100); goal < 2*256<<20 {
 		t.Fatalf("with 256 MiB more on the heap than was marked (%.0f), stretchedPercent(100) = %d puts the next collection at %.0f bytes, want at least twice the 256 MiB", live, p, goal)
 	}
