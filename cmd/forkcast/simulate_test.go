@@ -83,14 +83,7 @@ func TestSimulateFiles(t *testing.T) {
 	if err := json.Unmarshal([]byte(out), &res); err != nil {
 		t.Fatal(err)
 	}
-	raw, err := os.ReadFile(draws)
-	if err != nil {
-		t.Fatal(err)
-	}
-	rows, err := csv.NewReader(bytes.NewReader(raw)).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	rows := readCSVFile(t, draws)
 	if len(rows) != 301 || len(rows[0]) != 1+len(res.Inputs)+len(res.Options)+1 {
 		t.Fatalf("%d rows of %d columns", len(rows), len(rows[0]))
 	}
@@ -253,7 +246,17 @@ func TestSimulateWholeTreeCLI(t *testing.T) {
 	if code, _, errs := forkcast(t, "", "simulate", file, "--runs", "50", "--save-draws", draws); code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	raw, err := os.ReadFile(draws)
+	rows := readCSVFile(t, draws)
+	if want := []string{"run", "strip", "fit", "p_asb", "removal", "cost: whole tree"}; len(rows) != 51 || !reflect.DeepEqual(rows[0], want) {
+		t.Errorf("%d rows, header %q; want 51 rows, header %q", len(rows), rows[0], want)
+	}
+}
+
+// readCSVFile reads the CSV file at path whole (the draws --save-draws
+// writes), failing the test when it cannot.
+func readCSVFile(t *testing.T, path string) [][]string {
+	t.Helper()
+	raw, err := os.ReadFile(path)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -261,7 +264,5 @@ func TestSimulateWholeTreeCLI(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if want := []string{"run", "strip", "fit", "p_asb", "removal", "cost: whole tree"}; len(rows) != 51 || !reflect.DeepEqual(rows[0], want) {
-		t.Errorf("%d rows, header %q; want 51 rows, header %q", len(rows), rows[0], want)
-	}
+	return rows
 }
